@@ -1,0 +1,106 @@
+// The invented, deterministic synthetic sky of the demo: fields spread over the sky, each with
+// one, two or three dust clouds at different distances and field orientations, and the stars in
+// them with positions and parallaxes. Same seed → same sky on every machine.
+import { gaussian, mulberry32 } from '../server/science/random.js';
+
+export interface DemoCloud {
+  distancePc: number;
+  /** Polarization this cloud adds, as a fraction, and its plane-of-sky angle (IAU, equatorial). */
+  p: number;
+  thetaDeg: number;
+}
+
+export interface DemoSkyField {
+  key: string;
+  raDeg: number;
+  decDeg: number;
+  radiusDeg: number;
+  clouds: DemoCloud[];
+}
+
+export interface DemoSkyStar {
+  field: string;
+  name: string;
+  sourceId: string;
+  raDeg: number;
+  decDeg: number;
+  distancePc: number;
+  parallaxMas: number;
+  parallaxErrMas: number;
+}
+
+export const DEMO_SKY_SEED = 20261201;
+
+function pad(n: number, width: number, digits = 0) {
+  return n.toFixed(digits).padStart(width + (digits ? digits + 1 : 0), '0');
+}
+
+/** IAU-style designation from the position: "KRS J053431.9+220052". */
+export function designation(raDeg: number, decDeg: number): string {
+  const raH = raDeg / 15;
+  const h = Math.floor(raH);
+  const m = Math.floor((raH - h) * 60);
+  const s = Math.floor(((raH - h) * 60 - m) * 600) / 10;
+  const sign = decDeg < 0 ? '-' : '+';
+  const ad = Math.abs(decDeg);
+  const d = Math.floor(ad);
+  const dm = Math.floor((ad - d) * 60);
+  const ds = Math.floor(((ad - d) * 60 - dm) * 60);
+  return `KRS J${pad(h, 2)}${pad(m, 2)}${pad(s, 2, 1)}${sign}${pad(d, 2)}${pad(dm, 2)}${pad(ds, 2)}`;
+}
+
+export function buildDemoSky(opts: { fields?: number; starsPerField?: number; seed?: number } = {}) {
+  const nFields = opts.fields ?? 240;
+  const perField = opts.starsPerField ?? 24;
+  const rng = mulberry32(opts.seed ?? DEMO_SKY_SEED);
+  const fields: DemoSkyField[] = [];
+  const stars: DemoSkyStar[] = [];
+  const seenSourceIds = new Set<string>();
+  for (let f = 0; f < nFields; f++) {
+    // uniform on the sphere, avoiding the densest Galactic-plane confusion is not needed for a demo
+    const raDeg = rng() * 360;
+    const decDeg = (Math.asin(2 * rng() - 1) * 180) / Math.PI;
+    const kind = rng();
+    const nClouds = kind < 0.4 ? 1 : kind < 0.8 ? 2 : 3;
+    const clouds: DemoCloud[] = [];
+    let d = 80 + rng() * 220;
+    let theta = rng() * 180;
+    for (let c = 0; c < nClouds; c++) {
+      clouds.push({ distancePc: Math.round(d), p: 0.006 + rng() * 0.018, thetaDeg: ((theta % 180) + 180) % 180 });
+      d += 250 + rng() * 600;
+      theta += (rng() < 0.5 ? -1 : 1) * (35 + rng() * 50);
+    }
+    const key = `F${String(f + 1).padStart(3, '0')}`;
+    const radiusDeg = 0.6;
+    fields.push({ key, raDeg, decDeg, radiusDeg, clouds });
+    for (let s = 0; s < perField; s++) {
+      // position uniform in a small disc around the field centre
+      const r = radiusDeg * Math.sqrt(rng());
+      const a = rng() * 2 * Math.PI;
+      const dec = Math.max(-89.9999, Math.min(89.9999, decDeg + r * Math.sin(a)));
+      const ra = (((raDeg + (r * Math.cos(a)) / Math.max(0.05, Math.cos((decDeg * Math.PI) / 180))) % 360) + 360) % 360;
+      const distancePc = 40 + rng() * 2400;
+      const trueParallax = 1000 / distancePc;
+      const fracErr = 0.01 + rng() * 0.04;
+      const parallaxErrMas = Math.max(0.015, trueParallax * fracErr);
+      const parallaxMas = trueParallax - 0.017 + parallaxErrMas * gaussian(rng); // catalog values carry the −0.017 mas zero point
+      let sourceId: string;
+      do {
+        // 19-digit identifiers well above 2^53, so any pass through a JS number would show
+        sourceId = (4_000_000_000_000_000_000n + BigInt(Math.floor(rng() * 2 ** 31)) * 2_147_483_648n + BigInt(Math.floor(rng() * 2 ** 31))).toString();
+      } while (seenSourceIds.has(sourceId));
+      seenSourceIds.add(sourceId);
+      stars.push({
+        field: key,
+        name: designation(ra, dec),
+        sourceId,
+        raDeg: Number(ra.toFixed(6)),
+        decDeg: Number(dec.toFixed(6)),
+        distancePc,
+        parallaxMas: Number(parallaxMas.toFixed(4)),
+        parallaxErrMas: Number(parallaxErrMas.toFixed(4)),
+      });
+    }
+  }
+  return { fields, stars };
+}

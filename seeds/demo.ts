@@ -1,0 +1,41 @@
+// Knex seed for the invented demo (see demo-scenario.ts). Deterministic; run only on an empty database.
+import type { Knex } from 'knex';
+import { hashPassword, DEMO_PASSWORD } from '../server/auth/passwords.js';
+import { icrsToGalactic } from '../server/science/frames.js';
+import { ang2pixNest } from '../server/science/healpix.js';
+import { recordAudit } from '../server/audit/service.js';
+import { DEMO_ACCOUNTS, DEMO_INSTRUMENTS } from './demo-scenario.js';
+import { buildDemoSky } from './demo-sky.js';
+
+export const INDEX_NSIDE = 32768; // HEALPix order 15
+
+export async function seed(knex: Knex): Promise<void> {
+  const now = new Date().toISOString();
+  await knex.transaction(async (trx) => {
+    const hash = await hashPassword(DEMO_PASSWORD);
+    for (const a of DEMO_ACCOUNTS) {
+      await trx('users').insert({ email: a.email, name: a.name, role: a.role, password_hash: hash, disabled: false, created_at: now, updated_at: now });
+    }
+    const admin = await trx('users').where({ role: 'admin' }).first();
+    for (const i of DEMO_INSTRUMENTS) await trx('instruments').insert({ ...i, created_at: now });
+    const { stars } = buildDemoSky();
+    const rows = stars.map((s) => {
+      const g = icrsToGalactic(s.raDeg, s.decDeg);
+      return {
+        name: s.name,
+        source_id: s.sourceId,
+        ra_deg: s.raDeg,
+        dec_deg: s.decDeg,
+        glon_deg: g.lDeg,
+        glat_deg: g.bDeg,
+        parallax_mas: s.parallaxMas,
+        parallax_err_mas: s.parallaxErrMas,
+        hpx15: ang2pixNest(INDEX_NSIDE, s.raDeg, s.decDeg),
+        created_at: now,
+        created_by: admin.id,
+      };
+    });
+    await trx.batchInsert('stars', rows, 500);
+    await recordAudit(trx, { actorId: admin.id, action: 'demo.seed', entityType: 'database', entityId: 'demo', after: { users: DEMO_ACCOUNTS.length, instruments: DEMO_INSTRUMENTS.length, stars: rows.length } });
+  });
+}

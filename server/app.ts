@@ -1,0 +1,86 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import express, { type Express } from 'express';
+import session from 'express-session';
+import helmet from 'helmet';
+import { ConnectSessionKnexStore } from 'connect-session-knex';
+import type { Knex } from 'knex';
+import type { Config } from './config.js';
+import { errorMiddleware, notFound } from './errors.js';
+import { authService } from './auth/service.js';
+import { createPassport } from './auth/passport.js';
+import { authRoutes } from './auth/routes.js';
+import { adminRoutes } from './admin/routes.js';
+import { catalogRoutes } from './catalog/routes.js';
+
+export interface AppDeps {
+  db: Knex;
+  config: Config;
+}
+
+/** Build the Express app without listening, so tests can drive it with supertest. */
+export function createApp(deps: AppDeps): Express {
+  const { db, config } = deps;
+  const app = express();
+  app.set('trust proxy', 'loopback');
+  app.disable('x-powered-by');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          fontSrc: ["'self'", 'data:'],
+          scriptSrc: ["'self'"],
+          connectSrc: ["'self'"],
+          upgradeInsecureRequests: null,
+        },
+      },
+    }),
+  );
+
+  const auth = authService(db, { allowDemoPassword: config.allowDemoPassword });
+  const pp = createPassport(auth);
+
+  const api = express.Router();
+  api.use(express.json({ limit: '2mb' }));
+  api.use(
+    session({
+      name: 'starveil.sid',
+      secret: config.sessionSecret,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      store: new ConnectSessionKnexStore({ knex: db, tableName: 'sessions', createTable: false, cleanupInterval: 10 * 60 * 1000 }),
+      cookie: { httpOnly: true, sameSite: 'lax', secure: config.env === 'production', maxAge: 8 * 60 * 60 * 1000 },
+    }),
+  );
+  api.use(pp.initialize());
+  api.use(pp.session());
+
+  api.get('/health', (_req, res) => {
+    res.json({ ok: true });
+  });
+  api.use(authRoutes({ auth, passport: pp, config }));
+  api.use(adminRoutes({ auth }));
+  api.use(catalogRoutes({ db }));
+  api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
+  api.use(errorMiddleware);
+  app.use('/api/v1', api);
+
+  // The built client, with the router's paths falling back to index.html.
+  const index = path.join(config.distDir, 'index.html');
+  if (fs.existsSync(index)) {
+    app.use(express.static(config.distDir, { index: false, maxAge: '1h' }));
+    app.get(/^(?!\/api\/).*/, (_req, res) => {
+      res.sendFile(index);
+    });
+  } else {
+    app.get('/', (_req, res) => {
+      res.type('text').send('Starveil API is running. Build the client with `npm run build` (npm start does this).');
+    });
+  }
+  app.use(errorMiddleware);
+  return app;
+}

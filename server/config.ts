@@ -1,0 +1,64 @@
+import path from 'node:path';
+import crypto from 'node:crypto';
+
+/** Every setting Starveil reads from the environment, parsed and checked once at start. */
+export interface Config {
+  env: 'development' | 'production' | 'test';
+  port: number;
+  dbFile: string;
+  dataDir: string;
+  sessionSecret: string;
+  /** Allow the published demo password to sign in (refused in production unless STARVEIL_ALLOW_DEMO=1). */
+  allowDemoPassword: boolean;
+  loginRateLimit: { windowMs: number; max: number };
+  uploadMaxBytes: number;
+  mail: { transport: 'outbox' | 'smtp'; from: string; smtpUrl?: string };
+  publicUrl: string;
+  distDir: string;
+  seedDemo: boolean;
+}
+
+export class ConfigError extends Error {}
+
+function intVar(env: NodeJS.ProcessEnv, name: string, fallback: number, min = 0): number {
+  const raw = env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const n = Number(raw);
+  if (!Number.isInteger(n) || n < min) throw new ConfigError(`${name} must be an integer ≥ ${min}, got "${raw}"`);
+  return n;
+}
+
+export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
+  const nodeEnv = env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development';
+  const dataDir = path.resolve(env.STARVEIL_DATA_DIR ?? 'data');
+  const port = intVar(env, 'PORT', 3000);
+  const secret = env.SESSION_SECRET ?? (nodeEnv === 'production' ? '' : 'starveil-development-secret');
+  if (!secret) throw new ConfigError('SESSION_SECRET must be set when NODE_ENV=production');
+  const transport = (env.MAIL_TRANSPORT ?? 'outbox') as Config['mail']['transport'];
+  if (transport !== 'outbox' && transport !== 'smtp') throw new ConfigError(`MAIL_TRANSPORT must be "outbox" or "smtp", got "${transport}"`);
+  if (transport === 'smtp' && !env.SMTP_URL) throw new ConfigError('SMTP_URL must be set when MAIL_TRANSPORT=smtp');
+  const config: Config = {
+    env: nodeEnv,
+    port,
+    dbFile: path.resolve(env.STARVEIL_DB ?? path.join(dataDir, 'starveil.sqlite')),
+    dataDir,
+    sessionSecret: secret,
+    allowDemoPassword: nodeEnv !== 'production' || env.STARVEIL_ALLOW_DEMO === '1',
+    loginRateLimit: {
+      windowMs: intVar(env, 'LOGIN_RATE_WINDOW_MS', 15 * 60 * 1000, 1),
+      max: intVar(env, 'LOGIN_RATE_MAX', 10, 1),
+    },
+    uploadMaxBytes: intVar(env, 'UPLOAD_MAX_BYTES', 100 * 1024 * 1024, 1),
+    mail: { transport, from: env.MAIL_FROM ?? 'Starveil <no-reply@starveil.example>', smtpUrl: env.SMTP_URL },
+    publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
+    distDir: path.resolve(env.STARVEIL_DIST ?? 'dist'),
+    seedDemo: env.STARVEIL_SEED !== '0',
+    ...overrides,
+  };
+  return config;
+}
+
+/** A random secret, for tests. */
+export function randomSecret(): string {
+  return crypto.randomBytes(24).toString('hex');
+}

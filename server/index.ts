@@ -1,0 +1,29 @@
+// Start Starveil: migrate, seed the demo into an empty database, serve the API and the built client.
+import { loadConfig } from './config.js';
+import { openDb, migrateLatest } from './db.js';
+import { seedDemoIfEmpty } from './seed.js';
+import { createApp } from './app.js';
+import { DEMO_ACCOUNTS } from '../seeds/demo-scenario.js';
+import { DEMO_PASSWORD } from './auth/passwords.js';
+
+const config = loadConfig();
+const db = openDb(config.dbFile);
+await migrateLatest(db);
+const seeded = config.seedDemo ? await seedDemoIfEmpty(db) : false;
+const app = createApp({ db, config });
+const server = app.listen(config.port, () => {
+  const addr = server.address();
+  const port = typeof addr === 'object' && addr ? addr.port : config.port;
+  console.log(`Starveil is running at http://localhost:${port}  (database ${config.dbFile}${seeded ? ', demo data loaded' : ''})`);
+  if (config.allowDemoPassword) {
+    console.log(`Demo sign-ins (password "${DEMO_PASSWORD}"):`);
+    for (const a of DEMO_ACCOUNTS) console.log(`  ${a.role.padEnd(9)} ${a.email}`);
+  }
+});
+
+const stop = () => {
+  server.close(() => void db.destroy().then(() => process.exit(0)));
+  setTimeout(() => process.exit(0), 3000).unref();
+};
+process.on('SIGINT', stop);
+process.on('SIGTERM', stop);

@@ -1,0 +1,62 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { Ajv2020 } from 'ajv/dist/2020.js';
+import type { ErrorObject, ValidateFunction } from 'ajv';
+import addFormatsModule from 'ajv-formats';
+import type { RequestHandler } from 'express';
+import { badRequest } from '../errors.js';
+
+const schemasDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../schemas');
+const addFormats = addFormatsModule as unknown as (ajv: Ajv2020) => Ajv2020;
+
+/** One ajv instance holding every schema in schemas/ (recursively), addressed by its $id. */
+export const ajv = new Ajv2020({ allErrors: true, strict: false, coerceTypes: false });
+addFormats(ajv);
+function loadAll(dir: string) {
+  for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
+    const full = path.join(dir, entry.name);
+    if (entry.isDirectory()) loadAll(full);
+    else if (entry.name.endsWith('.json')) ajv.addSchema(JSON.parse(fs.readFileSync(full, 'utf8')));
+  }
+}
+loadAll(schemasDir);
+
+export function schema(id: string): ValidateFunction {
+  const v = ajv.getSchema(id);
+  if (!v) throw new Error(`no schema with $id ${id}`);
+  return v;
+}
+
+/** Field path for an ajv error: "/email" → "email"; a missing property names itself. */
+export function fieldOf(e: ErrorObject): string {
+  const base = e.instancePath.replace(/^\//, '').replace(/\//g, '.');
+  if (e.keyword === 'required') return [base, (e.params as { missingProperty: string }).missingProperty].filter(Boolean).join('.');
+  if (e.keyword === 'additionalProperties') return [base, (e.params as { additionalProperty: string }).additionalProperty].filter(Boolean).join('.');
+  return base || '(body)';
+}
+
+export function describeErrors(errors: ErrorObject[] | null | undefined): { field: string; message: string }[] {
+  return (errors ?? []).map((e) => {
+    const field = fieldOf(e);
+    let message: string;
+    if (e.keyword === 'required') message = `${field} is required`;
+    else if (e.keyword === 'additionalProperties') message = `${field} is not a known field`;
+    else if (e.keyword === 'enum') message = `${field} must be one of ${(e.params as { allowedValues: unknown[] }).allowedValues.join(', ')}`;
+    else message = `${field} ${e.message ?? 'is invalid'}`;
+    return { field, message };
+  });
+}
+
+/** Express middleware: 400 naming each bad field unless req.body matches the schema. */
+export function validateBody(id: string): RequestHandler {
+  const validate = schema(id);
+  return (req, _res, next) => {
+    if (!validate(req.body ?? {})) {
+      const problems = describeErrors(validate.errors);
+      next(badRequest(problems.map((p) => p.message).join('; '), { fields: problems }));
+      return;
+    }
+    next();
+  };
+}

@@ -1,0 +1,77 @@
+/**
+ * Axial (180°-periodic) statistics for polarization angles. An axial angle θ and θ + 180° are
+ * the same orientation, so statistics work on the doubled angle 2θ (Mardia & Jupp 2000,
+ * Directional Statistics, §9.3 "axial data") and halve the result.
+ */
+
+const RAD_TO_DEG = 180 / Math.PI;
+const DEG_TO_RAD = Math.PI / 180;
+
+/** Wrap an angle in degrees to [0, 180). */
+export function wrapAngle180(deg: number): number {
+  const w = ((deg % 180) + 180) % 180;
+  return w === 180 ? 0 : w;
+}
+
+/** Difference a − b of two axial angles in degrees, wrapped to (−90, 90]. */
+export function angleDifferenceDeg(a: number, b: number): number {
+  const d = wrapAngle180(a - b); // [0, 180)
+  return d > 90 ? d - 180 : d;
+}
+
+interface DoubledSums {
+  c: number;
+  s: number;
+  wSum: number;
+}
+
+function doubledSums(anglesDeg: number[], weights?: number[]): DoubledSums {
+  if (anglesDeg.length === 0) throw new RangeError('axial statistics need at least one angle');
+  if (weights !== undefined && weights.length !== anglesDeg.length) {
+    throw new RangeError(
+      `axial statistics: ${weights.length} weights given for ${anglesDeg.length} angles; expected one weight per angle`,
+    );
+  }
+  let c = 0;
+  let s = 0;
+  let wSum = 0;
+  for (let i = 0; i < anglesDeg.length; i++) {
+    const w = weights === undefined ? 1 : weights[i];
+    if (!(w >= 0)) throw new RangeError(`axial statistics: weight ${w} at index ${i}; expected a number ≥ 0`);
+    const a = 2 * anglesDeg[i] * DEG_TO_RAD;
+    c += w * Math.cos(a);
+    s += w * Math.sin(a);
+    wSum += w;
+  }
+  if (!(wSum > 0)) throw new RangeError('axial statistics: weights sum to zero');
+  return { c, s, wSum };
+}
+
+/**
+ * Mean axial direction θ̄ = ½·atan2(Σ w sin 2θ, Σ w cos 2θ), in degrees in [0, 180)
+ * (Mardia & Jupp 2000). NaN when the doubled-angle resultant is exactly zero (no mean direction).
+ */
+export function axialMeanDeg(anglesDeg: number[], weights?: number[]): number {
+  const { c, s } = doubledSums(anglesDeg, weights);
+  if (c === 0 && s === 0) return NaN;
+  return wrapAngle180(0.5 * Math.atan2(s, c) * RAD_TO_DEG);
+}
+
+/**
+ * Mean resultant length of the doubled angles, R = |Σ w e^{2iθ}| / Σ w, in [0, 1]
+ * (Mardia & Jupp 2000). R = 1 for identical orientations, ≈ 0 for uniform ones.
+ */
+export function axialResultantLength(anglesDeg: number[], weights?: number[]): number {
+  const { c, s, wSum } = doubledSums(anglesDeg, weights);
+  return Math.min(1, Math.hypot(c, s) / wSum);
+}
+
+/**
+ * Circular standard deviation of axial data, ½·sqrt(−2 ln R) rad, returned in degrees
+ * (Mardia & Jupp 2000; equals scipy.stats.circstd of 2θ, halved). Infinity when R = 0.
+ */
+export function axialCircularStdDeg(anglesDeg: number[], weights?: number[]): number {
+  const r = axialResultantLength(anglesDeg, weights);
+  if (r >= 1) return 0;
+  return 0.5 * Math.sqrt(-2 * Math.log(r)) * RAD_TO_DEG;
+}

@@ -1,0 +1,16 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { api } from '../../../lib/apiClient';
+import type { Me } from '../../../lib/roles';
+
+export const login = (input: { email: string; password: string }) => api.post<{ user: Me }>('/auth/login', input);
+
+export function useLogin() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: login,
+    onSuccess: (data) => {
+      qc.clear();
+      qc.setQueryData(['me'], data.user);
+    },
+  });
+}

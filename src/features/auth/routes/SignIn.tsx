@@ -1,0 +1,50 @@
+import { useState, type FormEvent } from 'react';
+import { Navigate, useLocation, useNavigate } from 'react-router-dom';
+import { Logo } from '../../../components/ui/Logo';
+import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
+import { useLogin } from '../api/login';
+import { useMe } from '../api/me';
+
+export function SignInPage() {
+  const me = useMe();
+  const login = useLogin();
+  const navigate = useNavigate();
+  const location = useLocation();
+  const [email, setEmail] = useState('');
+  const [password, setPassword] = useState('');
+  const from = (location.state as { from?: string } | null)?.from ?? '/';
+
+  if (me.data) return <Navigate to={from} replace />;
+
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    login.mutate({ email, password }, { onSuccess: () => navigate(from, { replace: true }) });
+  };
+
+  return (
+    <div className="grid min-h-screen place-items-center bg-night px-4">
+      <div className="w-full max-w-sm">
+        <div className="mb-6 flex items-center gap-3 text-white">
+          <Logo size={44} />
+          <div>
+            <div className="text-xl font-semibold tracking-tight">Starveil</div>
+            <div className="text-xs text-veil-soft/80">Starlight polarization, layer by layer</div>
+          </div>
+        </div>
+        <form onSubmit={submit} className="space-y-4 rounded-xl bg-card p-6 shadow-xl" aria-label="Sign in">
+          <h1 className="text-lg font-semibold text-night">Sign in</h1>
+          {login.error && <Notice tone="bad">{login.error.message}</Notice>}
+          <Field label="E-mail">
+            <TextInput name="email" type="email" autoComplete="username" required value={email} onChange={(e) => setEmail(e.target.value)} />
+          </Field>
+          <Field label="Password">
+            <TextInput name="password" type="password" autoComplete="current-password" required value={password} onChange={(e) => setPassword(e.target.value)} />
+          </Field>
+          <Button type="submit" className="w-full justify-center" disabled={login.isPending}>
+            {login.isPending ? 'Signing in…' : 'Sign in'}
+          </Button>
+        </form>
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,57 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import request from 'supertest';
+import type { Express } from 'express';
+import type { Knex } from 'knex';
+import { createApp } from '../../server/app.js';
+import { loadConfig, randomSecret, type Config } from '../../server/config.js';
+import { migrateLatest, openDb } from '../../server/db.js';
+import { seedDemoIfEmpty } from '../../server/seed.js';
+import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
+
+export interface TestApp {
+  app: Express;
+  db: Knex;
+  config: Config;
+  dir: string;
+  close: () => Promise<void>;
+}
+
+/** A fresh app on its own temporary SQLite file, migrated and seeded with the demo. */
+export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?: boolean } = {}): Promise<TestApp> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-test-'));
+  const config = loadConfig({ NODE_ENV: 'test' } as NodeJS.ProcessEnv, {
+    dbFile: path.join(dir, 'test.sqlite'),
+    dataDir: dir,
+    sessionSecret: randomSecret(),
+    distDir: path.join(dir, 'no-dist'),
+    ...overrides,
+  });
+  const db = openDb(config.dbFile);
+  await migrateLatest(db);
+  if (opts.seed !== false) await seedDemoIfEmpty(db);
+  const app = createApp({ db, config });
+  return {
+    app, db, config, dir,
+    close: async () => {
+      await db.destroy();
+      fs.rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}
+
+export const DEMO = {
+  observer: 'observer@kestrel.example',
+  curator: 'curator@kestrel.example',
+  modeler: 'modeler@kestrel.example',
+  admin: 'admin@kestrel.example',
+} as const;
+
+/** A supertest agent signed in as the given demo role (keeps its cookie). */
+export async function signedIn(app: Express, role: keyof typeof DEMO) {
+  const agent = request.agent(app);
+  const res = await agent.post('/api/v1/auth/login').send({ email: DEMO[role], password: DEMO_PASSWORD });
+  if (res.status !== 200) throw new Error(`sign-in as ${role} failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return agent;
+}

@@ -1,0 +1,56 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import type { AddressInfo } from 'node:net';
+import type { Server } from 'node:http';
+import { chromium, type Browser } from 'playwright-core';
+import { makeTestApp, type TestApp } from './app.js';
+
+export const CHROMIUM = process.env.STARVEIL_CHROMIUM ?? '/usr/bin/chromium';
+export const DIST = path.resolve('dist');
+
+/** Browser tests need Debian's chromium and the built client; under CI=true their absence is a failure. */
+export function browserAvailable(): { ok: boolean; why?: string } {
+  if (!fs.existsSync(CHROMIUM)) return { ok: false, why: `no browser at ${CHROMIUM} (apt-get install -y chromium)` };
+  if (!fs.existsSync(path.join(DIST, 'index.html'))) return { ok: false, why: 'no built client in dist/ (npm run build)' };
+  return { ok: true };
+}
+
+export function mustRunBrowserTests(): boolean {
+  const a = browserAvailable();
+  if (!a.ok && process.env.CI === 'true') throw new Error(`Browser tests cannot run under CI: ${a.why}`);
+  if (!a.ok) console.warn(`skipping browser tests: ${a.why}`);
+  return a.ok;
+}
+
+export async function launchBrowser(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-quic', '--no-first-run'],
+  });
+}
+
+export interface LiveServer {
+  t: TestApp;
+  url: string;
+  close: () => Promise<void>;
+}
+
+/** The built client and the API on a free port, with a fresh demo database. */
+export async function startLiveServer(): Promise<LiveServer> {
+  const t = await makeTestApp({ distDir: DIST });
+  const server: Server = await new Promise((resolve) => {
+    const s = t.app.listen(0, '127.0.0.1', () => resolve(s));
+  });
+  const { port } = server.address() as AddressInfo;
+  return {
+    t,
+    url: `http://127.0.0.1:${port}`,
+    close: async () => {
+      await new Promise((r) => server.close(r));
+      await t.close();
+    },
+  };
+}
+
+export const SCREENSHOTS = path.resolve('tests/e2e/screenshots');

@@ -1,0 +1,24 @@
+/// <reference types="vitest/config" />
+import { defineConfig } from 'vite';
+import react from '@vitejs/plugin-react';
+import tailwindcss from '@tailwindcss/vite';
+
+const apiPort = Number(process.env.API_PORT ?? 3001);
+
+export default defineConfig({
+  plugins: [react(), tailwindcss()],
+  root: '.',
+  build: { outDir: 'dist', emptyOutDir: true, chunkSizeWarningLimit: 1500 },
+  server: {
+    port: Number(process.env.PORT ?? 5173),
+    proxy: { '/api': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false } },
+  },
+  test: {
+    include: ['tests/**/*.test.ts'],
+    environment: 'node',
+    testTimeout: 30_000,
+    hookTimeout: 60_000,
+    pool: 'forks',
+    fileParallelism: true,
+  },
+});
