@@ -2,6 +2,7 @@
 // one, two or three dust clouds at different distances and field orientations, and the stars in
 // them with positions and parallaxes. Same seed → same sky on every machine.
 import { gaussian, mulberry32 } from '../server/science/random.js';
+import { designation } from '../server/measurements/designation.js';
 
 export interface DemoCloud {
   distancePc: number;
@@ -30,24 +31,6 @@ export interface DemoSkyStar {
 }
 
 export const DEMO_SKY_SEED = 20261201;
-
-function pad(n: number, width: number, digits = 0) {
-  return n.toFixed(digits).padStart(width + (digits ? digits + 1 : 0), '0');
-}
-
-/** IAU-style designation from the position: "KRS J053431.9+220052". */
-export function designation(raDeg: number, decDeg: number): string {
-  const raH = raDeg / 15;
-  const h = Math.floor(raH);
-  const m = Math.floor((raH - h) * 60);
-  const s = Math.floor(((raH - h) * 60 - m) * 600) / 10;
-  const sign = decDeg < 0 ? '-' : '+';
-  const ad = Math.abs(decDeg);
-  const d = Math.floor(ad);
-  const dm = Math.floor((ad - d) * 60);
-  const ds = Math.floor(((ad - d) * 60 - dm) * 60);
-  return `KRS J${pad(h, 2)}${pad(m, 2)}${pad(s, 2, 1)}${sign}${pad(d, 2)}${pad(dm, 2)}${pad(ds, 2)}`;
-}
 
 export function buildDemoSky(opts: { fields?: number; starsPerField?: number; seed?: number } = {}) {
   const nFields = opts.fields ?? 240;
@@ -92,7 +75,7 @@ export function buildDemoSky(opts: { fields?: number; starsPerField?: number; se
       seenSourceIds.add(sourceId);
       stars.push({
         field: key,
-        name: designation(ra, dec),
+        name: designation(ra, dec, 'KRS'),
         sourceId,
         raDeg: Number(ra.toFixed(6)),
         decDeg: Number(dec.toFixed(6)),
@@ -103,4 +86,24 @@ export function buildDemoSky(opts: { fields?: number; starsPerField?: number; se
     }
   }
   return { fields, stars };
+}
+
+/**
+ * Synthetic measurement of a star in the demo sky: the thin-screen sum of the Stokes parameters
+ * of every cloud nearer than the star (METHODS.md, Tomography §2), with a small turbulent scatter
+ * and measurement noise. R-band values are scaled from V by the Serkowski law ratio at λmax 0.55 µm
+ * (≈ 0.97; a demo approximation).
+ */
+export function demoStokesForStar(field: DemoSkyField, star: DemoSkyStar, band: 'R' | 'V', rng: () => number) {
+  const scale = band === 'R' ? 0.97 : 1;
+  let q = 0;
+  let u = 0;
+  for (const c of field.clouds) {
+    if (c.distancePc >= star.distancePc) continue;
+    const t = (2 * c.thetaDeg * Math.PI) / 180;
+    q += c.p * scale * Math.cos(t) + 0.0006 * gaussian(rng);
+    u += c.p * scale * Math.sin(t) + 0.0006 * gaussian(rng);
+  }
+  const err = 0.0006 + 0.0012 * rng();
+  return { q: q + err * gaussian(rng), u: u + err * gaussian(rng), qErr: err, uErr: err };
 }

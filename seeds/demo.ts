@@ -1,5 +1,11 @@
 // Knex seed for the invented demo (see demo-scenario.ts). Deterministic; run only on an empty database.
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import type { Knex } from 'knex';
+import { loadConfig, type Config } from '../server/config.js';
+import { intakeService } from '../server/intake/service.js';
 import { hashPassword, DEMO_PASSWORD } from '../server/auth/passwords.js';
 import { icrsToGalactic } from '../server/science/frames.js';
 import { ang2pixNest } from '../server/science/healpix.js';
@@ -9,7 +15,15 @@ import { buildDemoSky } from './demo-sky.js';
 
 export const INDEX_NSIDE = 32768; // HEALPix order 15
 
-export async function seed(knex: Knex): Promise<void> {
+const BATCH_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), 'demo-batches');
+
+/** The demo batches, uploaded by the demo observer through the intake code itself. */
+export const DEMO_BATCHES = [
+  { file: 'kestrel-night-hawk-R.csv', instrument: 'KR-HAWK' },
+  { file: 'kestrel-night-messy.csv', instrument: 'KR-OWL' }, // left needing its column mapping
+];
+
+export async function seed(knex: Knex, config: Config = loadConfig()): Promise<void> {
   const now = new Date().toISOString();
   await knex.transaction(async (trx) => {
     const hash = await hashPassword(DEMO_PASSWORD);
@@ -38,4 +52,13 @@ export async function seed(knex: Knex): Promise<void> {
     await trx.batchInsert('stars', rows, 500);
     await recordAudit(trx, { actorId: admin.id, action: 'demo.seed', entityType: 'database', entityId: 'demo', after: { users: DEMO_ACCOUNTS.length, instruments: DEMO_INSTRUMENTS.length, stars: rows.length } });
   });
+
+  const observer = await knex('users').where({ email: 'observer@kestrel.example' }).first();
+  const intake = intakeService(knex, config, config.intake);
+  for (const b of DEMO_BATCHES) {
+    const tmp = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-seed-')), b.file);
+    fs.copyFileSync(path.join(BATCH_DIR, b.file), tmp);
+    await intake.upload({ id: observer.id, email: observer.email, name: observer.name, role: 'observer' }, { path: tmp, originalname: b.file }, { instrument: b.instrument });
+  }
+  await intake.idle();
 }

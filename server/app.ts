@@ -12,14 +12,20 @@ import { createPassport } from './auth/passport.js';
 import { authRoutes } from './auth/routes.js';
 import { adminRoutes } from './admin/routes.js';
 import { catalogRoutes } from './catalog/routes.js';
+import { intakeService, type IntakeService } from './intake/service.js';
+import { intakeRoutes } from './intake/routes.js';
 
 export interface AppDeps {
   db: Knex;
   config: Config;
 }
 
+export interface AppServices {
+  intake: IntakeService;
+}
+
 /** Build the Express app without listening, so tests can drive it with supertest. */
-export function createApp(deps: AppDeps): Express {
+export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const { db, config } = deps;
   const app = express();
   app.set('trust proxy', 'loopback');
@@ -42,6 +48,7 @@ export function createApp(deps: AppDeps): Express {
 
   const auth = authService(db, { allowDemoPassword: config.allowDemoPassword });
   const pp = createPassport(auth);
+  const intake = intakeService(db, config, config.intake);
 
   const api = express.Router();
   api.use(express.json({ limit: '2mb' }));
@@ -65,6 +72,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(authRoutes({ auth, passport: pp, config }));
   api.use(adminRoutes({ auth }));
   api.use(catalogRoutes({ db }));
+  api.use(intakeRoutes({ intake, config }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
   app.use('/api/v1', api);
@@ -82,5 +90,5 @@ export function createApp(deps: AppDeps): Express {
     });
   }
   app.use(errorMiddleware);
-  return app;
+  return Object.assign(app, { services: { intake } });
 }

@@ -16,6 +16,7 @@ export interface Config {
   publicUrl: string;
   distDir: string;
   seedDemo: boolean;
+  intake: { crossmatchArcsec: number; mjdToleranceDays: number; syncBytes: number };
 }
 
 export class ConfigError extends Error {}
@@ -53,6 +54,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
     distDir: path.resolve(env.STARVEIL_DIST ?? 'dist'),
     seedDemo: env.STARVEIL_SEED !== '0',
+    intake: {
+      crossmatchArcsec: Number(env.CROSSMATCH_ARCSEC ?? 1),
+      mjdToleranceDays: Number(env.MJD_TOLERANCE_DAYS ?? 0.001),
+      syncBytes: intVar(env, 'INTAKE_SYNC_BYTES', 2 * 1024 * 1024),
+    },
     ...overrides,
   };
   return config;

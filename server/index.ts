@@ -9,7 +9,7 @@ import { DEMO_PASSWORD } from './auth/passwords.js';
 const config = loadConfig();
 const db = openDb(config.dbFile);
 await migrateLatest(db);
-const seeded = config.seedDemo ? await seedDemoIfEmpty(db) : false;
+const seeded = config.seedDemo ? await seedDemoIfEmpty(db, config) : false;
 const app = createApp({ db, config });
 const server = app.listen(config.port, () => {
   const addr = server.address();

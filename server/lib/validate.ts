@@ -11,7 +11,7 @@ const schemasDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '.
 const addFormats = addFormatsModule as unknown as (ajv: Ajv2020) => Ajv2020;
 
 /** One ajv instance holding every schema in schemas/ (recursively), addressed by its $id. */
-export const ajv = new Ajv2020({ allErrors: true, strict: false, coerceTypes: false });
+export const ajv = new Ajv2020({ allErrors: true, strict: false, coerceTypes: false, verbose: true });
 addFormats(ajv);
 function loadAll(dir: string) {
   for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {

@@ -72,6 +72,7 @@ export function axialResultantLength(anglesDeg: number[], weights?: number[]): n
  */
 export function axialCircularStdDeg(anglesDeg: number[], weights?: number[]): number {
   const r = axialResultantLength(anglesDeg, weights);
-  if (r >= 1) return 0;
+  // Identical orientations give R = 1 only up to rounding; treat that as exactly 1.
+  if (r >= 1 - 4 * Number.EPSILON) return 0;
   return 0.5 * Math.sqrt(-2 * Math.log(r)) * RAD_TO_DEG;
 }

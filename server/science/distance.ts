@@ -118,14 +118,16 @@ export function edsdModeKpc(
 }
 
 /**
- * The EDSD posterior tabulated on a grid uniform in x = ln r (kpc): cdf[i] is the normalised
- * integral up to node i, with the density in x taken constant over each cell at the mean of
- * its two nodes' densities (trapezoid), so the inverse CDF is linear in x inside a cell.
+ * The EDSD posterior tabulated on a grid uniform in x = ln r (kpc). Between two nodes the log
+ * density is taken linear in x (density exponential in x), which is integrated and inverted
+ * exactly: cdf[i] is the normalised integral up to node i, w[i] the density at node i on the
+ * same normalisation.
  */
 interface EdsdTable {
   xLo: number;
   dx: number;
   cdf: Float64Array;
+  w: Float64Array;
 }
 
 /** log density in x = ln r: ln P(e^x) + x. */
@@ -135,7 +137,14 @@ function logDensityLnR(x: number, plx: number, invTwoS2: number, invL: number): 
   return 3 * x - r * invL - d * d * invTwoS2;
 }
 
-function buildEdsdTable(plx: number, sigma: number, lengthKpc: number): EdsdTable {
+const scratchLogDensity = new Float64Array(TABLE_SIZE);
+
+/** ∫₀^h w0·e^{k s} ds for log-density slope k over a cell of width h. */
+function cellMass(w0: number, w1: number, df: number, h: number): number {
+  return Math.abs(df) > 1e-9 ? (h * (w1 - w0)) / df : 0.5 * h * (w0 + w1);
+}
+
+export function buildEdsdTable(plx: number, sigma: number, lengthKpc: number): EdsdTable {
   const s2 = sigma * sigma;
   const invTwoS2 = 1 / (2 * s2);
   const invL = 1 / lengthKpc;
@@ -154,7 +163,7 @@ function buildEdsdTable(plx: number, sigma: number, lengthKpc: number): EdsdTabl
     }
   }
   // Width scale from the curvature at the peak: d²f/dx² = r²·H + r·dlnP/dr with dlnP/dr = −1/r
-  // at a stationary point of f; H is d²lnP/dr² = −2/r² + (2ϖr − 3)/(σ² r⁴).
+  // at a stationary point of f; H = d²lnP/dr² = −2/r² + (2ϖr − 3)/(σ² r⁴).
   const rp = Math.exp(xPeak);
   const h = -2 / (rp * rp) + (2 * plx * rp - 3) / (s2 * rp * rp * rp * rp);
   const curv = rp * rp * h - 1;
@@ -184,24 +193,37 @@ function buildEdsdTable(plx: number, sigma: number, lengthKpc: number): EdsdTabl
   const n = TABLE_SIZE;
   const dx = (xHi - xLo) / (n - 1);
   const cdf = new Float64Array(n);
-  let prev = Math.exp(logDensityLnR(xLo, plx, invTwoS2, invL) - peak);
+  const w = new Float64Array(n);
+  const f = scratchLogDensity;
+  // r_i = e^{xLo + i·dx} by a running product (one exp per node instead of two).
+  const ratio = Math.exp(dx);
+  let r = Math.exp(xLo);
+  for (let i = 0; i < n; i++) {
+    const d = plx - 1 / r;
+    f[i] = 3 * (xLo + i * dx) - r * invL - d * d * invTwoS2 - peak;
+    w[i] = Math.exp(f[i]);
+    r *= ratio;
+  }
+  // Cell masses: exact for a log-linear density, times (1 − f''·dx²/12), the leading correction
+  // for the curvature of the log density (f'' from second differences), so node CDF values are
+  // accurate to O(dx⁴) rather than O(dx²).
   let acc = 0;
-  cdf[0] = 0;
-  for (let i = 1; i < n; i++) {
-    const w = Math.exp(logDensityLnR(xLo + i * dx, plx, invTwoS2, invL) - peak);
-    acc += 0.5 * (prev + w);
-    cdf[i] = acc;
-    prev = w;
+  for (let i = 0; i < n - 1; i++) {
+    const c0 = i > 0 ? f[i + 1] - 2 * f[i] + f[i - 1] : f[i + 2] - 2 * f[i + 1] + f[i];
+    const c1 = i < n - 2 ? f[i + 2] - 2 * f[i + 1] + f[i] : c0;
+    const mass = cellMass(w[i], w[i + 1], f[i + 1] - f[i], dx) * (1 - (c0 + c1) / 24);
+    acc += mass > 0 ? mass : 0;
+    cdf[i + 1] = acc;
   }
   const inv = 1 / acc;
-  for (let i = 1; i < n; i++) cdf[i] *= inv;
+  for (let i = 0; i < n; i++) cdf[i] *= inv;
   cdf[n - 1] = 1;
-  return { xLo, dx, cdf };
+  return { xLo, dx, cdf, w };
 }
 
-/** Inverse CDF of a table at probability u in [0, 1), returning r in kpc. O(log n). */
+/** Inverse CDF of a table at probability u in [0, 1], returning r in kpc. O(log n). */
 function tableQuantileKpc(t: EdsdTable, u: number): number {
-  const cdf = t.cdf;
+  const { cdf, w, dx } = t;
   let lo = 0;
   let hi = cdf.length - 1;
   while (hi - lo > 1) {
@@ -209,9 +231,20 @@ function tableQuantileKpc(t: EdsdTable, u: number): number {
     if (cdf[mid] <= u) lo = mid;
     else hi = mid;
   }
+  // Inside the cell the density is ∝ e^{k s} with e^{k·dx} = w[hi]/w[lo]: the share φ of the
+  // cell's mass below s gives s = dx·ln(1 + φ(ρ − 1))/ln ρ, ρ = w[hi]/w[lo].
   const span = cdf[hi] - cdf[lo];
-  const frac = span > 0 ? (u - cdf[lo]) / span : 0;
-  return Math.exp(t.xLo + (lo + frac) * t.dx);
+  const phi = span > 0 ? Math.min(1, Math.max(0, (u - cdf[lo]) / span)) : 0;
+  const rho = w[lo] > 0 ? w[hi] / w[lo] : Infinity;
+  let s: number;
+  if (Number.isFinite(rho) && rho > 0 && Math.abs(rho - 1) > 1e-9) {
+    s = (dx * Math.log1p(phi * (rho - 1))) / Math.log(rho);
+  } else {
+    s = phi * dx;
+  }
+  if (!(s >= 0)) s = 0;
+  else if (s > dx) s = dx;
+  return Math.exp(t.xLo + lo * dx + s);
 }
 
 /**

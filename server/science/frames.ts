@@ -45,13 +45,35 @@ function mul(a: Mat3, b: Mat3): Mat3 {
 }
 
 /**
- * Rotation r_gal = M · r_icrs (row-major), M = R_z(180° − l_NCP) · R_y(90° − δ_NGP) · R_z(α_NGP)
- * with passive (axis) rotations. Its rows are the Galactic x, y, z axes in ICRS; the third row
- * is the north Galactic pole.
+ * Rotation r_gal = M · r_eq (row-major) for a Galactic frame whose north pole is at
+ * (α_p, δ_p) and in which the equatorial north pole has longitude l_NCP:
+ *   M = R_z(180° − l_NCP) · R_y(90° − δ_p) · R_z(α_p)   (passive, axis rotations).
+ * Rows are the Galactic x, y, z axes in equatorial coordinates; row 3 is the pole.
  */
+export function galacticRotationMatrix(ngpRaDeg: number, ngpDecDeg: number, ncpLonDeg: number): number[] {
+  return mul(mul(rotZ(180 - ncpLonDeg), rotY(90 - ngpDecDeg)), rotZ(ngpRaDeg));
+}
+
+/** ICRS → Galactic rotation of the Hipparcos definition (ESA 1997 vol. 1 §1.5.3). */
 export const ICRS_TO_GALACTIC: readonly number[] = Object.freeze(
-  mul(mul(rotZ(180 - NCP_GALACTIC_LON_DEG), rotY(90 - NGP_DEC_DEG)), rotZ(NGP_RA_DEG)),
+  galacticRotationMatrix(NGP_RA_DEG, NGP_DEC_DEG, NCP_GALACTIC_LON_DEG),
 );
+
+/** Apply a row-major 3×3 rotation to the direction (lon, lat) in degrees; lon in [0, 360). */
+export function rotateLonLatDeg(m: readonly number[], lonDeg: number, latDeg: number): { lonDeg: number; latDeg: number } {
+  const [x, y, z] = unitVector(lonDeg, latDeg);
+  const { lon, lat } = toLonLat(
+    m[0] * x + m[1] * y + m[2] * z,
+    m[3] * x + m[4] * y + m[5] * z,
+    m[6] * x + m[7] * y + m[8] * z,
+  );
+  return { lonDeg: lon, latDeg: lat };
+}
+
+/** Transpose (= inverse) of a row-major 3×3 rotation. */
+export function transposeMatrix(m: readonly number[]): number[] {
+  return [m[0], m[3], m[6], m[1], m[4], m[7], m[2], m[5], m[8]];
+}
 
 function unitVector(lonDeg: number, latDeg: number): [number, number, number] {
   const cl = Math.cos(latDeg * DEG);
@@ -67,28 +89,18 @@ function toLonLat(x: number, y: number, z: number): { lon: number; lat: number }
   return { lon, lat };
 }
 
+const GALACTIC_TO_ICRS: readonly number[] = Object.freeze(transposeMatrix(ICRS_TO_GALACTIC));
+
 /** ICRS (α, δ) in degrees → Galactic (l in [0, 360), b) in degrees. */
 export function icrsToGalactic(raDeg: number, decDeg: number): { lDeg: number; bDeg: number } {
-  const m = ICRS_TO_GALACTIC;
-  const [x, y, z] = unitVector(raDeg, decDeg);
-  const { lon, lat } = toLonLat(
-    m[0] * x + m[1] * y + m[2] * z,
-    m[3] * x + m[4] * y + m[5] * z,
-    m[6] * x + m[7] * y + m[8] * z,
-  );
-  return { lDeg: lon, bDeg: lat };
+  const { lonDeg, latDeg } = rotateLonLatDeg(ICRS_TO_GALACTIC, raDeg, decDeg);
+  return { lDeg: lonDeg, bDeg: latDeg };
 }
 
-/** Galactic (l, b) in degrees → ICRS (α in [0, 360), δ) in degrees (transpose rotation). */
+/** Galactic (l, b) in degrees → ICRS (α in [0, 360), δ) in degrees. */
 export function galacticToIcrs(lDeg: number, bDeg: number): { raDeg: number; decDeg: number } {
-  const m = ICRS_TO_GALACTIC;
-  const [x, y, z] = unitVector(lDeg, bDeg);
-  const { lon, lat } = toLonLat(
-    m[0] * x + m[3] * y + m[6] * z,
-    m[1] * x + m[4] * y + m[7] * z,
-    m[2] * x + m[5] * y + m[8] * z,
-  );
-  return { raDeg: lon, decDeg: lat };
+  const { lonDeg, latDeg } = rotateLonLatDeg(GALACTIC_TO_ICRS, lDeg, bDeg);
+  return { raDeg: lonDeg, decDeg: latDeg };
 }
 
 /**

@@ -99,10 +99,11 @@ export function pix2angNest(nside: number, ipix: number): { lonDeg: number; latD
 
 /**
  * NESTED pixels of a disc, sorted ascending. The package implements only the inclusive query,
- * and it is approximate: it returns every pixel whose centre lies within radius + the maximum
- * centre-to-corner distance. That contains every pixel overlapping the disc, plus possibly a
- * few near its edge that do not (tests: a superset of the pixels whose centres lie inside, a
- * subset of the pixels overlapping the disc enlarged by that distance).
+ * and it is approximate: it walks the rings the disc spans and keeps pixels whose centres lie
+ * within radius + the maximum centre-to-corner distance. Checked against healpy: it contains
+ * every pixel that overlaps the disc, plus some near the edge that do not, and nothing beyond
+ * healpy's inclusive query of a disc enlarged by 1.01 × that distance. Callers that need the
+ * stars inside a cone must still test each star's separation.
  * inclusive = false keeps only pixels whose centres lie inside the disc (exact).
  */
 export function queryDiscNest(

@@ -1,14 +1,19 @@
+import { createElement, type ReactNode } from 'react';
 import type { Role } from '../lib/roles';
+import { BatchesNavLabel } from '../features/intake/components/BatchesNavLabel';
 
 /** Navigation entries; a page appears only for the roles that may use it (admin sees all). */
 export interface NavItem {
   to: string;
-  label: string;
+  /** text, or a small component when the label depends on the signed-in role */
+  label: ReactNode;
   roles: readonly Role[] | 'signed-in';
 }
 
 export const NAV: NavItem[] = [
   { to: '/', label: 'Overview', roles: 'signed-in' },
+  { to: '/upload', label: 'Upload', roles: ['observer', 'curator'] },
+  { to: '/batches', label: createElement(BatchesNavLabel), roles: ['observer', 'curator'] },
   { to: '/admin/people', label: 'People', roles: ['admin'] },
   { to: '/account', label: 'Account', roles: 'signed-in' },
 ];

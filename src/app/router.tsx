@@ -5,6 +5,10 @@ import { SignInPage } from '../features/auth/routes/SignIn';
 import { OverviewPage } from '../features/overview/routes/OverviewPage';
 import { PeoplePage } from '../features/admin/routes/PeoplePage';
 import { AccountPage } from '../features/account/routes/AccountPage';
+import { UploadPage } from '../features/intake/routes/UploadPage';
+import { ColumnGuidePage } from '../features/intake/routes/ColumnGuidePage';
+import { BatchesPage } from '../features/intake/routes/BatchesPage';
+import { BatchPage } from '../features/intake/routes/BatchPage';
 
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
@@ -17,6 +21,10 @@ export const router = createBrowserRouter([
     children: [
       { index: true, element: <OverviewPage /> },
       { path: 'account', element: <AccountPage /> },
+      { path: 'upload', element: <RequireRole roles={['observer', 'curator']}><UploadPage /></RequireRole> },
+      { path: 'upload/columns', element: <ColumnGuidePage /> },
+      { path: 'batches', element: <RequireRole roles={['observer', 'curator']}><BatchesPage /></RequireRole> },
+      { path: 'batches/:id', element: <RequireRole roles={['observer', 'curator']}><BatchPage /></RequireRole> },
       { path: 'admin/people', element: <RequireRole roles={['admin']}><PeoplePage /></RequireRole> },
       { path: '*', element: <div className="text-sm text-muted">There is no page here. <Link className="text-veil underline" to="/">Back to the overview</Link></div> },
     ],

@@ -30,7 +30,7 @@ export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?
   });
   const db = openDb(config.dbFile);
   await migrateLatest(db);
-  if (opts.seed !== false) await seedDemoIfEmpty(db);
+  if (opts.seed !== false) await seedDemoIfEmpty(db, config);
   const app = createApp({ db, config });
   return {
     app, db, config, dir,

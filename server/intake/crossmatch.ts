@@ -1,0 +1,99 @@
+import type { Knex } from 'knex';
+import { queryDiscNest } from '../science/healpix.js';
+import { angularSeparationDeg } from '../science/separation.js';
+import { INDEX_NSIDE } from '../measurements/derive.js';
+
+export interface StarRef {
+  id: number;
+  name: string | null;
+  source_id: string | null;
+  ra_deg: number;
+  dec_deg: number;
+  parallax_mas: number | null;
+  parallax_err_mas: number | null;
+  hpx15: number;
+}
+
+export interface MatchQuery {
+  sourceId?: string;
+  raDeg: number;
+  decDeg: number;
+}
+
+export type MatchResult =
+  | { kind: 'source_id' | 'position'; star: StarRef }
+  | { kind: 'ambiguous'; candidates: { star: StarRef; separationArcsec: number }[] }
+  | { kind: 'none' };
+
+const CHUNK = 900;
+
+/**
+ * Ties rows to known stars: by source_id first, else by position within the tolerance. Two or
+ * more stars within the tolerance are reported as ambiguous for the curator — never guessed.
+ * Stars created earlier in the same batch are found too (`remember`).
+ */
+export class CrossMatcher {
+  private bySource = new Map<string, StarRef>();
+  private byPixel = new Map<number, StarRef[]>();
+  private loadedPixels = new Set<number>();
+  private loadedSources = new Set<string>();
+
+  constructor(
+    private readonly db: Knex | Knex.Transaction,
+    private readonly toleranceArcsec: number,
+  ) {}
+
+  private pixelsFor(q: MatchQuery): number[] {
+    return queryDiscNest(INDEX_NSIDE, q.raDeg, q.decDeg, this.toleranceArcsec / 3600, true);
+  }
+
+  remember(star: StarRef): void {
+    if (star.source_id) this.bySource.set(star.source_id, star);
+    const list = this.byPixel.get(star.hpx15);
+    if (list) list.push(star);
+    else this.byPixel.set(star.hpx15, [star]);
+  }
+
+  /** Load every catalog star a chunk of queries could match, in a few IN (…) queries. */
+  async prefetch(queries: MatchQuery[]): Promise<void> {
+    const sources = [...new Set(queries.map((q) => q.sourceId).filter((s): s is string => !!s && !this.loadedSources.has(s)))];
+    const pixels = [...new Set(queries.flatMap((q) => this.pixelsFor(q)).filter((p) => !this.loadedPixels.has(p)))];
+    const cols = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15'];
+    const seen = new Set<number>();
+    const add = (rows: StarRef[]) => {
+      for (const r of rows) {
+        if (seen.has(r.id)) continue;
+        seen.add(r.id);
+        if (r.source_id && this.bySource.has(r.source_id)) continue;
+        this.remember({ ...r, hpx15: Number(r.hpx15) });
+      }
+    };
+    for (let i = 0; i < sources.length; i += CHUNK) add(await this.db('stars').whereIn('source_id', sources.slice(i, i + CHUNK)).select(cols));
+    for (let i = 0; i < pixels.length; i += CHUNK) add(await this.db('stars').whereIn('hpx15', pixels.slice(i, i + CHUNK)).select(cols));
+    for (const s of sources) this.loadedSources.add(s);
+    for (const p of pixels) this.loadedPixels.add(p);
+  }
+
+  /** Match one row (after prefetch of its chunk). */
+  match(q: MatchQuery): MatchResult {
+    if (q.sourceId) {
+      const s = this.bySource.get(q.sourceId);
+      if (s) return { kind: 'source_id', star: s };
+    }
+    const near: { star: StarRef; separationArcsec: number }[] = [];
+    const seen = new Set<number>();
+    for (const p of this.pixelsFor(q)) {
+      for (const star of this.byPixel.get(p) ?? []) {
+        if (seen.has(star.id)) continue;
+        seen.add(star.id);
+        // a star that has a different source_id is a different star, however close
+        if (q.sourceId && star.source_id && star.source_id !== q.sourceId) continue;
+        const sep = angularSeparationDeg(q.raDeg, q.decDeg, star.ra_deg, star.dec_deg) * 3600;
+        if (sep <= this.toleranceArcsec) near.push({ star, separationArcsec: sep });
+      }
+    }
+    if (near.length === 1) return { kind: 'position', star: near[0].star };
+    if (near.length > 1) return { kind: 'ambiguous', candidates: near.sort((a, b) => a.separationArcsec - b.separationArcsec) };
+    return { kind: 'none' };
+  }
+}

@@ -1,0 +1,455 @@
+import fs from 'node:fs';
+import type { Knex } from 'knex';
+import { recordAudit } from '../audit/service.js';
+import type { Config } from '../config.js';
+import { bulkInsert, maxId, syncIdSequences } from '../dialect.js';
+import { AppError, badRequest, notFound } from '../errors.js';
+import type { SessionUser } from '../auth/roles.js';
+import { hasRole } from '../auth/roles.js';
+import { deriveMeasurement, INDEX_NSIDE, type Derived } from '../measurements/derive.js';
+import { normaliseRow, type RowIssue } from '../measurements/normalise.js';
+import { checkMapping, missingColumns, proposeMapping, type ColumnMapping, type MappingProposal } from '../measurements/mapping.js';
+import { ang2pixNest } from '../science/healpix.js';
+import { icrsToGalactic } from '../science/frames.js';
+import { designation } from '../measurements/designation.js';
+import { readCsvRows, sniffCsv } from './csv.js';
+import { CrossMatcher, type StarRef } from './crossmatch.js';
+import { storeUpload } from './storage.js';
+
+export type BatchState = 'received' | 'needs_mapping' | 'checking' | 'awaiting_review' | 'failed' | 'approved' | 'returned';
+export type RowState = 'accepted' | 'rejected' | 'duplicate' | 'conflict' | 'ambiguous';
+
+export interface BatchCounts {
+  rows: number;
+  accepted: number;
+  rejected: number;
+  duplicates: number;
+  conflicts: number;
+  ambiguous: number;
+  newStars: number;
+  matchedStars: number;
+  warnings: number;
+}
+
+const ZERO_COUNTS: BatchCounts = { rows: 0, accepted: 0, rejected: 0, duplicates: 0, conflicts: 0, ambiguous: 0, newStars: 0, matchedStars: 0, warnings: 0 };
+
+export interface IntakeOptions {
+  crossmatchArcsec: number;
+  /** two epochs closer than this (days) are the same observation */
+  mjdToleranceDays: number;
+  /** files up to this size are checked before the upload request returns */
+  syncBytes: number;
+}
+
+interface Proposal extends MappingProposal {
+  preview: string[][];
+  delimiter: string;
+}
+
+const parseJson = <T>(s: string | null | undefined, fallback: T): T => (s ? (JSON.parse(s) as T) : fallback);
+
+/** Values equal to within floating-point noise of a CSV round trip. */
+const same = (a: number | null, b: number | null) => (a === null || b === null ? a === b : Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(a), Math.abs(b)));
+
+export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
+  const progress = new Map<number, { bytesDone: number; rowsDone: number }>();
+  const running = new Map<number, Promise<void>>();
+
+  async function batchRow(id: number) {
+    const b = await db('batches').leftJoin('users', 'users.id', 'batches.uploaded_by').where('batches.id', id).first('batches.*', 'users.name as uploader_name', 'users.email as uploader_email');
+    if (!b) throw notFound(`Batch ${id}`);
+    return b;
+  }
+
+  function present(b: Record<string, any>) {
+    const live = progress.get(b.id);
+    const proposal = parseJson<Proposal | null>(b.proposal_json, null);
+    return {
+      id: b.id,
+      state: b.state as BatchState,
+      filename: b.filename,
+      sizeBytes: Number(b.size_bytes),
+      sha256: b.sha256,
+      instrument: b.instrument,
+      uploadedBy: { id: b.uploaded_by, name: b.uploader_name, email: b.uploader_email },
+      createdAt: b.created_at,
+      updatedAt: b.updated_at,
+      counts: parseJson<BatchCounts>(b.counts_json, ZERO_COUNTS),
+      progress: { bytesDone: live?.bytesDone ?? Number(b.bytes_done), bytesTotal: Number(b.size_bytes), rowsDone: live?.rowsDone ?? Number(b.rows_done) },
+      mapping: parseJson<ColumnMapping | null>(b.mapping_json, null),
+      proposal: b.state === 'needs_mapping' && proposal ? { headers: proposal.headers, mapping: proposal.mapping, ambiguous: proposal.ambiguous, unmapped: proposal.unmapped, missing: proposal.missing, preview: proposal.preview } : null,
+      failure: b.failure ?? null,
+    };
+  }
+  type Batch = ReturnType<typeof present>;
+
+  function assertCanSee(user: SessionUser, b: { uploaded_by: number }) {
+    if (hasRole(user, ['curator'])) return;
+    if (user.role === 'observer' && b.uploaded_by === user.id) return;
+    // modelers read approved data only; other observers' batches do not exist for them
+    throw notFound('Batch');
+  }
+
+  async function resolveInstrument(code: string | undefined | null): Promise<string | null> {
+    if (!code) return null;
+    const inst = await db('instruments').whereRaw('lower(code) = ?', [code.trim().toLowerCase()]).first();
+    if (!inst) {
+      const known = (await db('instruments').pluck('code')).join(', ');
+      throw badRequest(`Unknown instrument "${code}". Registered instruments: ${known}.`, { fields: [{ field: 'instrument', message: `expected one of ${known}` }] });
+    }
+    return inst.code;
+  }
+
+  /** Read the whole stored file and write every row, star and measurement in one transaction. */
+  async function process(batchId: number): Promise<void> {
+    const b = await db('batches').where({ id: batchId }).first();
+    const proposal = parseJson<Proposal | null>(b.proposal_json, null);
+    const mapping = parseJson<ColumnMapping>(b.mapping_json, {});
+    if (!proposal) throw new Error(`batch ${batchId} has no header information`);
+    const headers = proposal.headers;
+    const indexOf = new Map(Object.entries(mapping).map(([canon, header]) => [canon, headers.indexOf(header)]));
+    const headerOf = (canon: string) => mapping[canon] ?? canon;
+    const instruments = new Map<string, { code: string; bands: string[] }>(
+      (await db('instruments').select('code', 'bands')).map((i) => [String(i.code).toLowerCase(), { code: i.code, bands: String(i.bands).split(',') }]),
+    );
+    progress.set(batchId, { bytesDone: 0, rowsDone: 0 });
+    const now = new Date().toISOString();
+    try {
+      await db.transaction(async (trx) => {
+        const matcher = new CrossMatcher(trx, opts.crossmatchArcsec);
+        let nextStarId = (await maxId(trx, 'stars')) + 1;
+        let nextRowId = (await maxId(trx, 'batch_rows')) + 1;
+        let nextMeasId = (await maxId(trx, 'measurements')) + 1;
+        const counts: BatchCounts = { ...ZERO_COUNTS };
+        const matched = new Set<number>();
+        // measurements already known per star|band|instrument (catalog and this batch)
+        const known = new Map<string, { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number }[]>();
+        const loadedStars = new Set<number>();
+
+        for await (const chunk of readCsvRows(b.stored_path, proposal.delimiter, (bytes) => {
+          const p = progress.get(batchId);
+          if (p) p.bytesDone = bytes;
+        })) {
+          // 1. parse and check each row
+          const parsed = chunk.map((rec) => {
+            const values: Record<string, string> = {};
+            headers.forEach((h, i) => (values[h] = rec.fields[i] ?? ''));
+            const text: Record<string, string | undefined> = {};
+            for (const [canon, idx] of indexOf) text[canon] = idx >= 0 ? rec.fields[idx] : undefined;
+            const errors: RowIssue[] = [];
+            if (rec.fields.length !== headers.length && !(rec.fields.length > headers.length && rec.fields.slice(headers.length).every((f) => f === ''))) {
+              errors.push({ column: '(row)', field: '(row)', message: `expected ${headers.length} fields as in the header line, found ${rec.fields.length}` });
+            }
+            const res = normaliseRow(text, headerOf, { instrument: b.instrument });
+            errors.push(...res.errors);
+            if (res.row) {
+              const inst = instruments.get(res.row.instrument.toLowerCase());
+              if (!inst) errors.push({ column: headerOf('instrument'), field: 'instrument', value: res.row.instrument, message: `unknown instrument; registered: ${[...instruments.values()].map((i) => i.code).join(', ')}` });
+              else {
+                res.row.instrument = inst.code;
+                if (!inst.bands.includes(res.row.band)) errors.push({ column: headerOf('band'), field: 'band', value: res.row.band, message: `${inst.code} observes in ${inst.bands.join(', ')} only` });
+              }
+            }
+            return { rec, values, row: errors.length ? null : res.row, errors, warnings: res.warnings };
+          });
+
+          // 2. cross-match the good rows against the catalog (one prefetch per chunk)
+          const positions = parsed.map((p) => {
+            if (!p.row) return null;
+            if (p.row.ra_deg !== undefined) return { raDeg: p.row.ra_deg, decDeg: p.row.dec_deg! };
+            const { derived } = deriveMeasurement(p.row); // galactic input: convert position once
+            return { raDeg: derived.ra_deg, decDeg: derived.dec_deg };
+          });
+          await matcher.prefetch(parsed.flatMap((p, i) => (p.row && positions[i] ? [{ sourceId: p.row.source_id, ...positions[i]! }] : [])));
+
+          const newStars: Record<string, unknown>[] = [];
+          const rowsOut: Record<string, unknown>[] = [];
+          const measOut: Record<string, unknown>[] = [];
+          const toLoad = new Set<number>();
+          const matches = parsed.map((p, i) => {
+            if (!p.row) return null;
+            const m = matcher.match({ sourceId: p.row.source_id, ...positions[i]! });
+            if (m.kind === 'source_id' || m.kind === 'position') if (m.star.id > 0 && !loadedStars.has(m.star.id)) toLoad.add(m.star.id);
+            return m;
+          });
+          // existing measurements of the matched catalog stars, for de-duplication
+          const ids = [...toLoad];
+          for (let i = 0; i < ids.length; i += 900) {
+            const rows = await trx('measurements').whereIn('star_id', ids.slice(i, i + 900)).select('id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err');
+            for (const r of rows) {
+              const k = `${r.star_id}|${r.band}|${r.instrument}`;
+              known.set(k, [...(known.get(k) ?? []), r]);
+            }
+          }
+          for (const id of ids) loadedStars.add(id);
+
+          // 3. derive, de-duplicate, build rows
+          parsed.forEach((p, i) => {
+            counts.rows++;
+            const rowId = nextRowId++;
+            const base = { id: rowId, batch_id: batchId, line: p.rec.line, values_json: JSON.stringify(p.values), errors_json: null as string | null, warnings_json: null as string | null, candidates_json: null as string | null, star_match: null as string | null, star_id: null as number | null, measurement_id: null as number | null, duplicate_of: null as number | null };
+            const m = matches[i];
+            if (!p.row || !m) {
+              counts.rejected++;
+              rowsOut.push({ ...base, state: 'rejected', errors_json: JSON.stringify(p.errors), warnings_json: p.warnings.length ? JSON.stringify(p.warnings) : null });
+              return;
+            }
+            let star: StarRef | null = null;
+            if (m.kind === 'source_id' || m.kind === 'position') {
+              star = m.star;
+              base.star_match = m.kind;
+              if (star.id > 0) matched.add(star.id);
+            } else if (m.kind === 'none') {
+              const pos = positions[i]!;
+              star = {
+                id: nextStarId++, name: p.row.name ?? designation(pos.raDeg, pos.decDeg), source_id: p.row.source_id ?? null,
+                ra_deg: pos.raDeg, dec_deg: pos.decDeg, parallax_mas: p.row.parallax_mas ?? null, parallax_err_mas: p.row.parallax_err_mas ?? null,
+                hpx15: ang2pixNest(INDEX_NSIDE, pos.raDeg, pos.decDeg),
+              };
+              base.star_match = 'new';
+              const g = icrsToGalactic(pos.raDeg, pos.decDeg);
+              newStars.push({ id: star.id, name: star.name, source_id: star.source_id, ra_deg: star.ra_deg, dec_deg: star.dec_deg, glon_deg: g.lDeg, glat_deg: g.bDeg, parallax_mas: star.parallax_mas, parallax_err_mas: star.parallax_err_mas, hpx15: star.hpx15, created_at: now, created_by: b.uploaded_by });
+              matcher.remember({ ...star, id: -star.id }); // negative: created in this batch
+              counts.newStars++;
+            }
+            const fallback = star && star.parallax_mas !== null && star.parallax_err_mas !== null ? { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas } : null;
+            const { derived, warnings } = deriveMeasurement(p.row, fallback);
+            const allWarnings = [...p.warnings, ...warnings.map((w) => ({ ...w, column: headerOf(w.field) }))];
+            if (allWarnings.length) counts.warnings++;
+            base.warnings_json = allWarnings.length ? JSON.stringify(allWarnings) : null;
+            const measId = nextMeasId++;
+            const starId = star ? Math.abs(star.id) : null;
+            base.star_id = starId;
+            let state: RowState = 'accepted';
+            let measState = 'pending';
+            if (m.kind === 'ambiguous') {
+              state = 'ambiguous';
+              measState = 'ambiguous';
+              base.candidates_json = JSON.stringify(m.candidates.map((c) => ({ id: Math.abs(c.star.id), name: c.star.name, sourceId: c.star.source_id, separationArcsec: Number(c.separationArcsec.toFixed(3)) })));
+              counts.ambiguous++;
+            } else {
+              const key = `${starId}|${derived.band}|${derived.instrument}`;
+              const list = known.get(key) ?? [];
+              const sameEpoch = list.find((k) => (k.mjd === null && derived.mjd === null) || (k.mjd !== null && derived.mjd !== null && Math.abs(k.mjd - derived.mjd) <= opts.mjdToleranceDays));
+              if (sameEpoch) {
+                const identical = same(sameEpoch.q, derived.q) && same(sameEpoch.u, derived.u) && same(sameEpoch.q_err, derived.q_err) && same(sameEpoch.u_err, derived.u_err);
+                base.duplicate_of = sameEpoch.id;
+                if (identical) {
+                  counts.duplicates++;
+                  rowsOut.push({ ...base, state: 'duplicate' });
+                  return;
+                }
+                state = 'conflict';
+                measState = 'conflict';
+                counts.conflicts++;
+              } else counts.accepted++;
+              list.push({ id: measId, mjd: derived.mjd, q: derived.q, u: derived.u, q_err: derived.q_err, u_err: derived.u_err });
+              known.set(key, list);
+            }
+            base.measurement_id = measId;
+            rowsOut.push({ ...base, state });
+            measOut.push(measurementRecord(measId, starId, batchId, rowId, measState, derived, now, state === 'conflict' ? base.duplicate_of : null));
+          });
+          await bulkInsert(trx, 'stars', newStars);
+          await bulkInsert(trx, 'batch_rows', rowsOut);
+          await bulkInsert(trx, 'measurements', measOut);
+          const p = progress.get(batchId);
+          if (p) p.rowsDone = counts.rows;
+        }
+        counts.matchedStars = matched.size;
+        await syncIdSequences(trx, ['stars', 'batch_rows', 'measurements']);
+        const pr = progress.get(batchId);
+        await trx('batches').where({ id: batchId }).update({
+          state: 'awaiting_review', counts_json: JSON.stringify(counts), bytes_done: Number(b.size_bytes), rows_done: pr?.rowsDone ?? counts.rows, updated_at: new Date().toISOString(), failure: null,
+        });
+        await recordAudit(trx, { actorId: b.uploaded_by, action: 'batch.checked', entityType: 'batch', entityId: batchId, after: counts });
+      });
+    } catch (e) {
+      const message = e instanceof AppError ? e.message : `The batch could not be written (${String((e as Error).message).slice(0, 200)}); nothing of it was stored.`;
+      if (!(e instanceof AppError)) console.error(e);
+      await db.transaction(async (trx) => {
+        await trx('batches').where({ id: batchId }).update({ state: 'failed', failure: message, updated_at: new Date().toISOString() });
+        await recordAudit(trx, { actorId: b.uploaded_by, action: 'batch.failed', entityType: 'batch', entityId: batchId, after: { failure: message } });
+      });
+    } finally {
+      progress.delete(batchId);
+    }
+  }
+
+  function start(batchId: number): Promise<void> {
+    const p = process(batchId).finally(() => running.delete(batchId));
+    running.set(batchId, p);
+    return p;
+  }
+
+  return {
+    present,
+
+    /** Take an uploaded file (a temp path from multer) and make or find its batch. */
+    async upload(user: SessionUser, file: { path: string; originalname: string }, fields: { instrument?: string; mapping?: string }): Promise<{ created: boolean; batch: Batch }> {
+      let given: ColumnMapping = {};
+      if (fields.mapping !== undefined && fields.mapping !== '') {
+        try {
+          given = JSON.parse(fields.mapping);
+        } catch {
+          fs.rmSync(file.path, { force: true });
+          throw badRequest('The mapping field is not valid JSON: expected an object of canonical column → header, e.g. {"ra_deg":"RAJ2000"}.', { fields: [{ field: 'mapping', message: 'invalid JSON' }] });
+        }
+      }
+      let instrument: string | null;
+      let head;
+      try {
+        instrument = await resolveInstrument(fields.instrument);
+        head = await sniffCsv(file.path);
+        const problems = Object.keys(given).length ? checkMapping(given, head.headers) : [];
+        if (problems.length) throw badRequest(problems.map((p) => p.message).join('; '), { fields: problems });
+      } catch (e) {
+        fs.rmSync(file.path, { force: true });
+        throw e;
+      }
+      const stored = await storeUpload(file.path, config.dataDir);
+      const existing = await db('batches').where({ sha256: stored.sha256 }).first();
+      if (existing) {
+        assertCanSee(user, existing);
+        return { created: false, batch: present(await batchRow(existing.id)) };
+      }
+      const saved = instrument ? parseJson<ColumnMapping>((await db('instrument_mappings').where({ instrument }).first())?.mapping_json, {}) : {};
+      const proposal = proposeMapping(head.headers, given, saved, { batchInstrument: instrument });
+      const ready = proposal.missing.length === 0 && Object.keys(proposal.ambiguous).length === 0;
+      const now = new Date().toISOString();
+      const id = await db.transaction(async (trx) => {
+        const [id] = await trx('batches').insert({
+          uploaded_by: user.id, instrument, filename: file.originalname.slice(0, 255), size_bytes: stored.sizeBytes, sha256: stored.sha256, stored_path: stored.storedPath,
+          state: ready ? 'checking' : 'needs_mapping', mapping_json: ready ? JSON.stringify(proposal.mapping) : null,
+          proposal_json: JSON.stringify({ ...proposal, preview: head.preview, delimiter: head.delimiter }), counts_json: null, created_at: now, updated_at: now,
+        });
+        await recordAudit(trx, { actorId: user.id, action: 'batch.upload', entityType: 'batch', entityId: id, after: { filename: file.originalname, sha256: stored.sha256, sizeBytes: stored.sizeBytes, instrument } });
+        return id as number;
+      });
+      if (ready) {
+        const job = start(id);
+        if (stored.sizeBytes <= opts.syncBytes) await job;
+      }
+      return { created: true, batch: present(await batchRow(id)) };
+    },
+
+    /** A person confirms or corrects the column mapping of a batch that needs one. */
+    async confirmMapping(user: SessionUser, id: number, mapping: unknown, saveForInstrument: boolean): Promise<Batch> {
+      const b = await batchRow(id);
+      assertCanSee(user, b);
+      if (b.state !== 'needs_mapping') throw new AppError(409, 'conflict', `Batch ${id} is ${b.state}; its mapping can only be changed while it needs one.`);
+      const proposal = parseJson<Proposal>(b.proposal_json, null as never);
+      const problems = checkMapping(mapping, proposal.headers);
+      if (problems.length) throw badRequest(problems.map((p) => p.message).join('; '), { fields: problems });
+      const m = mapping as ColumnMapping;
+      const missing = missingColumns(m, { batchInstrument: b.instrument });
+      if (missing.length) throw badRequest(`The mapping still lacks: ${missing.join('; ')}.`, { fields: missing.map((x) => ({ field: 'mapping', message: `missing ${x}` })) });
+      await db.transaction(async (trx) => {
+        await trx('batches').where({ id }).update({ state: 'checking', mapping_json: JSON.stringify(m), updated_at: new Date().toISOString() });
+        await recordAudit(trx, { actorId: user.id, action: 'batch.mapping', entityType: 'batch', entityId: id, before: proposal.mapping, after: m });
+        if (saveForInstrument && b.instrument) {
+          const row = { instrument: b.instrument, mapping_json: JSON.stringify(m), saved_by: user.id, saved_at: new Date().toISOString() };
+          await trx('instrument_mappings').insert(row).onConflict('instrument').merge();
+          await recordAudit(trx, { actorId: user.id, action: 'instrument.mapping_saved', entityType: 'instrument', entityId: b.instrument, after: m });
+        }
+      });
+      const job = start(id);
+      if (Number(b.size_bytes) <= opts.syncBytes) await job;
+      return present(await batchRow(id));
+    },
+
+    async get(user: SessionUser, id: number): Promise<Batch> {
+      const b = await batchRow(id);
+      assertCanSee(user, b);
+      return present(b);
+    },
+
+    async list(user: SessionUser, q: { state?: string; limit: number; offset: number }) {
+      const base = db('batches').leftJoin('users', 'users.id', 'batches.uploaded_by');
+      if (!hasRole(user, ['curator'])) {
+        if (user.role !== 'observer') return { batches: [], total: 0 };
+        base.where('batches.uploaded_by', user.id);
+      }
+      if (q.state) base.where('batches.state', q.state);
+      const [{ n }] = await base.clone().count({ n: '*' });
+      const rows = await base.orderBy('batches.id', 'desc').limit(q.limit).offset(q.offset).select('batches.*', 'users.name as uploader_name', 'users.email as uploader_email');
+      return { batches: rows.map(present), total: Number(n) };
+    },
+
+    async rows(user: SessionUser, id: number, q: { state?: string; limit: number; offset: number }) {
+      const b = await batchRow(id);
+      assertCanSee(user, b);
+      const base = db('batch_rows').where('batch_rows.batch_id', id);
+      if (q.state) base.where('batch_rows.state', q.state);
+      const [{ n }] = await base.clone().count({ n: '*' });
+      const rows = await base
+        .leftJoin('measurements', 'measurements.batch_row_id', 'batch_rows.id')
+        .leftJoin('stars', 'stars.id', 'batch_rows.star_id')
+        .orderBy('batch_rows.line')
+        .limit(q.limit)
+        .offset(q.offset)
+        .select('batch_rows.*', 'stars.name as star_name', 'stars.source_id as star_source_id', 'measurements.id as m_id', ...DERIVED_COLUMNS.map((c) => `measurements.${c} as m_${c}`));
+      return { rows: rows.map(presentRow), total: Number(n) };
+    },
+
+    async errorsCsv(user: SessionUser, id: number): Promise<string> {
+      const b = await batchRow(id);
+      assertCanSee(user, b);
+      const rows = await db('batch_rows').where({ batch_id: id }).whereNotNull('errors_json').orderBy('line').select('line', 'state', 'errors_json');
+      const esc = (s: unknown) => {
+        const t = s === undefined || s === null ? '' : String(s);
+        return /[",\n\r]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t;
+      };
+      const lines = ['line,state,column,field,value,message'];
+      for (const r of rows) for (const e of JSON.parse(r.errors_json) as RowIssue[]) lines.push([r.line, r.state, e.column, e.field, e.value, e.message].map(esc).join(','));
+      return lines.join('\r\n') + '\r\n';
+    },
+
+    async raw(user: SessionUser, id: number) {
+      const b = await batchRow(id);
+      assertCanSee(user, b);
+      return { path: b.stored_path as string, filename: b.filename as string };
+    },
+
+    /** After a restart: batches left mid-check were rolled back; check them again. */
+    async resumeInterrupted(): Promise<number> {
+      const stuck = await db('batches').where({ state: 'checking' }).pluck('id');
+      for (const id of stuck) void start(id);
+      return stuck.length;
+    },
+
+    /** Wait for background checks (tests, shutdown). */
+    async idle(): Promise<void> {
+      await Promise.all([...running.values()]);
+    },
+  };
+}
+export type IntakeService = ReturnType<typeof intakeService>;
+
+const DERIVED_COLUMNS = ['band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'theta_gal_deg', 'glon_deg', 'glat_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'distance_method', 'state', 'flags_json'] as const;
+
+function measurementRecord(id: number, starId: number | null, batchId: number, rowId: number, state: string, d: Derived, now: string, conflictsWith: number | null) {
+  const { flags, ...values } = d;
+  return { id, star_id: starId, batch_id: batchId, batch_row_id: rowId, state, version: 1, ...values, flags_json: flags.length ? JSON.stringify(flags) : null, conflicts_with: conflictsWith, created_at: now, updated_at: now };
+}
+
+function presentRow(r: Record<string, any>) {
+  const derived = r.m_id
+    ? Object.fromEntries(DERIVED_COLUMNS.filter((c) => c !== 'state' && c !== 'flags_json').map((c) => [c, r[`m_${c}`]]))
+    : null;
+  return {
+    id: r.id,
+    line: r.line,
+    state: r.state as RowState,
+    errors: r.errors_json ? JSON.parse(r.errors_json) : [],
+    warnings: r.warnings_json ? JSON.parse(r.warnings_json) : [],
+    values: JSON.parse(r.values_json),
+    star: r.star_id ? { id: r.star_id, name: r.star_name, sourceId: r.star_source_id, match: r.star_match } : null,
+    candidates: r.candidates_json ? JSON.parse(r.candidates_json) : [],
+    measurementId: r.m_id ?? null,
+    measurementState: r.m_state ?? null,
+    duplicateOf: r.duplicate_of ?? null,
+    flags: r.m_flags_json ? JSON.parse(r.m_flags_json) : [],
+    derived,
+  };
+}

@@ -1,0 +1,299 @@
+/**
+ * Cost of one segment of stars that share a mean (q̄, ū) and an intrinsic scatter s ≥ 0.
+ *
+ * Model: q_i ~ N(q̄, σq_i² + s²), u_i ~ N(ū, σu_i² + s²), independent; the same s for q and u
+ * (turbulence scatters both Stokes parameters alike). Cost = −2·max ln L over (q̄, ū, s).
+ *
+ * With t = s², for fixed t the means are the weighted means (w = 1/(σ² + t)) and the profile is
+ *   f(t) = Σ ln(2π(σq_i² + t)) + Σ w_i (q_i − q̄)² + (same for u),
+ *   f'(t) = Σ w_i − Σ w_i² r_i²                                   (envelope theorem),
+ *   f''(t) = −Σ w_i² + 2 Σ w_i³ r_i² − 2 (Σ w_i² r_i)² / Σ w_i      (per Stokes parameter).
+ * This is the maximum-likelihood random-effects problem of meta-analysis, whose profile can have
+ * more than one local minimum when the σ_i differ (seen in about 1 % of random segments with
+ * errors spread over a factor 30, t = 0 being a local minimum while a deeper interior one
+ * exists). So the search is global: f is sampled on t = 0 and a √2-geometric grid from
+ * min σ²/16 up to R², R = the larger of the q and u ranges — no stationary point lies beyond
+ * R² because there every w_i r_i² < 1, so f' > 0 — and every grid minimum within 1 of the best
+ * is polished by safeguarded Newton on f' (bisection when a step leaves the bracket). When all
+ * variances in the segment are equal the profile is unimodal and the minimum is closed form:
+ * σ² + t = (SS_q + SS_u)/(2m), t ≥ 0.
+ */
+
+const LN_2PI = Math.log(2 * Math.PI);
+/** Grid ratio between successive t samples. */
+const GRID_RATIO = Math.SQRT2;
+/** Grid minima whose sampled cost is within this of the best sample are all polished. */
+const POLISH_WINDOW = 1;
+const MAX_GRID = 160;
+
+/** Layout of a fit result vector. */
+export const FIT_COST = 0;
+export const FIT_SCATTER_VAR = 1;
+export const FIT_MEAN_Q = 2;
+export const FIT_MEAN_U = 3;
+export const FIT_VAR_MEAN_Q = 4;
+export const FIT_VAR_MEAN_U = 5;
+export const FIT_SIZE = 6;
+
+export interface SegmentFit {
+  /** −2 max ln L. */
+  cost: number;
+  /** Intrinsic scatter s (fraction). */
+  scatter: number;
+  meanQ: number;
+  meanU: number;
+  /** Variance of the segment means: 1/Σ 1/(σ_i² + s²). */
+  varMeanQ: number;
+  varMeanU: number;
+}
+
+// Scratch for the grid (one segment at a time; the module is single-threaded per realm).
+const gridT = new Float64Array(MAX_GRID + 2);
+const gridF = new Float64Array(MAX_GRID + 2);
+
+// Results of the last evaluate() call.
+let evD1 = 0;
+let evD2 = 0;
+
+/**
+ * f(t) without the 2m ln 2π constant; with derivs, also sets evD1 = f'(t), evD2 = f''(t).
+ * Values are shifted by (q0, u0) — a star of the segment — to keep the sums well conditioned.
+ */
+function evaluate(
+  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
+  start: number, end: number, t: number, q0: number, u0: number, derivs: boolean,
+): number {
+  let wq = 0, sq = 0, sqq = 0, wu = 0, su = 0, suu = 0;
+  let w2q = 0, s2q = 0, s2qq = 0, w3q = 0, s3q = 0, s3qq = 0;
+  let w2u = 0, s2u = 0, s2uu = 0, w3u = 0, s3u = 0, s3uu = 0;
+  // Σ ln(v + t) as logs of chunked products of ratios to a reference (one log per 8 stars).
+  const ref = vq[start] + t;
+  const invRef = 1 / ref;
+  let logSum = 0;
+  let prod = 1;
+  let k = 0;
+  for (let i = start; i < end; i++) {
+    const aq = vq[i] + t;
+    const au = vu[i] + t;
+    const a = 1 / aq;
+    const b = 1 / au;
+    const x = q[i] - q0;
+    const y = u[i] - u0;
+    const ax = a * x;
+    const by = b * y;
+    wq += a; sq += ax; sqq += ax * x;
+    wu += b; su += by; suu += by * y;
+    if (derivs) {
+      const a2 = a * a, b2 = b * b;
+      w2q += a2; s2q += a2 * x; s2qq += a2 * x * x;
+      w2u += b2; s2u += b2 * y; s2uu += b2 * y * y;
+      const a3 = a2 * a, b3 = b2 * b;
+      w3q += a3; s3q += a3 * x; s3qq += a3 * x * x;
+      w3u += b3; s3u += b3 * y; s3uu += b3 * y * y;
+    }
+    prod *= aq * invRef * (au * invRef);
+    if (++k === 8) {
+      logSum += Math.log(prod);
+      prod = 1;
+      k = 0;
+    }
+  }
+  if (k !== 0) logSum += Math.log(prod);
+  const m2 = 2 * (end - start);
+  const mq = sq / wq;
+  const mu = su / wu;
+  const chi2 = (sqq - sq * mq) + (suu - su * mu);
+  const f = logSum + m2 * Math.log(ref) + (chi2 > 0 ? chi2 : 0);
+  if (derivs) {
+    const w2r2q = s2qq - 2 * mq * s2q + mq * mq * w2q;
+    const w2r2u = s2uu - 2 * mu * s2u + mu * mu * w2u;
+    const w2rq = s2q - mq * w2q;
+    const w2ru = s2u - mu * w2u;
+    const w3r2q = s3qq - 2 * mq * s3q + mq * mq * w3q;
+    const w3r2u = s3uu - 2 * mu * s3u + mu * mu * w3u;
+    evD1 = wq - w2r2q + (wu - w2r2u);
+    evD2 = -w2q + 2 * w3r2q - (2 * w2rq * w2rq) / wq + (-w2u + 2 * w3r2u - (2 * w2ru * w2ru) / wu);
+  }
+  return f;
+}
+
+/** Local minimum of f in [lo, hi] starting from x0, by safeguarded Newton on f'. Returns t. */
+function polish(
+  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
+  start: number, end: number, q0: number, u0: number,
+  lo: number, hi: number, x0: number, tScale: number,
+): number {
+  evaluate(q, u, vq, vu, start, end, lo, q0, u0, true);
+  const gLo = evD1;
+  if (lo === 0 && gLo >= 0) return 0; // boundary minimum at s = 0
+  evaluate(q, u, vq, vu, start, end, hi, q0, u0, true);
+  const gHi = evD1;
+  if (!(gLo < 0 && gHi > 0)) return golden(q, u, vq, vu, start, end, q0, u0, lo, hi);
+  let x = x0 > lo && x0 < hi ? x0 : 0.5 * (lo + hi);
+  for (let iter = 0; iter < 100; iter++) {
+    evaluate(q, u, vq, vu, start, end, x, q0, u0, true);
+    const g = evD1;
+    const h = evD2;
+    if (g === 0) return x;
+    if (g < 0) lo = x; else hi = x;
+    let next = h > 0 ? x - g / h : NaN;
+    if (!(next > lo && next < hi)) next = lo > 0 ? Math.sqrt(lo * hi) : 0.5 * (lo + hi);
+    const step = Math.abs(next - x);
+    x = next;
+    if (step <= 1e-13 * (x + tScale) || hi - lo <= 1e-13 * (hi + tScale)) break;
+  }
+  return x;
+}
+
+/** Golden-section fallback on f over [lo, hi] (used only when f' does not bracket). */
+function golden(
+  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
+  start: number, end: number, q0: number, u0: number, lo: number, hi: number,
+): number {
+  const r = (Math.sqrt(5) - 1) / 2;
+  let a = lo, b = hi;
+  let c = b - r * (b - a), d = a + r * (b - a);
+  let fc = evaluate(q, u, vq, vu, start, end, c, q0, u0, false);
+  let fd = evaluate(q, u, vq, vu, start, end, d, q0, u0, false);
+  for (let i = 0; i < 80; i++) {
+    if (fc < fd) { b = d; d = c; fd = fc; c = b - r * (b - a); fc = evaluate(q, u, vq, vu, start, end, c, q0, u0, false); }
+    else { a = c; c = d; fc = fd; d = a + r * (b - a); fd = evaluate(q, u, vq, vu, start, end, d, q0, u0, false); }
+  }
+  const x = 0.5 * (a + b);
+  const fx = evaluate(q, u, vq, vu, start, end, x, q0, u0, false);
+  const fl = evaluate(q, u, vq, vu, start, end, lo, q0, u0, false);
+  return fl <= fx ? lo : x;
+}
+
+/**
+ * Fits stars [start, end) of the given arrays (q, u and their variances σ²) and writes
+ * cost, s², q̄, ū, var q̄, var ū into out[offset .. offset+6). Allocation-free.
+ */
+export function fitSegmentInto(
+  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
+  start: number, end: number, out: Float64Array, offset = 0,
+): void {
+  const m = end - start;
+  if (m <= 0) throw new RangeError(`segment [${start}, ${end}) is empty`);
+  const q0 = q[start];
+  const u0 = u[start];
+  let qMin = q0, qMax = q0, uMin = u0, uMax = u0;
+  let vMin = Math.min(vq[start], vu[start]);
+  let vMax = Math.max(vq[start], vu[start]);
+  let sumQ = 0, sumU = 0;
+  for (let i = start; i < end; i++) {
+    const x = q[i], y = u[i];
+    if (x < qMin) qMin = x; else if (x > qMax) qMax = x;
+    if (y < uMin) uMin = y; else if (y > uMax) uMax = y;
+    const a = vq[i], b = vu[i];
+    if (a < vMin) vMin = a; if (a > vMax) vMax = a;
+    if (b < vMin) vMin = b; if (b > vMax) vMax = b;
+    sumQ += x - q0; sumU += y - u0;
+  }
+  const range = Math.max(qMax - qMin, uMax - uMin);
+  const tHi = range * range;
+  let t = 0;
+  if (tHi > 0) {
+    if (vMax - vMin <= 1e-12 * vMax) {
+      // Equal variances: closed form.
+      const mq = sumQ / m, mu = sumU / m;
+      let ss = 0;
+      for (let i = start; i < end; i++) {
+        const dx = q[i] - q0 - mq, dy = u[i] - u0 - mu;
+        ss += dx * dx + dy * dy;
+      }
+      const v = ss / (2 * m) - vMin;
+      t = v > 0 ? v : 0;
+    } else {
+      t = globalMinimum(q, u, vq, vu, start, end, q0, u0, vMin, tHi);
+    }
+  }
+  // Final evaluation at t: cost and means.
+  let wq = 0, sq = 0, wu = 0, su = 0;
+  for (let i = start; i < end; i++) {
+    const a = 1 / (vq[i] + t);
+    const b = 1 / (vu[i] + t);
+    wq += a; sq += a * (q[i] - q0);
+    wu += b; su += b * (u[i] - u0);
+  }
+  const f = evaluate(q, u, vq, vu, start, end, t, q0, u0, false);
+  out[offset + FIT_COST] = f + 2 * m * LN_2PI;
+  out[offset + FIT_SCATTER_VAR] = t;
+  out[offset + FIT_MEAN_Q] = q0 + sq / wq;
+  out[offset + FIT_MEAN_U] = u0 + su / wu;
+  out[offset + FIT_VAR_MEAN_Q] = 1 / wq;
+  out[offset + FIT_VAR_MEAN_U] = 1 / wu;
+}
+
+function globalMinimum(
+  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
+  start: number, end: number, q0: number, u0: number, vMin: number, tHi: number,
+): number {
+  // Grid: 0, then vMin/16·√2^k below tHi, then tHi.
+  let g = 0;
+  gridT[g++] = 0;
+  let tk = vMin / 16;
+  while (tk < tHi && g < MAX_GRID) { gridT[g++] = tk; tk *= GRID_RATIO; }
+  gridT[g++] = tHi;
+  let best = 0;
+  for (let k = 0; k < g; k++) {
+    gridF[k] = evaluate(q, u, vq, vu, start, end, gridT[k], q0, u0, false);
+    if (gridF[k] < gridF[best]) best = k;
+  }
+  const fBest = gridF[best];
+  let tBest = 0;
+  let fFound = Infinity;
+  for (let k = 0; k < g; k++) {
+    const fk = gridF[k];
+    if (fk > fBest + POLISH_WINDOW) continue;
+    const left = k === 0 ? Infinity : gridF[k - 1];
+    const right = k === g - 1 ? Infinity : gridF[k + 1];
+    if (!(fk <= left && fk <= right)) continue;
+    const lo = k === 0 ? 0 : gridT[k - 1];
+    const hi = k === g - 1 ? gridT[k] : gridT[k + 1];
+    const tk2 = k === 0 ? (g > 1 ? polish(q, u, vq, vu, start, end, q0, u0, 0, gridT[1], 0, vMin) : 0)
+      : polish(q, u, vq, vu, start, end, q0, u0, lo, hi, gridT[k], vMin);
+    const fk2 = evaluate(q, u, vq, vu, start, end, tk2, q0, u0, false);
+    const fUse = fk2 <= fk ? fk2 : fk;
+    const tUse = fk2 <= fk ? tk2 : gridT[k];
+    if (fUse < fFound) { fFound = fUse; tBest = tUse; }
+  }
+  return tBest;
+}
+
+const scratch = new Float64Array(FIT_SIZE);
+
+/** Convenience wrapper returning an object (tests, API); the fit loop uses fitSegmentInto. */
+export function fitSegment(
+  q: ArrayLike<number>, u: ArrayLike<number>, qErr: ArrayLike<number>, uErr: ArrayLike<number>,
+): SegmentFit {
+  const n = q.length;
+  const fq = Float64Array.from(q), fu = Float64Array.from(u);
+  const vq = new Float64Array(n), vu = new Float64Array(n);
+  for (let i = 0; i < n; i++) { vq[i] = qErr[i] * qErr[i]; vu[i] = uErr[i] * uErr[i]; }
+  fitSegmentInto(fq, fu, vq, vu, 0, n, scratch, 0);
+  return {
+    cost: scratch[FIT_COST],
+    scatter: Math.sqrt(scratch[FIT_SCATTER_VAR]),
+    meanQ: scratch[FIT_MEAN_Q],
+    meanU: scratch[FIT_MEAN_U],
+    varMeanQ: scratch[FIT_VAR_MEAN_Q],
+    varMeanU: scratch[FIT_VAR_MEAN_U],
+  };
+}
+
+/** −2 ln L of a segment at given (q̄, ū, s) — the objective itself, for checks. */
+export function segmentNegTwoLogLikelihood(
+  q: ArrayLike<number>, u: ArrayLike<number>, qErr: ArrayLike<number>, uErr: ArrayLike<number>,
+  meanQ: number, meanU: number, scatter: number,
+): number {
+  let f = 0;
+  const t = scatter * scatter;
+  for (let i = 0; i < q.length; i++) {
+    const a = qErr[i] * qErr[i] + t;
+    const b = uErr[i] * uErr[i] + t;
+    f += Math.log(2 * Math.PI * a) + ((q[i] - meanQ) ** 2) / a;
+    f += Math.log(2 * Math.PI * b) + ((u[i] - meanU) ** 2) / b;
+  }
+  return f;
+}

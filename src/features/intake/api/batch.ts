@@ -1,0 +1,18 @@
+import { queryOptions, useQuery } from '@tanstack/react-query';
+import { api } from '../../../lib/apiClient';
+import type { Batch, BatchState } from '../types';
+
+/** States in which the server is still working on the file; the page polls while in them. */
+export const WORKING_STATES: readonly BatchState[] = ['received', 'checking'];
+export const POLL_MS = 700;
+
+export const getBatch = (id: number) => api.get<Batch>(`/batches/${id}`);
+
+export const batchQueryOptions = (id: number) =>
+  queryOptions({
+    queryKey: ['intake', 'batch', id],
+    queryFn: () => getBatch(id),
+    refetchInterval: (q) => (q.state.data && WORKING_STATES.includes(q.state.data.state) ? POLL_MS : false),
+  });
+
+export const useBatch = (id: number | null) => useQuery({ ...batchQueryOptions(id ?? 0), enabled: id !== null && id > 0 });

@@ -1,0 +1,7 @@
+import { queryOptions, useQuery } from '@tanstack/react-query';
+import { api } from '../../../lib/apiClient';
+import type { Instrument } from '../types';
+
+export const getInstruments = () => api.get<{ instruments: Instrument[] }>('/instruments');
+export const instrumentsQueryOptions = () => queryOptions({ queryKey: ['instruments'], queryFn: getInstruments, staleTime: 10 * 60_000 });
+export const useInstruments = () => useQuery(instrumentsQueryOptions());

@@ -1,0 +1,63 @@
+import { Card, Notice } from '../../../components/ui/primitives';
+import { useBatch } from '../api/batch';
+import { useIntakeColumns } from '../api/columns';
+import { formatBytes, formatCount } from '../format';
+import type { Batch } from '../types';
+import { BatchCounts } from './BatchCounts';
+import { BatchHeader } from './BatchHeader';
+import { BatchRowsTable } from './BatchRowsTable';
+import { MappingEditor } from './MappingEditor';
+import { ProgressBar } from './ProgressBar';
+
+/** One batch: its header and counts, then whatever its state calls for. */
+export function BatchDetail({ id, seenBefore }: { id: number; seenBefore: boolean }) {
+  const q = useBatch(id);
+  if (q.isPending) return <p className="text-sm text-muted">Loading…</p>;
+  if (q.error) return <Notice tone="bad">{q.error.message}</Notice>;
+  const batch = q.data;
+  return (
+    <div className="space-y-6">
+      <BatchHeader batch={batch} />
+      {seenBefore && (
+        <Notice>
+          These exact bytes were uploaded before, so no new batch was made: this is the batch from {new Date(batch.createdAt).toLocaleString()}.
+        </Notice>
+      )}
+      {batch.failure && (
+        <Notice tone="bad">
+          <span data-testid="batch-failure">{batch.failure}</span>
+        </Notice>
+      )}
+      <BatchCounts counts={batch.counts} />
+      <StateBody batch={batch} />
+    </div>
+  );
+}
+
+function StateBody({ batch }: { batch: Batch }) {
+  const columns = useIntakeColumns();
+  if (batch.state === 'received' || batch.state === 'checking') {
+    return (
+      <Card title="Checking rows">
+        <ProgressBar
+          label="Checking rows on the server"
+          done={batch.progress.bytesDone}
+          total={batch.progress.bytesTotal || null}
+          detail={`${formatCount(batch.progress.rowsDone)} rows · ${formatBytes(batch.progress.bytesDone)} of ${formatBytes(batch.progress.bytesTotal)}`}
+        />
+      </Card>
+    );
+  }
+  if (batch.state === 'needs_mapping') {
+    if (!batch.proposal) return <Notice tone="bad">This batch needs a column mapping, but the server sent no proposal to start from.</Notice>;
+    if (columns.error) return <Notice tone="bad">The list of Starveil columns could not be loaded: {columns.error.message}</Notice>;
+    if (!columns.data) return <p className="text-sm text-muted">Loading the column list…</p>;
+    return <MappingEditor key={batch.updatedAt} batch={batch} proposal={batch.proposal} columns={columns.data.columns} />;
+  }
+  if (batch.state === 'failed') return null;
+  return (
+    <Card title="Checked rows">
+      <BatchRowsTable batchId={batch.id} counts={batch.counts} />
+    </Card>
+  );
+}
