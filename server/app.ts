@@ -17,6 +17,8 @@ import { intakeRoutes } from './intake/routes.js';
 
 export interface AppDeps {
   db: Knex;
+  /** a second connection for reads that must not wait behind a long write (defaults to db) */
+  readDb?: Knex;
   config: Config;
 }
 
@@ -48,7 +50,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
 
   const auth = authService(db, { allowDemoPassword: config.allowDemoPassword });
   const pp = createPassport(auth);
-  const intake = intakeService(db, config, config.intake);
+  const intake = intakeService(db, config, config.intake, deps.readDb ?? db);
 
   const api = express.Router();
   api.use(express.json({ limit: '2mb' }));

@@ -45,11 +45,58 @@ export async function syncIdSequences(db: Knex | Knex.Transaction, tables: strin
   for (const t of tables) await db.raw(`SELECT setval(pg_get_serial_sequence(?, 'id'), COALESCE((SELECT MAX(id) FROM ??), 1))`, [t, t]);
 }
 
-/** Multi-row INSERTs in chunks that stay under the engine's bound-parameter limit. */
+type Sqlite = import('better-sqlite3').Database;
+type Statement = import('better-sqlite3').Statement;
+const statementCache = new WeakMap<object, Map<string, Statement>>();
+
+/** The better-sqlite3 handle under a Knex instance or transaction (SQLite only). */
+async function sqliteHandle(db: Knex | Knex.Transaction): Promise<Sqlite> {
+  return (await (db as unknown as { client: { acquireConnection(): Promise<Sqlite> } }).client.acquireConnection()) as Sqlite;
+}
+
+async function cachedStatement(db: Knex | Knex.Transaction, sql: string): Promise<{ conn: Sqlite; stmt: Statement }> {
+  const conn = await sqliteHandle(db);
+  let cache = statementCache.get(conn);
+  if (!cache) statementCache.set(conn, (cache = new Map()));
+  let stmt = cache.get(sql);
+  if (!stmt) cache.set(sql, (stmt = conn.prepare(sql)));
+  return { conn, stmt };
+}
+
+const sqliteValue = (v: unknown) => (v === undefined ? null : typeof v === 'boolean' ? (v ? 1 : 0) : v);
+
+/**
+ * Insert many rows (all with the same keys). SQLite: one prepared statement run per row on the
+ * transaction's own connection (much faster than compound multi-row INSERTs); other engines:
+ * multi-row INSERTs in chunks under the bound-parameter limit.
+ */
 export async function bulkInsert(db: Knex | Knex.Transaction, table: string, rows: Record<string, unknown>[]): Promise<void> {
   if (!rows.length) return;
-  const perRow = Object.keys(rows[0]).length;
-  // SQLite compiles a multi-row insert as a compound SELECT, limited to 500 terms
-  const chunk = Math.max(1, Math.min(isSqlite(db as Knex) ? 450 : 5000, Math.floor(MAX_BIND_PARAMS / perRow)));
+  const cols = Object.keys(rows[0]);
+  if (isSqlite(db as Knex)) {
+    const { stmt } = await cachedStatement(db, `INSERT INTO "${table}" (${cols.map((c) => `"${c}"`).join(',')}) VALUES (${cols.map(() => '?').join(',')})`);
+    const vals = new Array(cols.length);
+    for (const r of rows) {
+      for (let i = 0; i < cols.length; i++) vals[i] = sqliteValue(r[cols[i]]);
+      stmt.run(vals);
+    }
+    return;
+  }
+  const chunk = Math.max(1, Math.min(5000, Math.floor(MAX_BIND_PARAMS / cols.length)));
   for (let i = 0; i < rows.length; i += chunk) await db(table).insert(rows.slice(i, i + chunk));
+}
+
+/**
+ * SELECT cols FROM table WHERE column IN (values), for long value lists. SQLite: one prepared
+ * statement over json_each(?); other engines: chunked whereIn.
+ */
+export async function selectWhereIn<T = Record<string, unknown>>(db: Knex | Knex.Transaction, table: string, column: string, values: (string | number)[], cols: string[]): Promise<T[]> {
+  if (!values.length) return [];
+  if (isSqlite(db as Knex)) {
+    const { stmt } = await cachedStatement(db, `SELECT ${cols.map((c) => `"${c}"`).join(',')} FROM "${table}" WHERE "${column}" IN (SELECT value FROM json_each(?))`);
+    return stmt.all(JSON.stringify(values)) as T[];
+  }
+  const out: T[] = [];
+  for (let i = 0; i < values.length; i += 5000) out.push(...((await db(table).whereIn(column, values.slice(i, i + 5000)).select(cols)) as T[]));
+  return out;
 }

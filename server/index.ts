@@ -10,7 +10,10 @@ const config = loadConfig();
 const db = openDb(config.dbFile);
 await migrateLatest(db);
 const seeded = config.seedDemo ? await seedDemoIfEmpty(db, config) : false;
-const app = createApp({ db, config });
+const readDb = openDb(config.dbFile);
+const app = createApp({ db, readDb, config });
+const resumed = await app.services.intake.resumeInterrupted();
+if (resumed) console.log(`checking ${resumed} batch(es) again that a restart interrupted`);
 const server = app.listen(config.port, () => {
   const addr = server.address();
   const port = typeof addr === 'object' && addr ? addr.port : config.port;
@@ -22,7 +25,7 @@ const server = app.listen(config.port, () => {
 });
 
 const stop = () => {
-  server.close(() => void db.destroy().then(() => process.exit(0)));
+  server.close(() => void Promise.all([db.destroy(), readDb.destroy()]).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 3000).unref();
 };
 process.on('SIGINT', stop);

@@ -2,6 +2,7 @@ import type { Knex } from 'knex';
 import { queryDiscNest } from '../science/healpix.js';
 import { angularSeparationDeg } from '../science/separation.js';
 import { INDEX_NSIDE } from '../measurements/derive.js';
+import { selectWhereIn } from '../dialect.js';
 
 export interface StarRef {
   id: number;
@@ -25,7 +26,6 @@ export type MatchResult =
   | { kind: 'ambiguous'; candidates: { star: StarRef; separationArcsec: number }[] }
   | { kind: 'none' };
 
-const CHUNK = 900;
 
 /**
  * Ties rows to known stars: by source_id first, else by position within the tolerance. Two or
@@ -43,8 +43,11 @@ export class CrossMatcher {
     private readonly toleranceArcsec: number,
   ) {}
 
+  private pixelCache = new WeakMap<MatchQuery, number[]>();
   private pixelsFor(q: MatchQuery): number[] {
-    return queryDiscNest(INDEX_NSIDE, q.raDeg, q.decDeg, this.toleranceArcsec / 3600, true);
+    let px = this.pixelCache.get(q);
+    if (!px) this.pixelCache.set(q, (px = queryDiscNest(INDEX_NSIDE, q.raDeg, q.decDeg, this.toleranceArcsec / 3600, true)));
+    return px;
   }
 
   remember(star: StarRef): void {
@@ -56,8 +59,6 @@ export class CrossMatcher {
 
   /** Load every catalog star a chunk of queries could match, in a few IN (…) queries. */
   async prefetch(queries: MatchQuery[]): Promise<void> {
-    const sources = [...new Set(queries.map((q) => q.sourceId).filter((s): s is string => !!s && !this.loadedSources.has(s)))];
-    const pixels = [...new Set(queries.flatMap((q) => this.pixelsFor(q)).filter((p) => !this.loadedPixels.has(p)))];
     const cols = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15'];
     const seen = new Set<number>();
     const add = (rows: StarRef[]) => {
@@ -68,9 +69,16 @@ export class CrossMatcher {
         this.remember({ ...r, hpx15: Number(r.hpx15) });
       }
     };
-    for (let i = 0; i < sources.length; i += CHUNK) add(await this.db('stars').whereIn('source_id', sources.slice(i, i + CHUNK)).select(cols));
-    for (let i = 0; i < pixels.length; i += CHUNK) add(await this.db('stars').whereIn('hpx15', pixels.slice(i, i + CHUNK)).select(cols));
+    // by source_id first; only rows whose id is unknown need the positional look-up
+    const sources = [...new Set(queries.map((q) => q.sourceId).filter((s): s is string => !!s && !this.loadedSources.has(s)))];
+    add(await selectWhereIn<StarRef>(this.db, 'stars', 'source_id', sources, cols));
     for (const s of sources) this.loadedSources.add(s);
+    const pixels = new Set<number>();
+    for (const q of queries) {
+      if (q.sourceId && this.bySource.has(q.sourceId)) continue;
+      for (const p of this.pixelsFor(q)) if (!this.loadedPixels.has(p)) pixels.add(p);
+    }
+    add(await selectWhereIn<StarRef>(this.db, 'stars', 'hpx15', [...pixels], cols));
     for (const p of pixels) this.loadedPixels.add(p);
   }
 

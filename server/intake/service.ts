@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import type { Config } from '../config.js';
-import { bulkInsert, maxId, syncIdSequences } from '../dialect.js';
+import { bulkInsert, maxId, selectWhereIn, syncIdSequences } from '../dialect.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import type { SessionUser } from '../auth/roles.js';
 import { hasRole } from '../auth/roles.js';
@@ -51,12 +51,13 @@ const parseJson = <T>(s: string | null | undefined, fallback: T): T => (s ? (JSO
 /** Values equal to within floating-point noise of a CSV round trip. */
 const same = (a: number | null, b: number | null) => (a === null || b === null ? a === b : Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(a), Math.abs(b)));
 
-export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
+/** `readDb` answers reads on a second connection, so they are not queued behind a long check. */
+export function intakeService(db: Knex, config: Config, opts: IntakeOptions, readDb: Knex = db) {
   const progress = new Map<number, { bytesDone: number; rowsDone: number }>();
   const running = new Map<number, Promise<void>>();
 
-  async function batchRow(id: number) {
-    const b = await db('batches').leftJoin('users', 'users.id', 'batches.uploaded_by').where('batches.id', id).first('batches.*', 'users.name as uploader_name', 'users.email as uploader_email');
+  async function batchRow(id: number, via: Knex = readDb) {
+    const b = await via('batches').leftJoin('users', 'users.id', 'batches.uploaded_by').where('batches.id', id).first('batches.*', 'users.name as uploader_name', 'users.email as uploader_email');
     if (!b) throw notFound(`Batch ${id}`);
     return b;
   }
@@ -132,8 +133,6 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
         })) {
           // 1. parse and check each row
           const parsed = chunk.map((rec) => {
-            const values: Record<string, string> = {};
-            headers.forEach((h, i) => (values[h] = rec.fields[i] ?? ''));
             const text: Record<string, string | undefined> = {};
             for (const [canon, idx] of indexOf) text[canon] = idx >= 0 ? rec.fields[idx] : undefined;
             const errors: RowIssue[] = [];
@@ -150,7 +149,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
                 if (!inst.bands.includes(res.row.band)) errors.push({ column: headerOf('band'), field: 'band', value: res.row.band, message: `${inst.code} observes in ${inst.bands.join(', ')} only` });
               }
             }
-            return { rec, values, row: errors.length ? null : res.row, errors, warnings: res.warnings };
+            return { rec, row: errors.length ? null : res.row, errors, warnings: res.warnings };
           });
 
           // 2. cross-match the good rows against the catalog (one prefetch per chunk)
@@ -160,7 +159,8 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
             const { derived } = deriveMeasurement(p.row); // galactic input: convert position once
             return { raDeg: derived.ra_deg, decDeg: derived.dec_deg };
           });
-          await matcher.prefetch(parsed.flatMap((p, i) => (p.row && positions[i] ? [{ sourceId: p.row.source_id, ...positions[i]! }] : [])));
+          const queries = parsed.map((p, i) => (p.row && positions[i] ? { sourceId: p.row.source_id, ...positions[i]! } : null));
+          await matcher.prefetch(queries.filter((q): q is NonNullable<typeof q> => q !== null));
 
           const newStars: Record<string, unknown>[] = [];
           const rowsOut: Record<string, unknown>[] = [];
@@ -168,18 +168,17 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
           const toLoad = new Set<number>();
           const matches = parsed.map((p, i) => {
             if (!p.row) return null;
-            const m = matcher.match({ sourceId: p.row.source_id, ...positions[i]! });
+            const m = matcher.match(queries[i]!);
             if (m.kind === 'source_id' || m.kind === 'position') if (m.star.id > 0 && !loadedStars.has(m.star.id)) toLoad.add(m.star.id);
             return m;
           });
           // existing measurements of the matched catalog stars, for de-duplication
           const ids = [...toLoad];
-          for (let i = 0; i < ids.length; i += 900) {
-            const rows = await trx('measurements').whereIn('star_id', ids.slice(i, i + 900)).select('id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err');
-            for (const r of rows) {
-              const k = `${r.star_id}|${r.band}|${r.instrument}`;
-              known.set(k, [...(known.get(k) ?? []), r]);
-            }
+          for (const r of await selectWhereIn<{ id: number; star_id: number; band: string; instrument: string; mjd: number | null; q: number; u: number; q_err: number; u_err: number }>(trx, 'measurements', 'star_id', ids, ['id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err'])) {
+            const k = `${r.star_id}|${r.band}|${r.instrument}`;
+            const list = known.get(k);
+            if (list) list.push(r);
+            else known.set(k, [r]);
           }
           for (const id of ids) loadedStars.add(id);
 
@@ -187,7 +186,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
           parsed.forEach((p, i) => {
             counts.rows++;
             const rowId = nextRowId++;
-            const base = { id: rowId, batch_id: batchId, line: p.rec.line, values_json: JSON.stringify(p.values), errors_json: null as string | null, warnings_json: null as string | null, candidates_json: null as string | null, star_match: null as string | null, star_id: null as number | null, measurement_id: null as number | null, duplicate_of: null as number | null };
+            const base = { id: rowId, batch_id: batchId, line: p.rec.line, values_json: JSON.stringify(p.rec.fields), errors_json: null as string | null, warnings_json: null as string | null, candidates_json: null as string | null, star_match: null as string | null, star_id: null as number | null, measurement_id: null as number | null, duplicate_of: null as number | null };
             const m = matches[i];
             if (!p.row || !m) {
               counts.rejected++;
@@ -365,7 +364,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
     },
 
     async list(user: SessionUser, q: { state?: string; limit: number; offset: number }) {
-      const base = db('batches').leftJoin('users', 'users.id', 'batches.uploaded_by');
+      const base = readDb('batches').leftJoin('users', 'users.id', 'batches.uploaded_by');
       if (!hasRole(user, ['curator'])) {
         if (user.role !== 'observer') return { batches: [], total: 0 };
         base.where('batches.uploaded_by', user.id);
@@ -379,7 +378,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
     async rows(user: SessionUser, id: number, q: { state?: string; limit: number; offset: number }) {
       const b = await batchRow(id);
       assertCanSee(user, b);
-      const base = db('batch_rows').where('batch_rows.batch_id', id);
+      const base = readDb('batch_rows').where('batch_rows.batch_id', id);
       if (q.state) base.where('batch_rows.state', q.state);
       const [{ n }] = await base.clone().count({ n: '*' });
       const rows = await base
@@ -389,13 +388,14 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions) {
         .limit(q.limit)
         .offset(q.offset)
         .select('batch_rows.*', 'stars.name as star_name', 'stars.source_id as star_source_id', 'measurements.id as m_id', ...DERIVED_COLUMNS.map((c) => `measurements.${c} as m_${c}`));
-      return { rows: rows.map(presentRow), total: Number(n) };
+      const headers = parseJson<Proposal | null>(b.proposal_json, null)?.headers ?? [];
+      return { rows: rows.map((r) => presentRow(r, headers)), total: Number(n) };
     },
 
     async errorsCsv(user: SessionUser, id: number): Promise<string> {
       const b = await batchRow(id);
       assertCanSee(user, b);
-      const rows = await db('batch_rows').where({ batch_id: id }).whereNotNull('errors_json').orderBy('line').select('line', 'state', 'errors_json');
+      const rows = await readDb('batch_rows').where({ batch_id: id }).whereNotNull('errors_json').orderBy('line').select('line', 'state', 'errors_json');
       const esc = (s: unknown) => {
         const t = s === undefined || s === null ? '' : String(s);
         return /[",\n\r]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t;
@@ -433,7 +433,7 @@ function measurementRecord(id: number, starId: number | null, batchId: number, r
   return { id, star_id: starId, batch_id: batchId, batch_row_id: rowId, state, version: 1, ...values, flags_json: flags.length ? JSON.stringify(flags) : null, conflicts_with: conflictsWith, created_at: now, updated_at: now };
 }
 
-function presentRow(r: Record<string, any>) {
+function presentRow(r: Record<string, any>, headers: string[]) {
   const derived = r.m_id
     ? Object.fromEntries(DERIVED_COLUMNS.filter((c) => c !== 'state' && c !== 'flags_json').map((c) => [c, r[`m_${c}`]]))
     : null;
@@ -443,7 +443,7 @@ function presentRow(r: Record<string, any>) {
     state: r.state as RowState,
     errors: r.errors_json ? JSON.parse(r.errors_json) : [],
     warnings: r.warnings_json ? JSON.parse(r.warnings_json) : [],
-    values: JSON.parse(r.values_json),
+    values: Object.fromEntries(headers.map((h, i) => [h, (JSON.parse(r.values_json) as string[])[i] ?? ''])),
     star: r.star_id ? { id: r.star_id, name: r.star_name, sourceId: r.star_source_id, match: r.star_match } : null,
     candidates: r.candidates_json ? JSON.parse(r.candidates_json) : [],
     measurementId: r.m_id ?? null,

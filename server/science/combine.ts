@@ -5,9 +5,9 @@
  * and its tail probability (METHODS.md; weighted mean: common practice, e.g. Bevington &
  * Robinson 2003, Data Reduction and Error Analysis, §4.1).
  */
-import { chi2SurvivalProbability } from './chi2';
-import { debiasedFractionMAS } from './debias';
-import { propagateStokesErrors } from './polarization';
+import { chi2SurvivalProbability } from './chi2.js';
+import { debiasedFractionMAS } from './debias.js';
+import { propagateStokesErrors } from './polarization.js';
 
 /** Tail probability below which repeated measurements are flagged as inconsistent. */
 export const INCONSISTENT_TAIL_PROBABILITY = 0.001;

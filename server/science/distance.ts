@@ -12,9 +12,9 @@
  * ϖ/σ ≥ 5; otherwise the posterior mode with the posterior's 16th and 84th percentiles.
  *
  * Distance draws (makeDistanceSampler) always come from the same EDSD posterior, whatever the
- * S/N: it is proper for any parallax (including negative ones), and at ϖ/σ ≥ 5 it is close to
- * the inverse-parallax value (its median lies inside 1/(ϖ ± σ)), so samples and reported
- * distances agree to well within the quoted ranges.
+ * S/N: it is proper for any parallax (including negative ones). At ϖ/σ ≥ 5 and ϖ ≥ 0.1 mas
+ * (within ~10 kpc) its median lies inside the reported 1/(ϖ ± σ) range; for more distant
+ * stars the L = 1.35 kpc prior pulls the draws nearer than 1/ϖ (median ≈ 0.8/ϖ at 20 kpc).
  */
 
 /** Global parallax zero point of the astrometric catalog, mas (Lindegren et al. 2021, A&A 649, A4). */
@@ -144,7 +144,7 @@ function cellMass(w0: number, w1: number, df: number, h: number): number {
   return Math.abs(df) > 1e-9 ? (h * (w1 - w0)) / df : 0.5 * h * (w0 + w1);
 }
 
-export function buildEdsdTable(plx: number, sigma: number, lengthKpc: number): EdsdTable {
+function buildEdsdTable(plx: number, sigma: number, lengthKpc: number): EdsdTable {
   const s2 = sigma * sigma;
   const invTwoS2 = 1 / (2 * s2);
   const invL = 1 / lengthKpc;

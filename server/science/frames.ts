@@ -107,7 +107,8 @@ export function galacticToIcrs(lDeg: number, bDeg: number): { raDeg: number; dec
  * Position angle ψ (degrees east of north, in [0, 360)) of the great circle from the star to
  * the north Galactic pole (α_p, δ_p):
  *   ψ = atan2( sin(α_p − α)·cos δ_p,  cos δ·sin δ_p − sin δ·cos δ_p·cos(α_p − α) )
- * (spherical trigonometry, common practice). Undefined exactly at the pole.
+ * (spherical trigonometry, common practice), evaluated as atan2 of the pole direction's
+ * components along the star's local east and north. Undefined exactly at the pole (returns 0).
  */
 export function galacticPolePositionAngleDeg(raDeg: number, decDeg: number): number {
   const m = ICRS_TO_GALACTIC;
@@ -122,7 +123,7 @@ export function galacticPolePositionAngleDeg(raDeg: number, decDeg: number): num
   const cd = Math.cos(d);
   const sd = Math.sin(d);
   // Local east and north unit vectors at the star.
-  const east = (-sa * px + ca * py);
+  const east = -sa * px + ca * py;
   const north = -sd * ca * px - sd * sa * py + cd * pz;
   let psi = Math.atan2(east, north) * RAD_TO_DEG;
   if (psi < 0) psi += 360;

@@ -36,8 +36,9 @@ export interface FractionAngle {
  * Linear error propagation from (q, u, σq, σu) to (p, θ):
  *   σp² = (q²σq² + u²σu²)/p²,   σθ = ½·sqrt(u²σq² + q²σu²)/p²  rad.
  * With σq = σu = σ this gives σp = σ and σθ = σ/(2p) rad = 28.65°·σ/p (Serkowski 1962,
- * Adv. Astron. Astrophys. 1, 289). At p = 0 the angle is undefined: pErr falls back to
- * sqrt((σq² + σu²)/2) and thetaErrDeg is 90 (uniform over a half circle, no information).
+ * Adv. Astron. Astrophys. 1, 289). σθ is capped at 90° (no information about the angle);
+ * at p = 0 the angle is undefined: pErr falls back to sqrt((σq² + σu²)/2) and σθ is 90°.
+ * Linear propagation is poor below p/σ ≈ 5 (see angleIsNonGaussian).
  */
 export function propagateStokesErrors(q: number, u: number, qErr: number, uErr: number): FractionAngle {
   const p = polarizationFraction(q, u);

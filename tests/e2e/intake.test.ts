@@ -12,7 +12,8 @@ import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 const run = mustRunBrowserTests();
 
 const MESSY = path.resolve('seeds/demo-batches/kestrel-night-messy.csv');
-const LARGE = path.resolve('seeds/demo-batches/kestrel-night-hawk-R.csv');
+// The demo seed already holds this night in R; the same stars observed in V make a new batch.
+const HAWK_R = path.resolve('seeds/demo-batches/kestrel-night-hawk-R.csv');
 
 interface ApiBatch {
   id: number;
@@ -84,9 +85,16 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     await page.getByLabel('Instrument', { exact: true }).selectOption('KR-OWL');
     await page.screenshot({ path: path.join(SCREENSHOTS, 'upload.png'), fullPage: true });
 
+    const answer = page.waitForResponse((r) => r.request().method() === 'POST' && new URL(r.url()).pathname === '/api/v1/batches');
     await page.getByRole('button', { name: 'Upload and check' }).click();
+    const posted = await answer;
+    // 201: a new batch; 200: these bytes were sent before (the demo seed sends this file too)
+    expect([200, 201]).toContain(posted.status());
     await page.waitForURL(/\/batches\/\d+$/);
     const id = Number(new URL(page.url()).pathname.split('/').pop());
+    expect(id).toBe(((await posted.json()) as ApiBatch).id);
+    await page.getByTestId('batch-filename').waitFor();
+    expect(await page.getByText('These exact bytes were uploaded before').count()).toBe(posted.status() === 200 ? 1 : 0);
 
     // The mapping editor: RAJ2000 and RA both mean ra_deg, so the server leaves it to the person.
     await expect.poll(() => page.getByTestId('batch-state').getAttribute('data-state')).toBe('needs_mapping');
@@ -206,6 +214,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     const ra = table.locator('tbody tr').filter({ has: page.locator('code', { hasText: /^ra_deg$/ }) });
     for (const s of cols.columns.find((c) => c.name === 'ra_deg')!.synonyms) expect(await ra.textContent()).toContain(s);
     expect(await page.getByTestId('conventions').textContent()).toMatch(/north through east/);
+    await page.screenshot({ path: path.join(SCREENSHOTS, 'column-guide.png'), fullPage: true });
     await ctx.close();
   });
 });
@@ -215,7 +224,9 @@ describe.runIf(run)('a large batch checked in the background', () => {
   let server: Server;
   let url: string;
   let close: () => Promise<void>;
+  let tmp: string;
   beforeAll(async () => {
+    tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-intake-e2e-'));
     // every upload is checked after the request returns, so the page must follow the progress
     const t = await makeTestApp({ distDir: DIST, intake: { crossmatchArcsec: 1, mjdToleranceDays: 0.001, syncBytes: 0 } });
     server = await new Promise((resolve) => {
@@ -231,6 +242,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
   afterAll(async () => {
     await browser?.close();
     await close?.();
+    if (tmp) fs.rmSync(tmp, { recursive: true, force: true });
   });
 
   it('shows the bytes sent, polls while the server checks, then opens the batch', async () => {
@@ -245,7 +257,9 @@ describe.runIf(run)('a large batch checked in the background', () => {
     await cdp.send('Network.enable');
     await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: 600 * 1024 });
 
-    await page.getByLabel('CSV file').setInputFiles(LARGE);
+    const large = path.join(tmp, 'kestrel-night-hawk-V.csv');
+    fs.writeFileSync(large, fs.readFileSync(HAWK_R, 'utf8').replace(/,R,/g, ',V,'));
+    await page.getByLabel('CSV file').setInputFiles(large);
     const answer = page.waitForResponse((r) => r.request().method() === 'POST' && new URL(r.url()).pathname === '/api/v1/batches');
     await page.getByRole('button', { name: 'Upload and check' }).click();
     const bar = page.getByRole('progressbar', { name: 'Sending the file' });
@@ -259,7 +273,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
     expect(polls.length).toBeGreaterThan(0); // the page asked for progress before leaving
     await expect.poll(() => page.getByTestId('batch-state').getAttribute('data-state')).toBe('awaiting_review');
     const batch = await apiGet<ApiBatch>(page, `/batches/${created.id}`);
-    const lines = fs.readFileSync(LARGE, 'utf8').split(/\r?\n/).filter((l) => l.trim() !== '').length - 1;
+    const lines = fs.readFileSync(large, 'utf8').split(/\r?\n/).filter((l) => l.trim() !== '').length - 1;
     expect(batch.counts.rows).toBe(lines);
     expect(await figure(page, 'rows')).toBe(lines);
     expect(await figure(page, 'accepted')).toBe(batch.counts.accepted);
@@ -270,6 +284,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
     await scroller.locator('[role="row"][data-line="2"]').waitFor();
     const rendered = await scroller.locator('[role="rowgroup"] [role="row"]').count();
     expect(rendered).toBeLessThan(100);
+    await page.screenshot({ path: path.join(SCREENSHOTS, 'batch-rows-large.png') });
     const loaded = async () => Number(((await page.getByText(/rows loaded/).textContent()) ?? '').split(' of ')[0].replace(/,/g, ''));
     expect(await loaded()).toBe(500); // the first page
     await scroller.evaluate((el) => el.scrollTo({ top: el.scrollHeight }));

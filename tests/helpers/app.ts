@@ -2,7 +2,6 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import request from 'supertest';
-import type { Express } from 'express';
 import type { Knex } from 'knex';
 import { createApp } from '../../server/app.js';
 import { loadConfig, randomSecret, type Config } from '../../server/config.js';
@@ -11,7 +10,7 @@ import { seedDemoIfEmpty } from '../../server/seed.js';
 import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 
 export interface TestApp {
-  app: Express;
+  app: ReturnType<typeof createApp>;
   db: Knex;
   config: Config;
   dir: string;
@@ -31,11 +30,13 @@ export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?
   const db = openDb(config.dbFile);
   await migrateLatest(db);
   if (opts.seed !== false) await seedDemoIfEmpty(db, config);
-  const app = createApp({ db, config });
+  const readDb = openDb(config.dbFile);
+  const app = createApp({ db, readDb, config });
   return {
     app, db, config, dir,
     close: async () => {
-      await db.destroy();
+      await app.services.intake.idle();
+      await Promise.all([db.destroy(), readDb.destroy()]);
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };
@@ -49,7 +50,7 @@ export const DEMO = {
 } as const;
 
 /** A supertest agent signed in as the given demo role (keeps its cookie). */
-export async function signedIn(app: Express, role: keyof typeof DEMO) {
+export async function signedIn(app: TestApp['app'], role: keyof typeof DEMO) {
   const agent = request.agent(app);
   const res = await agent.post('/api/v1/auth/login').send({ email: DEMO[role], password: DEMO_PASSWORD });
   if (res.status !== 200) throw new Error(`sign-in as ${role} failed: ${res.status} ${JSON.stringify(res.body)}`);

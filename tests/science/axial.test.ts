@@ -5,7 +5,7 @@ import {
   axialMeanDeg,
   axialResultantLength,
   wrapAngle180,
-} from '../../server/science/axial';
+} from '../../server/science/axial.js';
 import axialFixture from '../reference/fixtures/axial.json';
 
 describe('wrapAngle180 and angleDifferenceDeg', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { chi2SurvivalProbability, lnGamma, regularizedGammaQ } from '../../server/science/chi2';
+import { chi2SurvivalProbability, lnGamma, regularizedGammaQ } from '../../server/science/chi2.js';
 import chi2 from '../reference/fixtures/chi2.json';
 
 describe('lnGamma', () => {

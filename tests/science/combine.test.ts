@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { combineMeasurements } from '../../server/science/combine';
+import { combineMeasurements } from '../../server/science/combine.js';
 
 describe('combineMeasurements', () => {
   it('reproduces a hand-computed two-measurement example', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { debiasedFractionMAS, debiasedFractionWardleKronberg } from '../../server/science/debias';
+import { debiasedFractionMAS, debiasedFractionWardleKronberg } from '../../server/science/debias.js';
 
 describe('debiasedFractionMAS (Plaszczynski et al. 2014)', () => {
   it('follows p − σ²(1 − e^{−p²/σ²})/(2p) on a hand-computed value', () => {

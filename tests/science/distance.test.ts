@@ -8,8 +8,8 @@ import {
   edsdQuantileKpc,
   makeDistanceSampler,
   PARALLAX_ZERO_POINT_MAS,
-} from '../../server/science/distance';
-import { mulberry32 } from '../../server/science/random';
+} from '../../server/science/distance.js';
+import { mulberry32 } from '../../server/science/random.js';
 import edsd from '../reference/fixtures/edsd.json';
 
 const rows = edsd.rows as number[][];
@@ -161,6 +161,12 @@ describe('makeDistanceSampler', () => {
       expect(median).toBeGreaterThan(d.distanceLoPc);
       expect(median).toBeLessThan(d.distanceHiPc);
     }
+  });
+
+  it('pulls very distant high-S/N stars nearer than 1/ϖ (the prior, as documented)', () => {
+    // ϖ = 0.05 mas, σ = 0.01 (S/N 5, 1/ϖ = 20 kpc ≫ L): the median falls below 1/(ϖ + σ).
+    expect(edsdQuantileKpc(0.05, 0.01, 0.5)).toBeLessThan(1 / 0.06);
+    expect(distanceFromParallax(0.05 - 0.017, 0.01).method).toBe('inverse_parallax');
   });
 
   it('is deterministic given the generator and returns positive finite distances', () => {

@@ -11,9 +11,9 @@ import {
   rotateStokesToEquatorial,
   rotateStokesToGalactic,
   stokesToCosmo,
-} from '../../server/science/frames';
-import { angularSeparationDeg, positionAngleDeg } from '../../server/science/separation';
-import { mulberry32 } from '../../server/science/random';
+} from '../../server/science/frames.js';
+import { angularSeparationDeg, positionAngleDeg } from '../../server/science/separation.js';
+import { mulberry32 } from '../../server/science/random.js';
 import frames from '../reference/fixtures/frames.json';
 import positionAngles from '../reference/fixtures/position_angles.json';
 

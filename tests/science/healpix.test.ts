@@ -10,8 +10,8 @@ import {
   pixelCornersNest,
   queryDiscNest,
   ringToNest,
-} from '../../server/science/healpix';
-import { angularSeparationDeg } from '../../server/science/separation';
+} from '../../server/science/healpix.js';
+import { angularSeparationDeg } from '../../server/science/separation.js';
 import healpix from '../reference/fixtures/healpix.json';
 
 describe('orders and NSIDE', () => {

@@ -6,8 +6,8 @@ import {
   polarizationFraction,
   propagateStokesErrors,
   stokesFromFractionAngle,
-} from '../../server/science/polarization';
-import { gaussian, mulberry32 } from '../../server/science/random';
+} from '../../server/science/polarization.js';
+import { gaussian, mulberry32 } from '../../server/science/random.js';
 
 describe('polarizationFraction and polarizationAngleDeg', () => {
   it('gives p = sqrt(q² + u²) and θ = ½ atan2(u, q) on the four axes', () => {

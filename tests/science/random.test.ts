@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { gaussian, hashSeed, mulberry32 } from '../../server/science/random';
+import { gaussian, hashSeed, mulberry32 } from '../../server/science/random.js';
 
 describe('mulberry32', () => {
   it('is deterministic for a seed and differs between seeds', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { angularSeparationDeg, positionAngleDeg } from '../../server/science/separation';
+import { angularSeparationDeg, positionAngleDeg } from '../../server/science/separation.js';
 import separations from '../reference/fixtures/separations.json';
 
 describe('angularSeparationDeg vs astropy', () => {

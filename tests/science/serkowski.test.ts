@@ -7,7 +7,7 @@ import {
   serkowskiFraction,
   SERKOWSKI_K,
   whittetK,
-} from '../../server/science/serkowski';
+} from '../../server/science/serkowski.js';
 
 describe('Serkowski law', () => {
   it('peaks at λmax with p_max and falls as exp(−K ln²(λmax/λ))', () => {

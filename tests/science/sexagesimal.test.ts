@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { parseDecDeg, parseRaDeg, type ParseResult } from '../../server/science/sexagesimal';
+import { parseDecDeg, parseRaDeg, type ParseResult } from '../../server/science/sexagesimal.js';
 
 function value(r: ParseResult): number {
   if (!r.ok) throw new Error(`expected ok, got: ${r.message}`);

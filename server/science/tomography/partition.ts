@@ -26,14 +26,24 @@ export interface Partition {
 /** Numerical slack in the pruning test (cost units), far below any penalty. */
 const PRUNE_TOLERANCE = 1e-9;
 
-/** Reusable PELT solver (no allocation per call once sized). */
+/**
+ * Reusable PELT solver (no allocation per call once sized).
+ *
+ * Skipping exact costs: when the coster exposes `singletonCost` (the cost of each star alone,
+ * ln(2πσq²) + ln(2πσu²)), superadditivity C(A ∪ B) ≥ C(A) + C(B) gives a running lower bound
+ * C(τ..t+1) ≥ C(τ..t) + C({t}). A candidate whose bound already cannot beat the best value at t
+ * is not priced exactly; its bound is carried on. Pruning uses the bound too (F(τ) + bound ≥
+ * F(t) implies F(τ) + C ≥ F(t)), so the result is the exact optimum, with far fewer exact costs
+ * over long stretches without breaks, where PELT itself cannot prune.
+ */
 export class PeltSolver {
   private F: Float64Array;
   private last: Int32Array;
   private cand: Int32Array;
   private prunedFrom: Int32Array;
+  private lb: Float64Array;
   private capacity: number;
-  /** Segment costs requested in the last solve (for benchmarks). */
+  /** Exact segment costs requested in the last solve (for benchmarks). */
   evaluations = 0;
 
   constructor(capacity = 16) {
@@ -42,6 +52,7 @@ export class PeltSolver {
     this.last = new Int32Array(0);
     this.cand = new Int32Array(0);
     this.prunedFrom = new Int32Array(0);
+    this.lb = new Float64Array(0);
     this.ensure(capacity);
   }
 
@@ -53,6 +64,7 @@ export class PeltSolver {
     this.last = new Int32Array(c);
     this.cand = new Int32Array(c);
     this.prunedFrom = new Int32Array(c);
+    this.lb = new Float64Array(c);
   }
 
   /**
@@ -68,40 +80,70 @@ export class PeltSolver {
       return coster.cost(0, n);
     }
     this.ensure(n);
-    const { F, last, cand, prunedFrom } = this;
+    const { F, last, cand, prunedFrom, lb } = this;
+    const single = coster.singletonCost;
     F[0] = -penalty;
     last[0] = 0;
     let nCand = 0;
     const NEVER = 0x7fffffff;
     for (let t = minSeg; t <= n; t++) {
+      // Bounds grow by the star that joins every open segment.
+      if (single && t > minSeg) {
+        const add = single[t - 1];
+        for (let j = 0; j < nCand; j++) lb[cand[j]] += add;
+      }
       // τ becomes usable once t − τ ≥ minSeg; legal τ are 0 and minSeg..n−minSeg.
       const tau = t - minSeg;
       if (tau === 0 || tau >= minSeg) {
         cand[nCand++] = tau;
         prunedFrom[tau] = NEVER;
+        let b = -Infinity;
+        if (single) {
+          b = 0;
+          for (let i = tau; i < t; i++) b += single[i];
+        }
+        lb[tau] = b;
       }
-      let best = Infinity;
-      let arg = -1;
+      // Drop candidates whose pruning has taken effect; price the most promising one first.
       let k = 0;
-      // Evaluate, dropping candidates whose pruning has taken effect.
+      let first = -1;
+      let firstBound = Infinity;
       for (let j = 0; j < nCand; j++) {
         const c = cand[j];
         if (prunedFrom[c] <= t) continue;
         cand[k++] = c;
-        const v = F[c] + coster.cost(c, t) + penalty;
-        this.evaluations++;
-        if (v < best) { best = v; arg = c; }
+        const v = F[c] + lb[c];
+        if (first < 0 || v < firstBound) { firstBound = v; first = c; }
       }
       nCand = k;
+      let best = Infinity;
+      let arg = -1;
+      if (first >= 0) {
+        const exact = coster.cost(first, t);
+        this.evaluations++;
+        lb[first] = exact;
+        best = F[first] + exact + penalty;
+        arg = first;
+      }
+      for (let j = 0; j < nCand; j++) {
+        const c = cand[j];
+        if (c === first) continue;
+        if (F[c] + lb[c] + penalty >= best) continue; // cannot win at t (bound only)
+        const exact = coster.cost(c, t);
+        this.evaluations++;
+        lb[c] = exact;
+        const v = F[c] + exact + penalty;
+        if (v < best || (v === best && c < arg)) { best = v; arg = c; }
+      }
       F[t] = best;
       last[t] = arg;
       // Mark candidates that can never beat t as a last break (effective from t + minSeg).
-      if (t >= minSeg && t <= n - minSeg) {
+      if (t <= n - minSeg) {
         const effective = t + minSeg;
         for (let j = 0; j < nCand; j++) {
           const c = cand[j];
           if (prunedFrom[c] !== NEVER) continue;
-          if (F[c] + coster.cost(c, t) >= best + PRUNE_TOLERANCE) prunedFrom[c] = effective;
+          if (F[c] + lb[c] >= best + PRUNE_TOLERANCE) prunedFrom[c] = effective;
         }
       }
     }

@@ -54,10 +54,15 @@ const gridF = new Float64Array(MAX_GRID + 2);
 // Results of the last evaluate() call.
 let evD1 = 0;
 let evD2 = 0;
+let evMeanQ = 0;
+let evMeanU = 0;
+let evWq = 0;
+let evWu = 0;
 
 /**
  * f(t) without the 2m ln 2π constant; with derivs, also sets evD1 = f'(t), evD2 = f''(t).
  * Values are shifted by (q0, u0) — a star of the segment — to keep the sums well conditioned.
+ * Leaves the weighted means (shifted) and Σw in evMeanQ/U, evWq/u.
  */
 function evaluate(
   q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
@@ -102,6 +107,7 @@ function evaluate(
   const m2 = 2 * (end - start);
   const mq = sq / wq;
   const mu = su / wu;
+  evMeanQ = mq; evMeanU = mu; evWq = wq; evWu = wu;
   const chi2 = (sqq - sq * mq) + (suu - su * mu);
   const f = logSum + m2 * Math.log(ref) + (chi2 > 0 ? chi2 : 0);
   if (derivs) {
@@ -117,19 +123,22 @@ function evaluate(
   return f;
 }
 
-/** Local minimum of f in [lo, hi] starting from x0, by safeguarded Newton on f'. Returns t. */
+/**
+ * Local minimum of f in (lo, hi) from x0 by Newton on f', bisecting (geometrically when lo > 0)
+ * whenever a step leaves the bracket; the bracket shrinks by the sign of f' at each iterate.
+ * lo = x0 = 0 means the grid's best point is s = 0: a boundary minimum when f'(0) ≥ 0.
+ */
 function polish(
   q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
   start: number, end: number, q0: number, u0: number,
   lo: number, hi: number, x0: number, tScale: number,
 ): number {
-  evaluate(q, u, vq, vu, start, end, lo, q0, u0, true);
-  const gLo = evD1;
-  if (lo === 0 && gLo >= 0) return 0; // boundary minimum at s = 0
-  evaluate(q, u, vq, vu, start, end, hi, q0, u0, true);
-  const gHi = evD1;
-  if (!(gLo < 0 && gHi > 0)) return golden(q, u, vq, vu, start, end, q0, u0, lo, hi);
-  let x = x0 > lo && x0 < hi ? x0 : 0.5 * (lo + hi);
+  let x = x0;
+  if (x0 === 0) {
+    evaluate(q, u, vq, vu, start, end, 0, q0, u0, true);
+    if (evD1 >= 0) return 0;
+    x = 0.5 * hi;
+  }
   for (let iter = 0; iter < 100; iter++) {
     evaluate(q, u, vq, vu, start, end, x, q0, u0, true);
     const g = evD1;
@@ -140,29 +149,101 @@ function polish(
     if (!(next > lo && next < hi)) next = lo > 0 ? Math.sqrt(lo * hi) : 0.5 * (lo + hi);
     const step = Math.abs(next - x);
     x = next;
-    if (step <= 1e-13 * (x + tScale) || hi - lo <= 1e-13 * (hi + tScale)) break;
+    if (step <= 1e-10 * (x + tScale) || hi - lo <= 1e-12 * (hi + tScale)) break;
   }
   return x;
 }
 
-/** Golden-section fallback on f over [lo, hi] (used only when f' does not bracket). */
-function golden(
+/**
+ * Global minimum of f given its samples fT[0..g) (ascending t, fT[0] = 0) and values fF:
+ * every sampled local minimum within POLISH_WINDOW of the best sample is polished; the lowest
+ * result wins. Returns t.
+ */
+export function minimiseFromSamples(
   q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
-  start: number, end: number, q0: number, u0: number, lo: number, hi: number,
+  start: number, end: number, fT: Float64Array, fF: Float64Array, g: number, vMin: number,
 ): number {
-  const r = (Math.sqrt(5) - 1) / 2;
-  let a = lo, b = hi;
-  let c = b - r * (b - a), d = a + r * (b - a);
-  let fc = evaluate(q, u, vq, vu, start, end, c, q0, u0, false);
-  let fd = evaluate(q, u, vq, vu, start, end, d, q0, u0, false);
-  for (let i = 0; i < 80; i++) {
-    if (fc < fd) { b = d; d = c; fd = fc; c = b - r * (b - a); fc = evaluate(q, u, vq, vu, start, end, c, q0, u0, false); }
-    else { a = c; c = d; fc = fd; d = a + r * (b - a); fd = evaluate(q, u, vq, vu, start, end, d, q0, u0, false); }
+  const q0 = q[start];
+  const u0 = u[start];
+  let best = 0;
+  for (let k = 1; k < g; k++) if (fF[k] < fF[best]) best = k;
+  const fBest = fF[best];
+  let tBest = fT[best];
+  let fFound = Infinity;
+  for (let k = 0; k < g; k++) {
+    const fk = fF[k];
+    if (fk > fBest + POLISH_WINDOW) continue;
+    const left = k === 0 ? Infinity : fF[k - 1];
+    const right = k === g - 1 ? Infinity : fF[k + 1];
+    if (!(fk <= left && fk <= right)) continue;
+    let tk: number;
+    if (g === 1) tk = 0;
+    else if (k === 0) tk = polish(q, u, vq, vu, start, end, q0, u0, 0, fT[1], 0, vMin);
+    else tk = polish(q, u, vq, vu, start, end, q0, u0, fT[k - 1], k === g - 1 ? fT[k] : fT[k + 1], fT[k], vMin);
+    const fk2 = evaluate(q, u, vq, vu, start, end, tk, q0, u0, false);
+    const better = fk2 <= fk;
+    const fUse = better ? fk2 : fk;
+    if (fUse < fFound) { fFound = fUse; tBest = better ? tk : fT[k]; }
   }
-  const x = 0.5 * (a + b);
-  const fx = evaluate(q, u, vq, vu, start, end, x, q0, u0, false);
-  const fl = evaluate(q, u, vq, vu, start, end, lo, q0, u0, false);
-  return fl <= fx ? lo : x;
+  return tBest;
+}
+
+/** Segment statistics needed to choose the search: value ranges, extreme variances. */
+let stVMin = 0;
+let stTHi = 0;
+let stEqualVar = false;
+
+/** Scans [start, end): sets stVMin, stTHi = (larger of the q and u ranges)², stEqualVar. */
+export function scanSegment(q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array, start: number, end: number): void {
+  let qMin = q[start], qMax = qMin, uMin = u[start], uMax = uMin;
+  let vMin = Math.min(vq[start], vu[start]);
+  let vMax = Math.max(vq[start], vu[start]);
+  for (let i = start + 1; i < end; i++) {
+    const x = q[i], y = u[i];
+    if (x < qMin) qMin = x; else if (x > qMax) qMax = x;
+    if (y < uMin) uMin = y; else if (y > uMax) uMax = y;
+    const a = vq[i], b = vu[i];
+    if (a < vMin) vMin = a; if (a > vMax) vMax = a;
+    if (b < vMin) vMin = b; if (b > vMax) vMax = b;
+  }
+  const range = Math.max(qMax - qMin, uMax - uMin);
+  stVMin = vMin;
+  stTHi = range * range;
+  stEqualVar = vMax - vMin <= 1e-12 * vMax;
+}
+export function scannedVMin(): number { return stVMin; }
+export function scannedTHi(): number { return stTHi; }
+export function scannedEqualVariances(): boolean { return stEqualVar; }
+
+/** Closed-form t for equal variances v: v + t = (SS_q + SS_u)/(2m), t ≥ 0. */
+function equalVarianceT(q: Float64Array, u: Float64Array, start: number, end: number, v: number): number {
+  const m = end - start;
+  const q0 = q[start], u0 = u[start];
+  let sq = 0, su = 0;
+  for (let i = start; i < end; i++) { sq += q[i] - q0; su += u[i] - u0; }
+  const mq = sq / m, mu = su / m;
+  let ss = 0;
+  for (let i = start; i < end; i++) {
+    const dx = q[i] - q0 - mq, dy = u[i] - u0 - mu;
+    ss += dx * dx + dy * dy;
+  }
+  const t = ss / (2 * m) - v;
+  return t > 0 ? t : 0;
+}
+
+/** Writes the fit at scatter variance t into out[offset…]. */
+export function writeFitAt(
+  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
+  start: number, end: number, t: number, out: Float64Array, offset: number,
+): void {
+  const q0 = q[start], u0 = u[start];
+  const f = evaluate(q, u, vq, vu, start, end, t, q0, u0, false);
+  out[offset + FIT_COST] = f + 2 * (end - start) * LN_2PI;
+  out[offset + FIT_SCATTER_VAR] = t;
+  out[offset + FIT_MEAN_Q] = q0 + evMeanQ;
+  out[offset + FIT_MEAN_U] = u0 + evMeanU;
+  out[offset + FIT_VAR_MEAN_Q] = 1 / evWq;
+  out[offset + FIT_VAR_MEAN_U] = 1 / evWu;
 }
 
 /**
@@ -173,93 +254,31 @@ export function fitSegmentInto(
   q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
   start: number, end: number, out: Float64Array, offset = 0,
 ): void {
-  const m = end - start;
-  if (m <= 0) throw new RangeError(`segment [${start}, ${end}) is empty`);
-  const q0 = q[start];
-  const u0 = u[start];
-  let qMin = q0, qMax = q0, uMin = u0, uMax = u0;
-  let vMin = Math.min(vq[start], vu[start]);
-  let vMax = Math.max(vq[start], vu[start]);
-  let sumQ = 0, sumU = 0;
-  for (let i = start; i < end; i++) {
-    const x = q[i], y = u[i];
-    if (x < qMin) qMin = x; else if (x > qMax) qMax = x;
-    if (y < uMin) uMin = y; else if (y > uMax) uMax = y;
-    const a = vq[i], b = vu[i];
-    if (a < vMin) vMin = a; if (a > vMax) vMax = a;
-    if (b < vMin) vMin = b; if (b > vMax) vMax = b;
-    sumQ += x - q0; sumU += y - u0;
-  }
-  const range = Math.max(qMax - qMin, uMax - uMin);
-  const tHi = range * range;
+  if (end - start <= 0) throw new RangeError(`segment [${start}, ${end}) is empty`);
+  scanSegment(q, u, vq, vu, start, end);
   let t = 0;
-  if (tHi > 0) {
-    if (vMax - vMin <= 1e-12 * vMax) {
-      // Equal variances: closed form.
-      const mq = sumQ / m, mu = sumU / m;
-      let ss = 0;
-      for (let i = start; i < end; i++) {
-        const dx = q[i] - q0 - mq, dy = u[i] - u0 - mu;
-        ss += dx * dx + dy * dy;
-      }
-      const v = ss / (2 * m) - vMin;
-      t = v > 0 ? v : 0;
-    } else {
-      t = globalMinimum(q, u, vq, vu, start, end, q0, u0, vMin, tHi);
+  if (stTHi > 0) {
+    if (stEqualVar) t = equalVarianceT(q, u, start, end, stVMin);
+    else {
+      // Grid: 0, then vMin/16·√2^k below tHi, then tHi.
+      const q0 = q[start], u0 = u[start];
+      const tHi = stTHi;
+      let g = 0;
+      gridT[g++] = 0;
+      let tk = stVMin / 16;
+      while (tk < tHi && g < MAX_GRID) { gridT[g++] = tk; tk *= GRID_RATIO; }
+      gridT[g++] = tHi;
+      for (let k = 0; k < g; k++) gridF[k] = evaluate(q, u, vq, vu, start, end, gridT[k], q0, u0, false);
+      t = minimiseFromSamples(q, u, vq, vu, start, end, gridT, gridF, g, stVMin);
     }
   }
-  // Final evaluation at t: cost and means.
-  let wq = 0, sq = 0, wu = 0, su = 0;
-  for (let i = start; i < end; i++) {
-    const a = 1 / (vq[i] + t);
-    const b = 1 / (vu[i] + t);
-    wq += a; sq += a * (q[i] - q0);
-    wu += b; su += b * (u[i] - u0);
-  }
-  const f = evaluate(q, u, vq, vu, start, end, t, q0, u0, false);
-  out[offset + FIT_COST] = f + 2 * m * LN_2PI;
-  out[offset + FIT_SCATTER_VAR] = t;
-  out[offset + FIT_MEAN_Q] = q0 + sq / wq;
-  out[offset + FIT_MEAN_U] = u0 + su / wu;
-  out[offset + FIT_VAR_MEAN_Q] = 1 / wq;
-  out[offset + FIT_VAR_MEAN_U] = 1 / wu;
+  writeFitAt(q, u, vq, vu, start, end, t, out, offset);
 }
 
-function globalMinimum(
-  q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
-  start: number, end: number, q0: number, u0: number, vMin: number, tHi: number,
-): number {
-  // Grid: 0, then vMin/16·√2^k below tHi, then tHi.
-  let g = 0;
-  gridT[g++] = 0;
-  let tk = vMin / 16;
-  while (tk < tHi && g < MAX_GRID) { gridT[g++] = tk; tk *= GRID_RATIO; }
-  gridT[g++] = tHi;
-  let best = 0;
-  for (let k = 0; k < g; k++) {
-    gridF[k] = evaluate(q, u, vq, vu, start, end, gridT[k], q0, u0, false);
-    if (gridF[k] < gridF[best]) best = k;
-  }
-  const fBest = gridF[best];
-  let tBest = 0;
-  let fFound = Infinity;
-  for (let k = 0; k < g; k++) {
-    const fk = gridF[k];
-    if (fk > fBest + POLISH_WINDOW) continue;
-    const left = k === 0 ? Infinity : gridF[k - 1];
-    const right = k === g - 1 ? Infinity : gridF[k + 1];
-    if (!(fk <= left && fk <= right)) continue;
-    const lo = k === 0 ? 0 : gridT[k - 1];
-    const hi = k === g - 1 ? gridT[k] : gridT[k + 1];
-    const tk2 = k === 0 ? (g > 1 ? polish(q, u, vq, vu, start, end, q0, u0, 0, gridT[1], 0, vMin) : 0)
-      : polish(q, u, vq, vu, start, end, q0, u0, lo, hi, gridT[k], vMin);
-    const fk2 = evaluate(q, u, vq, vu, start, end, tk2, q0, u0, false);
-    const fUse = fk2 <= fk ? fk2 : fk;
-    const tUse = fk2 <= fk ? tk2 : gridT[k];
-    if (fUse < fFound) { fFound = fUse; tBest = tUse; }
-  }
-  return tBest;
-}
+/** Grid ratio and floor used by grids that callers build themselves (segmentTable.ts). */
+export const SEGMENT_GRID_RATIO = GRID_RATIO;
+export const SEGMENT_GRID_FLOOR_FRACTION = 1 / 16;
+export const SEGMENT_GRID_MAX = MAX_GRID;
 
 const scratch = new Float64Array(FIT_SIZE);
 

@@ -18,6 +18,11 @@ import {
 /** Anything that can price a segment [start, end) of the current ordering. */
 export interface SegmentCoster {
   cost(start: number, end: number): number;
+  /**
+   * Optional: cost of each star alone at each position (a lower bound per star, since costs are
+   * superadditive); lets PELT skip exact costs that cannot matter.
+   */
+  readonly singletonCost?: Float64Array;
 }
 
 export class SegmentTable implements SegmentCoster {
@@ -29,6 +34,8 @@ export class SegmentTable implements SegmentCoster {
   readonly vu: Float64Array;
   /** Canonical star index at each position of the current ordering. */
   readonly order: Int32Array;
+  /** ln(2πσq²) + ln(2πσu²) of the star at each position: its cost alone. */
+  readonly singletonCost: Float64Array;
   private readonly keyA: Int32Array;
   private readonly keyB: Int32Array;
   private readonly prefA: Int32Array;
@@ -37,6 +44,7 @@ export class SegmentTable implements SegmentCoster {
   private readonly srcU: Float64Array;
   private readonly srcVq: Float64Array;
   private readonly srcVu: Float64Array;
+  private readonly srcSingle: Float64Array;
   // Open-addressing hash table: slot → row of `rows` (FIT_SIZE numbers each).
   private mask: number;
   private tabA: Int32Array;
@@ -62,6 +70,8 @@ export class SegmentTable implements SegmentCoster {
     this.vq = new Float64Array(n);
     this.vu = new Float64Array(n);
     this.order = new Int32Array(n);
+    this.singletonCost = new Float64Array(n);
+    this.srcSingle = new Float64Array(n);
     this.srcQ = Float64Array.from(q);
     this.srcU = Float64Array.from(u);
     this.srcVq = new Float64Array(n);
@@ -69,6 +79,7 @@ export class SegmentTable implements SegmentCoster {
     for (let i = 0; i < n; i++) {
       this.srcVq[i] = qErr[i] * qErr[i];
       this.srcVu[i] = uErr[i] * uErr[i];
+      this.srcSingle[i] = Math.log(2 * Math.PI * this.srcVq[i]) + Math.log(2 * Math.PI * this.srcVu[i]);
     }
     this.keyA = new Int32Array(n);
     this.keyB = new Int32Array(n);
@@ -100,6 +111,7 @@ export class SegmentTable implements SegmentCoster {
       this.u[pos] = this.srcU[i];
       this.vq[pos] = this.srcVq[i];
       this.vu[pos] = this.srcVu[i];
+      this.singletonCost[pos] = this.srcSingle[i];
       a ^= this.keyA[i];
       b ^= this.keyB[i];
       this.prefA[pos + 1] = a;

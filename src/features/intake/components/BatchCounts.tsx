@@ -21,7 +21,7 @@ export function BatchCounts({ counts }: { counts: Counts }) {
         return (
           <div key={f.key} className="px-4 py-3">
             <dt className="text-xs uppercase tracking-wide text-muted">{f.label}</dt>
-            <dd data-testid={`count-${f.key}`} className={`num mt-0.5 text-2xl font-semibold text-night ${f.tone?.(n) ?? ''}`}>
+            <dd data-testid={`count-${f.key}`} className={`num mt-0.5 text-2xl font-semibold ${f.tone?.(n) || 'text-night'}`}>
               {formatCount(n)}
             </dd>
           </div>

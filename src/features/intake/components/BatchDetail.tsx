@@ -28,7 +28,7 @@ export function BatchDetail({ id, seenBefore }: { id: number; seenBefore: boolea
           <span data-testid="batch-failure">{batch.failure}</span>
         </Notice>
       )}
-      <BatchCounts counts={batch.counts} />
+      {!['received', 'needs_mapping', 'checking'].includes(batch.state) && <BatchCounts counts={batch.counts} />}
       <StateBody batch={batch} />
     </div>
   );

@@ -16,57 +16,81 @@ const TABS: { state: RowState | undefined; label: string; count: (c: BatchCounts
   { state: 'ambiguous', label: 'Ambiguous', count: (c) => c.ambiguous },
 ];
 
-const MATCH: Record<string, string> = { source_id: 'by source_id', position: 'by position', new: 'new star' };
+const MATCH: Record<string, string> = { source_id: 'matched by source_id', position: 'matched by position', new: 'new star' };
 
 const col = createColumnHelper<BatchRow>();
 
 
 const COLUMNS = [
-  col.accessor('line', { header: 'Line', size: 60, cell: (c) => <span className="num font-mono">{c.getValue()}</span> }),
-  col.accessor('state', { header: 'State', size: 104, cell: (c) => <RowStateBadge state={c.getValue()} /> }),
-  col.display({ id: 'star', header: 'Star', size: 190, cell: (c) => <StarCell row={c.row.original} /> }),
-  col.display({ id: 'errors', header: 'Problems', size: 300, cell: (c) => <ErrorsCell row={c.row.original} /> }),
-  col.display({ id: 'warnings', header: 'Warnings', size: 200, cell: (c) => <WarningsCell row={c.row.original} /> }),
+  col.accessor('line', { header: 'line', size: 52, cell: (c) => <span className="num font-mono">{c.getValue()}</span> }),
+  col.accessor('state', {
+    header: 'state',
+    size: 96,
+    cell: (c) => (
+      <div>
+        <RowStateBadge state={c.getValue()} />
+        {c.row.original.derived?.band && <div className="mt-0.5 text-xs text-muted">{c.row.original.derived.band} band</div>}
+      </div>
+    ),
+  }),
+  col.display({ id: 'star', header: 'star', size: 190, cell: (c) => <StarCell row={c.row.original} /> }),
+  col.display({ id: 'errors', header: 'problems', size: 220, cell: (c) => <ErrorsCell row={c.row.original} /> }),
+  col.display({ id: 'warnings', header: 'warnings', size: 170, cell: (c) => <WarningsCell row={c.row.original} /> }),
   col.display({
     id: 'p',
     header: 'p [fraction]',
-    size: 120,
+    size: 88,
     cell: (c) => {
       const d = c.row.original.derived;
-      return d ? <span className="num font-mono">{fixed(d.p, 4)} <span className="text-muted">± {fixed(d.p_err, 4)}</span></span> : <Dash />;
+      return d ? <ValueWithError value={fixed(d.p, 4)} error={`± ${fixed(d.p_err, 4)}`} /> : <Dash />;
     },
   }),
   col.display({
     id: 'theta',
     header: 'θ [deg]',
-    size: 104,
+    size: 76,
     cell: (c) => {
       const d = c.row.original.derived;
-      return d ? <span className="num font-mono">{fixed(d.theta_deg, 1)} <span className="text-muted">± {fixed(d.theta_err_deg, 1)}</span></span> : <Dash />;
+      return d ? <ValueWithError value={fixed(d.theta_deg, 1)} error={`± ${fixed(d.theta_err_deg, 1)}`} /> : <Dash />;
     },
   }),
   col.display({
     id: 'distance',
     header: 'distance [pc]',
-    size: 140,
+    size: 108,
     cell: (c) => {
       const d = c.row.original.derived;
       if (!d || d.distance_pc == null) return <Dash />;
       return (
-        <span className="num font-mono">
-          {fixed(d.distance_pc, 0)}
-          {d.distance_lo_pc != null && d.distance_hi_pc != null && (
-            <span className="text-muted"> ({fixed(d.distance_lo_pc, 0)}–{fixed(d.distance_hi_pc, 0)})</span>
-          )}
-        </span>
+        <ValueWithError
+          value={fixed(d.distance_pc, 0)}
+          error={d.distance_lo_pc != null && d.distance_hi_pc != null ? `${fixed(d.distance_lo_pc, 0)}–${fixed(d.distance_hi_pc, 0)}` : ''}
+        />
       );
     },
   }),
-  col.display({ id: 'method', header: 'method', size: 96, cell: (c) => c.row.original.derived?.distance_method ?? <Dash /> }),
-  col.display({ id: 'band', header: 'band', size: 56, cell: (c) => c.row.original.derived?.band ?? <Dash /> }),
+  col.display({
+    id: 'method',
+    header: 'method',
+    size: 110,
+    cell: (c) => {
+      const m = c.row.original.derived?.distance_method;
+      return m ? <span className="text-xs" title={m}>{m.replace(/_/g, ' ')}</span> : <Dash />;
+    },
+  }),
 ];
 
-const GRID = COLUMNS.map((c) => (c.id === 'errors' ? `minmax(${c.size}px, 2fr)` : c.id === 'warnings' ? `minmax(${c.size}px, 1fr)` : `${c.size}px`)).join(' ');
+const GRID = COLUMNS.map((c) => (c.id === 'errors' ? `minmax(${c.size}px, 1.4fr)` : c.id === 'warnings' ? `minmax(${c.size}px, 1fr)` : `${c.size}px`)).join(' ');
+
+/** A value with its uncertainty (or range) on the line below. */
+function ValueWithError({ value, error }: { value: string; error: string }) {
+  return (
+    <div className="num font-mono text-xs leading-5">
+      <div className="text-ink">{value}</div>
+      {error && <div className="text-muted">{error}</div>}
+    </div>
+  );
+}
 
 function Dash() {
   return <span className="text-muted">—</span>;
@@ -76,11 +100,11 @@ function StarCell({ row }: { row: BatchRow }) {
   if (row.star) {
     return (
       <div className="min-w-0">
-        <div className="truncate font-medium text-night">{row.star.name}</div>
-        <div className="text-xs text-muted">
-          {MATCH[row.star.match] ?? row.star.match}
-          {row.star.sourceId && <span className="ml-1 font-mono">{row.star.sourceId}</span>}
+        <div className="truncate font-medium text-night" title={row.star.name}>
+          {row.star.name}
         </div>
+        <div className="text-xs text-muted">{MATCH[row.star.match] ?? row.star.match}</div>
+        {row.star.sourceId && <div className="truncate font-mono text-[11px] text-muted">{row.star.sourceId}</div>}
       </div>
     );
   }
@@ -183,13 +207,13 @@ export function BatchRowsTable({ batchId, counts }: { batchId: number; counts: B
 
       {q.error && <Notice tone="bad">{q.error.message}</Notice>}
 
-      <div ref={scroller} className="h-[30rem] overflow-auto rounded-xl border border-line bg-card" data-testid="rows-scroller">
+      <div ref={scroller} className="max-h-[30rem] overflow-auto rounded-xl border border-line bg-card" data-testid="rows-scroller">
         <div role="table" aria-label="Checked rows" aria-rowcount={total} className="min-w-max">
           <div role="rowgroup" className="sticky top-0 z-10 border-b border-line bg-paper">
             {table.getHeaderGroups().map((hg) => (
               <div role="row" key={hg.id} className="grid" style={{ gridTemplateColumns: GRID }}>
                 {hg.headers.map((h) => (
-                  <div role="columnheader" key={h.id} className="px-2.5 py-2 text-xs font-semibold uppercase tracking-wide text-muted">
+                  <div role="columnheader" key={h.id} className="px-2.5 py-2 text-xs font-semibold text-muted">
                     {flexRender(h.column.columnDef.header, h.getContext())}
                   </div>
                 ))}

@@ -20,11 +20,11 @@ export function ColumnGuideTable({ columns }: { columns: IntakeColumn[] }) {
               <td className="py-2 pr-4">
                 <code className="font-semibold text-night">{c.name}</code>
               </td>
-              <td className="whitespace-nowrap pr-4 text-ink">{c.unit || '—'}</td>
-              <td className="pr-4 text-ink">
+              <td className="whitespace-nowrap py-2 pr-4 text-ink">{c.unit || '—'}</td>
+              <td className="max-w-[16rem] py-2 pr-4 text-ink">
                 <RequiredRule rule={c.required} />
               </td>
-              <td className="pr-4 text-ink">{c.description}</td>
+              <td className="py-2 pr-4 text-ink">{c.description}</td>
               <td className="py-2">
                 <div className="flex flex-wrap gap-1">
                   {c.synonyms.length === 0 && <span className="text-muted">—</span>}

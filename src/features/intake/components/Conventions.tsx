@@ -11,10 +11,10 @@ const TOPIC: Record<string, string> = {
  * The conventions every uploaded file is read with. The server's own statements win when it
  * sends them (GET /intake/columns → conventions); the text below is the fallback.
  */
-export function Conventions({ fromServer }: { fromServer?: Record<string, string> }) {
+export function Conventions({ fromServer, className = 'space-y-3' }: { fromServer?: Record<string, string>; className?: string }) {
   if (fromServer && Object.keys(fromServer).length > 0) {
     return (
-      <ul className="space-y-3 text-sm text-ink" data-testid="conventions">
+      <ul className={`text-sm text-ink ${className}`} data-testid="conventions">
         {Object.entries(fromServer).map(([k, v]) => (
           <li key={k}>
             <b className="text-night">{TOPIC[k] ?? k}.</b> {v}
@@ -24,7 +24,7 @@ export function Conventions({ fromServer }: { fromServer?: Record<string, string
     );
   }
   return (
-    <ul className="space-y-3 text-sm text-ink">
+    <ul className={`text-sm text-ink ${className}`} data-testid="conventions">
       <li>
         <b className="text-night">Fractions, or percent with _pct.</b> q, u, p and their errors are fractions (0.012). A column
         holding percent (1.2) must be mapped to the _pct twin — <code>p_pct</code>, <code>q_err_pct</code> — and is divided by 100 on

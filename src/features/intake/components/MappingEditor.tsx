@@ -25,6 +25,7 @@ export function MappingEditor({ batch, proposal, columns }: Props) {
   const submit = useSubmitMapping();
   const [choice, setChoice] = useState<ColumnMapping>(() => ({ ...proposal.mapping }));
   const [saveForInstrument, setSaveForInstrument] = useState(false);
+  const [showUnmatched, setShowUnmatched] = useState(false);
 
   // Groups come from the proposal, not from the live choice, so rows stay put while editing.
   const groups = useMemo(() => {
@@ -87,18 +88,30 @@ export function MappingEditor({ batch, proposal, columns }: Props) {
         </p>
 
         {(proposal.missing.length > 0 || unresolved.length > 0) && (
-          <div data-testid="mapping-missing" className="rounded-lg border border-amber/60 bg-amber/10 px-4 py-3 text-sm text-ink">
-            <div className="font-medium text-amber-deep">Still to settle before the rows can be checked</div>
-            <ul className="mt-1 list-disc space-y-0.5 pl-5">
-              {unresolved.map((n) => (
-                <li key={`amb-${n}`}>
-                  <code>{n}</code>: several headers could hold it ({proposal.ambiguous[n].join(', ')}) — choose one.
-                </li>
-              ))}
-              {proposal.missing.map((m) => (
-                <li key={m}>{m}</li>
-              ))}
-            </ul>
+          <div data-testid="mapping-missing" className="space-y-2 rounded-lg border border-amber/60 bg-amber/10 px-4 py-3 text-sm text-ink">
+            {unresolved.length > 0 && (
+              <div>
+                <div className="font-medium text-amber-deep">Choose before confirming</div>
+                <ul className="mt-1 list-disc space-y-0.5 pl-5">
+                  {unresolved.map((n) => (
+                    <li key={n}>
+                      <code>{n}</code>: several headers could hold it ({proposal.ambiguous[n].join(', ')}).
+                    </li>
+                  ))}
+                </ul>
+              </div>
+            )}
+            {proposal.missing.length > 0 && (
+              <div>
+                <div className="font-medium text-amber-deep">Not found when the file was read</div>
+                <ul className="mt-1 list-disc space-y-0.5 pl-5">
+                  {proposal.missing.map((m) => (
+                    <li key={m}>{m}</li>
+                  ))}
+                </ul>
+                <div className="mt-1 text-xs text-muted">Your choices below are checked again when you confirm.</div>
+              </div>
+            )}
           </div>
         )}
 
@@ -118,9 +131,26 @@ export function MappingEditor({ batch, proposal, columns }: Props) {
                   <tr>
                     <th colSpan={4} className="pt-4 pb-1 text-xs font-semibold uppercase tracking-wide text-night">
                       {GROUP_TITLE[g]}
+                      {g === 'unmatched' && (
+                        <button
+                          type="button"
+                          aria-expanded={showUnmatched}
+                          onClick={() => setShowUnmatched(!showUnmatched)}
+                          className="ml-3 rounded px-1.5 py-0.5 text-xs font-medium normal-case tracking-normal text-veil underline underline-offset-2 hover:bg-veil-soft"
+                        >
+                          {showUnmatched ? 'hide' : `show all ${groups.unmatched.length}`}
+                        </button>
+                      )}
                     </th>
                   </tr>
-                  {groups[g].map((c) => {
+                  {g === 'unmatched' && !showUnmatched && (
+                    <tr>
+                      <td colSpan={4} className="pb-2 text-xs text-muted">
+                        {groups.unmatched.map((c) => c.name).join(', ')} — open the list to match one of them by hand.
+                      </td>
+                    </tr>
+                  )}
+                  {groups[g].filter((c) => g !== 'unmatched' || showUnmatched || !!choice[c.name] || problemFor(c.name).length > 0).map((c) => {
                     const header = choice[c.name] ?? '';
                     const candidates = proposal.ambiguous[c.name] ?? [];
                     const shared = header ? (usedBy.get(header) ?? []).filter((n) => n !== c.name) : [];
@@ -145,7 +175,10 @@ export function MappingEditor({ batch, proposal, columns }: Props) {
                           <Select
                             aria-label={`Header for ${c.name}`}
                             value={header}
-                            onChange={(e) => setChoice({ ...choice, [c.name]: e.target.value })}
+                            onChange={(e) => {
+                              setChoice({ ...choice, [c.name]: e.target.value });
+                              if (submit.error) submit.reset(); // the old answer no longer describes this choice
+                            }}
                             className={`min-w-[11rem] ${open ? 'border-amber ring-2 ring-amber/40' : ''}`}
                           >
                             <option value="">{open ? 'Choose…' : '— not in this file —'}</option>
@@ -212,14 +245,16 @@ export function MappingEditor({ batch, proposal, columns }: Props) {
         {submit.error && (
           <Notice tone="bad">
             <span data-testid="mapping-error">{submit.error.message}</span>
-            {problems.length > 0 && (
+            {/* problems tied to one column are also shown beside its select */}
+            {problems.some((p) => p.field.startsWith('mapping.')) && (
               <ul className="mt-1 list-disc pl-5">
-                {problems.map((p) => (
-                  <li key={p.field + p.message}>
-                    {p.field.startsWith('mapping.') && <b className="font-mono">{p.field.slice('mapping.'.length)}: </b>}
-                    {p.message}
-                  </li>
-                ))}
+                {problems
+                  .filter((p) => p.field.startsWith('mapping.'))
+                  .map((p) => (
+                    <li key={p.field + p.message}>
+                      <b className="font-mono">{p.field.slice('mapping.'.length)}</b>: {p.message}
+                    </li>
+                  ))}
               </ul>
             )}
           </Notice>

@@ -22,16 +22,18 @@ export function ColumnGuidePage() {
       >
         Column guide
       </PageTitle>
-      <div className="grid gap-6 xl:grid-cols-[1fr_22rem]">
-        <Card title="Columns">
-          {columns.isPending && <p className="text-sm text-muted">Loading…</p>}
-          {columns.error && <Notice tone="bad">{columns.error.message}</Notice>}
-          {columns.data && <ColumnGuideTable columns={columns.data.columns} />}
-        </Card>
-        <Card title="Conventions">
-          <Conventions fromServer={columns.data?.conventions} />
-        </Card>
-      </div>
+      <Card title="Conventions">
+        {columns.data ? (
+          <Conventions fromServer={columns.data.conventions} className="grid gap-x-8 gap-y-3 md:grid-cols-2 xl:grid-cols-3" />
+        ) : (
+          !columns.error && <p className="text-sm text-muted">Loading…</p>
+        )}
+      </Card>
+      <Card title="Columns">
+        {columns.isPending && <p className="text-sm text-muted">Loading…</p>}
+        {columns.error && <Notice tone="bad">{columns.error.message}</Notice>}
+        {columns.data && <ColumnGuideTable columns={columns.data.columns} />}
+      </Card>
     </div>
   );
 }
