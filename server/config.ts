@@ -13,6 +13,8 @@ export interface Config {
   loginRateLimit: { windowMs: number; max: number };
   uploadMaxBytes: number;
   mail: { transport: 'outbox' | 'smtp'; from: string; smtpUrl?: string };
+  /** How long an e-mailed password-reset link works. */
+  passwordResetMinutes: number;
   publicUrl: string;
   distDir: string;
   seedDemo: boolean;
@@ -51,6 +53,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     },
     uploadMaxBytes: intVar(env, 'UPLOAD_MAX_BYTES', 100 * 1024 * 1024, 1),
     mail: { transport, from: env.MAIL_FROM ?? 'Starveil <no-reply@starveil.example>', smtpUrl: env.SMTP_URL },
+    passwordResetMinutes: intVar(env, 'PASSWORD_RESET_MINUTES', 60, 1),
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
     distDir: path.resolve(env.STARVEIL_DIST ?? 'dist'),
     seedDemo: env.STARVEIL_SEED !== '0',

@@ -1,6 +1,8 @@
 import { Router } from 'express';
 import type { Knex } from 'knex';
 import { guard } from '../auth/roles.js';
+import { badRequest } from '../errors.js';
+import { catalogService } from './service.js';
 
 export function catalogRoutes(deps: { db: Knex }): Router {
   const { db } = deps;
@@ -19,6 +21,33 @@ export function catalogRoutes(deps: { db: Knex }): Router {
   r.get('/instruments', guard('signed-in'), async (_req, res) => {
     const rows = await db('instruments').orderBy('code');
     res.json({ instruments: rows.map((i) => ({ id: i.id, code: i.code, name: i.name, bands: String(i.bands).split(','), description: i.description })) });
+  });
+
+  const catalog = catalogService(db);
+  const num = (v: unknown, field: string) => {
+    if (v === undefined || v === '') return undefined;
+    const n = Number(v);
+    if (!Number.isFinite(n)) throw badRequest(`${field} must be a number`, { fields: [{ field, message: 'expected a number' }] });
+    return n;
+  };
+
+  r.get('/stars', guard('signed-in'), async (req, res) => {
+    const q = req.query as Record<string, string | undefined>;
+    const ra = num(q.ra, 'ra'), dec = num(q.dec, 'dec'), radius = num(q.radius, 'radius');
+    const given = [ra, dec, radius].filter((x) => x !== undefined).length;
+    if (given > 0 && given < 3) throw badRequest('a cone search needs ra, dec and radius (degrees, ICRS)', { fields: [{ field: ra === undefined ? 'ra' : dec === undefined ? 'dec' : 'radius', message: 'required for a cone search' }] });
+    const limit = num(q.limit, 'limit') ?? 50;
+    const offset = num(q.offset, 'offset') ?? 0;
+    if (!Number.isInteger(limit) || limit < 1 || limit > 1000) throw badRequest('limit must be an integer from 1 to 1000', { fields: [{ field: 'limit', message: 'expected 1–1000' }] });
+    if (!Number.isInteger(offset) || offset < 0) throw badRequest('offset must be an integer ≥ 0', { fields: [{ field: 'offset', message: 'expected ≥ 0' }] });
+    const order = q.order === 'desc' ? 'desc' : 'asc';
+    res.json(await catalog.stars(req.user!, { q: q.q?.trim() || undefined, ra, dec, radius, sort: q.sort ?? 'id', order, limit, offset }));
+  });
+
+  r.get('/stars/:id', guard('signed-in'), async (req, res) => {
+    const id = Number(req.params.id);
+    if (!Number.isInteger(id) || id < 1) throw badRequest('The star id in the path must be a positive integer.', { fields: [{ field: 'id', message: 'expected a positive integer' }] });
+    res.json(await catalog.star(req.user!, id));
   });
 
   return r;

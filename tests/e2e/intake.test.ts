@@ -175,6 +175,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     await cur.page.getByRole('heading', { name: 'Batches' }).waitFor();
     const listed = cur.page.getByRole('row').filter({ hasText: 'kestrel-night-messy.csv' });
     expect(await listed.textContent()).toContain(batch.uploadedBy.name);
+    await cur.page.screenshot({ path: path.join(SCREENSHOTS, 'batches-curator.png') });
     await cur.ctx.close();
 
     // A modeler sees neither page.

@@ -47,6 +47,7 @@ describe.runIf(run)('sign-in in a real browser', () => {
     expect(observer).not.toContain('People');
     expect(admin).toContain('People');
     expect(admin).not.toEqual(observer);
+    expect(curator).not.toEqual(observer);
   });
 
   it('a wrong password shows a message and stays on the sign-in page', async () => {

@@ -12,8 +12,16 @@
 import { mulberry32, hashSeed } from '../random';
 import {
   fitSegmentInto, FIT_SIZE, FIT_COST, FIT_SCATTER_VAR, FIT_MEAN_Q, FIT_MEAN_U,
-  FIT_VAR_MEAN_Q, FIT_VAR_MEAN_U,
+  FIT_VAR_MEAN_Q, FIT_VAR_MEAN_U, scanSegment, scannedTHi, scannedVMin, scannedEqualVariances,
+  minimiseFromSamples, writeFitAt, SEGMENT_GRID_RATIO, SEGMENT_GRID_FLOOR_FRACTION, SEGMENT_GRID_MAX,
 } from './segmentCost';
+
+/**
+ * Segments at least this long sample the profile from per-ordering prefix sums on one grid of
+ * t = s² values shared by the cell (O(grid) per segment instead of O(grid·m)); shorter ones
+ * sample it directly. Both then polish the same way, so they give the same fit.
+ */
+const PREFIX_GRID_MIN_LENGTH = 12;
 
 /** Anything that can price a segment [start, end) of the current ordering. */
 export interface SegmentCoster {
@@ -53,6 +61,26 @@ export class SegmentTable implements SegmentCoster {
   private tabRow: Int32Array;
   private rows: Float64Array;
   private nRows = 0;
+  // Cell grid of t values and per-star tables on it (canonical order), built on first need.
+  private gridG = 0;
+  private gridT: Float64Array = new Float64Array(0);
+  private starLn: Float64Array = new Float64Array(0);
+  private starWq: Float64Array = new Float64Array(0);
+  private starWu: Float64Array = new Float64Array(0);
+  private cq: Float64Array;
+  private cu: Float64Array;
+  // Prefix sums over the current ordering, [pos·G + k]: Σ ln, Σw, Σw·x, Σw·x² for q and u.
+  private pLn: Float64Array = new Float64Array(0);
+  private pWq: Float64Array = new Float64Array(0);
+  private pSq: Float64Array = new Float64Array(0);
+  private pSqq: Float64Array = new Float64Array(0);
+  private pWu: Float64Array = new Float64Array(0);
+  private pSu: Float64Array = new Float64Array(0);
+  private pSuu: Float64Array = new Float64Array(0);
+  private prefixReady = false;
+  private directWork = 0;
+  private sampleT: Float64Array = new Float64Array(SEGMENT_GRID_MAX + 2);
+  private sampleF: Float64Array = new Float64Array(SEGMENT_GRID_MAX + 2);
   /** Fits computed (cache misses) and looked up (hits): for benchmarks. */
   misses = 0;
   hits = 0;
@@ -81,6 +109,12 @@ export class SegmentTable implements SegmentCoster {
       this.srcVu[i] = uErr[i] * uErr[i];
       this.srcSingle[i] = Math.log(2 * Math.PI * this.srcVq[i]) + Math.log(2 * Math.PI * this.srcVu[i]);
     }
+    let mq = 0, mu = 0;
+    for (let i = 0; i < n; i++) { mq += this.srcQ[i]; mu += this.srcU[i]; }
+    mq /= Math.max(1, n); mu /= Math.max(1, n);
+    this.cq = new Float64Array(n);
+    this.cu = new Float64Array(n);
+    for (let i = 0; i < n; i++) { this.cq[i] = this.srcQ[i] - mq; this.cu[i] = this.srcU[i] - mu; }
     this.keyA = new Int32Array(n);
     this.keyB = new Int32Array(n);
     const rng = mulberry32(hashSeed('segment-keys', keySeed));
@@ -101,6 +135,8 @@ export class SegmentTable implements SegmentCoster {
 
   /** Sets the current ordering (order[pos] = canonical index). */
   setOrder(order: ArrayLike<number>): void {
+    this.prefixReady = false;
+    this.directWork = 0;
     let a = 0, b = 0;
     this.prefA[0] = 0;
     this.prefB[0] = 0;
@@ -135,7 +171,14 @@ export class SegmentTable implements SegmentCoster {
       slot = (slot + 1) & this.mask;
     }
     const r = this.nRows++;
-    fitSegmentInto(this.q, this.u, this.vq, this.vu, start, end, this.rows, r * FIT_SIZE);
+    // Building the prefix sums costs about what sampling 2n stars directly does: build them
+    // once this ordering's long misses have sampled that many.
+    if (len >= PREFIX_GRID_MIN_LENGTH && (this.prefixReady || this.directWork >= 2 * this.n)) {
+      this.fitFromPrefix(start, end, r * FIT_SIZE);
+    } else {
+      this.directWork += len;
+      fitSegmentInto(this.q, this.u, this.vq, this.vu, start, end, this.rows, r * FIT_SIZE);
+    }
     this.misses++;
     this.tabLen[slot] = len;
     this.tabA[slot] = ka;
@@ -143,6 +186,93 @@ export class SegmentTable implements SegmentCoster {
     this.tabRow[slot] = r;
     if (2 * this.nRows > this.mask) this.grow();
     return r;
+  }
+
+  /** The cell's t grid: 0, then min σ²/16·√2^k up to the first value ≥ (largest range)². */
+  private buildGrid(): void {
+    const n = this.n;
+    let vMin = Infinity, qMin = Infinity, qMax = -Infinity, uMin = Infinity, uMax = -Infinity;
+    for (let i = 0; i < n; i++) {
+      vMin = Math.min(vMin, this.srcVq[i], this.srcVu[i]);
+      qMin = Math.min(qMin, this.srcQ[i]); qMax = Math.max(qMax, this.srcQ[i]);
+      uMin = Math.min(uMin, this.srcU[i]); uMax = Math.max(uMax, this.srcU[i]);
+    }
+    const range = Math.max(qMax - qMin, uMax - uMin);
+    const tHi = range * range;
+    const ts: number[] = [0];
+    let t = vMin * SEGMENT_GRID_FLOOR_FRACTION;
+    while (ts.length < SEGMENT_GRID_MAX) {
+      ts.push(t);
+      if (t >= tHi) break;
+      t *= SEGMENT_GRID_RATIO;
+    }
+    const G = ts.length;
+    this.gridG = G;
+    this.gridT = Float64Array.from(ts);
+    this.starLn = new Float64Array(n * G);
+    this.starWq = new Float64Array(n * G);
+    this.starWu = new Float64Array(n * G);
+    for (let i = 0; i < n; i++) {
+      for (let k = 0; k < G; k++) {
+        const a = this.srcVq[i] + ts[k], b = this.srcVu[i] + ts[k];
+        this.starLn[i * G + k] = Math.log(a) + Math.log(b);
+        this.starWq[i * G + k] = 1 / a;
+        this.starWu[i * G + k] = 1 / b;
+      }
+    }
+    const size = (n + 1) * G;
+    this.pLn = new Float64Array(size);
+    this.pWq = new Float64Array(size); this.pSq = new Float64Array(size); this.pSqq = new Float64Array(size);
+    this.pWu = new Float64Array(size); this.pSu = new Float64Array(size); this.pSuu = new Float64Array(size);
+  }
+
+  private buildPrefix(): void {
+    if (this.gridG === 0) this.buildGrid();
+    const G = this.gridG;
+    const { pLn, pWq, pSq, pSqq, pWu, pSu, pSuu, starLn, starWq, starWu, cq, cu } = this;
+    for (let pos = 0; pos < this.n; pos++) {
+      const i = this.order[pos];
+      const x = cq[i], y = cu[i];
+      const src = i * G, prev = pos * G, cur = prev + G;
+      for (let k = 0; k < G; k++) {
+        const a = starWq[src + k], b = starWu[src + k];
+        pLn[cur + k] = pLn[prev + k] + starLn[src + k];
+        pWq[cur + k] = pWq[prev + k] + a;
+        pSq[cur + k] = pSq[prev + k] + a * x;
+        pSqq[cur + k] = pSqq[prev + k] + a * x * x;
+        pWu[cur + k] = pWu[prev + k] + b;
+        pSu[cur + k] = pSu[prev + k] + b * y;
+        pSuu[cur + k] = pSuu[prev + k] + b * y * y;
+      }
+    }
+    this.prefixReady = true;
+  }
+
+  /** Fit of a long segment: profile sampled from the prefix sums, then polished directly. */
+  private fitFromPrefix(start: number, end: number, offset: number): void {
+    const { q, u, vq, vu } = this;
+    scanSegment(q, u, vq, vu, start, end);
+    const tHi = scannedTHi();
+    if (tHi === 0 || scannedEqualVariances()) {
+      fitSegmentInto(q, u, vq, vu, start, end, this.rows, offset);
+      return;
+    }
+    if (!this.prefixReady) this.buildPrefix();
+    const G = this.gridG;
+    const { pLn, pWq, pSq, pSqq, pWu, pSu, pSuu, gridT, sampleT, sampleF } = this;
+    const s0 = start * G, e0 = end * G;
+    let g = 0;
+    for (let k = 0; k < G; k++) {
+      const wq = pWq[e0 + k] - pWq[s0 + k], sq = pSq[e0 + k] - pSq[s0 + k];
+      const wu = pWu[e0 + k] - pWu[s0 + k], su = pSu[e0 + k] - pSu[s0 + k];
+      const chi2 = (pSqq[e0 + k] - pSqq[s0 + k] - (sq * sq) / wq) + (pSuu[e0 + k] - pSuu[s0 + k] - (su * su) / wu);
+      sampleT[g] = gridT[k];
+      sampleF[g] = pLn[e0 + k] - pLn[s0 + k] + (chi2 > 0 ? chi2 : 0);
+      g++;
+      if (gridT[k] >= tHi) break;
+    }
+    const t = minimiseFromSamples(q, u, vq, vu, start, end, sampleT, sampleF, g, scannedVMin());
+    writeFitAt(q, u, vq, vu, start, end, t, this.rows, offset);
   }
 
   private grow(): void {

@@ -21,7 +21,7 @@ export function ColumnGuideTable({ columns }: { columns: IntakeColumn[] }) {
                 <code className="font-semibold text-night">{c.name}</code>
               </td>
               <td className="whitespace-nowrap py-2 pr-4 text-ink">{c.unit || '—'}</td>
-              <td className="max-w-[16rem] py-2 pr-4 text-ink">
+              <td className="max-w-[22rem] py-2 pr-4 text-ink">
                 <RequiredRule rule={c.required} />
               </td>
               <td className="py-2 pr-4 text-ink">{c.description}</td>

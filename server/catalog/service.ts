@@ -1,0 +1,103 @@
+import type { Knex } from 'knex';
+import type { SessionUser } from '../auth/roles.js';
+import { hasRole } from '../auth/roles.js';
+import { badRequest, notFound } from '../errors.js';
+import { combineMeasurements } from '../science/combine.js';
+import { whereInCone, withinCone } from './cone.js';
+
+const STAR_SORTS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'n_measurements'] as const;
+
+export interface StarQuery {
+  q?: string;
+  ra?: number;
+  dec?: number;
+  radius?: number;
+  sort: string;
+  order: 'asc' | 'desc';
+  limit: number;
+  offset: number;
+}
+
+/** Which measurements a person may read: modelers approved only; observers approved + their own batches'. */
+export function visibleMeasurements(db: Knex, user: SessionUser) {
+  const q = db('measurements');
+  if (hasRole(user, ['curator'])) return q;
+  if (user.role === 'observer') return q.where((w) => w.where('measurements.state', 'approved').orWhereIn('measurements.batch_id', db('batches').where('uploaded_by', user.id).select('id')));
+  return q.where('measurements.state', 'approved');
+}
+
+export function catalogService(db: Knex) {
+  return {
+    async stars(user: SessionUser, query: StarQuery) {
+      if (!(STAR_SORTS as readonly string[]).includes(query.sort)) throw badRequest(`sort must be one of ${STAR_SORTS.join(', ')}`, { fields: [{ field: 'sort', message: 'unknown column' }] });
+      const counts = visibleMeasurements(db, user).select('star_id').count({ n: '*' }).groupBy('star_id').as('mc');
+      let base = db('stars').leftJoin(counts, 'mc.star_id', 'stars.id');
+      if (!hasRole(user, ['curator'])) base = base.whereNotNull('mc.star_id'); // stars known only from unseen batches stay hidden
+      if (query.q) {
+        const like = `%${query.q.replace(/[%_]/g, (c) => `\\${c}`)}%`;
+        base = base.where((w) => w.whereRaw("stars.name LIKE ? ESCAPE '\\'", [like]).orWhere('stars.source_id', query.q!));
+      }
+      const cone = query.ra !== undefined && query.dec !== undefined && query.radius !== undefined;
+      if (cone) {
+        if (!(query.radius! > 0 && query.radius! <= 30)) throw badRequest('radius must be in degrees, > 0 and ≤ 30', { fields: [{ field: 'radius', message: 'expected 0 < radius ≤ 30 (deg)' }] });
+        if (!(query.ra! >= 0 && query.ra! < 360)) throw badRequest('ra must be in degrees, 0 ≤ ra < 360', { fields: [{ field: 'ra', message: 'expected 0 ≤ ra < 360 (deg)' }] });
+        if (!(query.dec! >= -90 && query.dec! <= 90)) throw badRequest('dec must be in degrees, −90 ≤ dec ≤ 90', { fields: [{ field: 'dec', message: 'expected −90 ≤ dec ≤ 90 (deg)' }] });
+        base = whereInCone(base, 'stars.hpx15', query.ra!, query.dec!, query.radius!);
+      }
+      const cols = ['stars.id', 'stars.name', 'stars.source_id', 'stars.ra_deg', 'stars.dec_deg', 'stars.glon_deg', 'stars.glat_deg', 'stars.parallax_mas', 'stars.parallax_err_mas', db.raw('coalesce(mc.n, 0) as n_measurements')];
+      if (cone) {
+        // exact separations, sorted by distance from the centre unless another sort is asked for
+        const all = withinCone(await base.clone().select(cols), query.ra!, query.dec!, query.radius!);
+        const sorted = query.sort === 'id' ? all : [...all].sort((a: any, b: any) => (a[query.sort] < b[query.sort] ? -1 : a[query.sort] > b[query.sort] ? 1 : 0) * (query.order === 'desc' ? -1 : 1));
+        return { stars: sorted.slice(query.offset, query.offset + query.limit).map(present), total: all.length };
+      }
+      const [{ n }] = await base.clone().count({ n: '*' });
+      const sortCol = query.sort === 'n_measurements' ? 'n_measurements' : `stars.${query.sort}`;
+      const rows = await base.clone().select(cols).orderBy(sortCol, query.order).orderBy('stars.id').limit(query.limit).offset(query.offset);
+      return { stars: rows.map(present), total: Number(n) };
+    },
+
+    async star(user: SessionUser, id: number) {
+      const star = await db('stars').where({ id }).first();
+      if (!star) throw notFound(`Star ${id}`);
+      const measurements = await visibleMeasurements(db, user).where('measurements.star_id', id).orderBy(['band', 'mjd', 'id']).select();
+      if (!hasRole(user, ['curator']) && measurements.length === 0) throw notFound(`Star ${id}`);
+      // combined value per band and instrument from approved measurements (METHODS.md: inverse-variance weighted q, u)
+      const groups = new Map<string, typeof measurements>();
+      for (const m of measurements) {
+        if (m.state !== 'approved') continue;
+        const k = `${m.band}|${m.instrument}`;
+        groups.set(k, [...(groups.get(k) ?? []), m]);
+      }
+      const combined = [...groups].map(([k, ms]) => {
+        const [band, instrument] = k.split('|');
+        const c = combineMeasurements(ms.map((m) => ({ q: m.q, u: m.u, qErr: m.q_err, uErr: m.u_err })));
+        return { band, instrument, ...c };
+      });
+      return {
+        star: present({ ...star, n_measurements: measurements.length }),
+        measurements: measurements.map((m) => ({
+          id: m.id, state: m.state, version: m.version, batchId: m.batch_id, band: m.band, instrument: m.instrument, mjd: m.mjd,
+          q: m.q, u: m.u, q_err: m.q_err, u_err: m.u_err, p: m.p, p_err: m.p_err, p_debiased: m.p_debiased, theta_deg: m.theta_deg, theta_err_deg: m.theta_err_deg,
+          q_gal: m.q_gal, u_gal: m.u_gal, theta_gal_deg: m.theta_gal_deg, distance_pc: m.distance_pc, distance_lo_pc: m.distance_lo_pc, distance_hi_pc: m.distance_hi_pc, distance_method: m.distance_method,
+          flags: m.flags_json ? JSON.parse(m.flags_json) : [],
+        })),
+        combined,
+        units: UNITS,
+      };
+    },
+  };
+}
+
+export const UNITS = {
+  q: 'fraction (Stokes Q/I), IAU convention, equatorial reference', u: 'fraction (Stokes U/I), IAU convention, equatorial reference', p: 'fraction', theta_deg: 'deg, east of north, [0, 180)',
+  q_gal: 'fraction, Galactic reference', theta_gal_deg: 'deg from Galactic north through east', distance_pc: 'pc', ra_deg: 'deg ICRS', dec_deg: 'deg ICRS', parallax_mas: 'mas (as published; +0.017 mas zero point applied for distances)', mjd: 'd (MJD, UTC)',
+};
+
+function present(s: Record<string, any>) {
+  return {
+    id: s.id, name: s.name, sourceId: s.source_id, ra_deg: s.ra_deg, dec_deg: s.dec_deg, glon_deg: s.glon_deg, glat_deg: s.glat_deg,
+    parallax_mas: s.parallax_mas, parallax_err_mas: s.parallax_err_mas, nMeasurements: Number(s.n_measurements ?? 0),
+    ...(s.separation_deg !== undefined ? { separation_deg: s.separation_deg } : {}),
+  };
+}

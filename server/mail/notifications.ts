@@ -1,0 +1,118 @@
+import type { Knex } from 'knex';
+import type { Mailer, SendResult } from './transport.js';
+
+/** A batch's row counts as intake reports them (structurally the same as intake's BatchCounts). */
+export interface MailBatchCounts {
+  rows?: number;
+  accepted?: number;
+  rejected?: number;
+  duplicates?: number;
+  conflicts?: number;
+  ambiguous?: number;
+  newStars?: number;
+  matchedStars?: number;
+  warnings?: number;
+}
+
+export interface MailBatch {
+  id: number;
+  filename: string;
+  uploadedBy: { name: string; email: string };
+}
+
+export interface Notified extends SendResult {
+  to: string;
+}
+
+const COUNT_LINES: [keyof MailBatchCounts, string][] = [
+  ['rows', 'rows read'],
+  ['accepted', 'accepted'],
+  ['rejected', 'rejected'],
+  ['duplicates', 'duplicates'],
+  ['conflicts', 'conflicts'],
+  ['ambiguous', 'ambiguous star match'],
+  ['newStars', 'new stars'],
+  ['matchedStars', 'known stars matched'],
+  ['warnings', 'rows with warnings'],
+];
+
+/** The counts as an aligned plain-text table, skipping figures intake did not report. */
+export function countsTable(counts: MailBatchCounts | null | undefined): string {
+  const lines = COUNT_LINES.filter(([k]) => typeof counts?.[k] === 'number').map(([k, label]) => [label, counts![k]!.toLocaleString('en-US')] as const);
+  if (!lines.length) return '  (no row counts yet)';
+  const labelWidth = Math.max(...lines.map(([l]) => l.length));
+  const numWidth = Math.max(...lines.map(([, n]) => n.length));
+  return lines.map(([l, n]) => `  ${l.padEnd(labelWidth)}  ${n.padStart(numWidth)}`).join('\n');
+}
+
+const FOOTER = '\n\n-- \nStarveil · sent automatically, replies are not read.';
+
+/**
+ * Tell every enabled curator and admin that a batch has been checked and waits for review.
+ * One message per person, so nobody sees the others' addresses. Never throws.
+ */
+export async function notifyCuratorsOfNewBatch(
+  mailer: Mailer,
+  db: Knex,
+  batch: MailBatch & { counts: MailBatchCounts | null },
+): Promise<Notified[]> {
+  let people: { email: string; name: string }[];
+  try {
+    people = await db('users').whereIn('role', ['curator', 'admin']).andWhere({ disabled: false }).orderBy('id').select('email', 'name');
+  } catch (e) {
+    console.error(`mail: could not list curators for batch ${batch.id}: ${e instanceof Error ? e.message : e}`);
+    return [];
+  }
+  const link = mailer.link(`/batches/${batch.id}`);
+  const subject = `Batch #${batch.id} waits for review: ${batch.filename}`;
+  const results: Notified[] = [];
+  for (const person of people) {
+    const text =
+      `Hello ${person.name},\n\n` +
+      `${batch.uploadedBy.name} <${batch.uploadedBy.email}> uploaded "${batch.filename}" (batch #${batch.id}). ` +
+      `Starveil has checked every row and the batch now waits for a curator's review.\n\n` +
+      `${countsTable(batch.counts)}\n\n` +
+      `Review it here:\n${link}\n\n` +
+      `You get this message because you are a curator or admin on Starveil.` +
+      FOOTER;
+    results.push({ to: person.email, ...(await mailer.send({ to: person.email, subject, text })) });
+  }
+  return results;
+}
+
+/**
+ * Tell the uploader what the curator decided, with the counts, the curator's note and a link to
+ * the batch. Skipped (null) when the uploader's account no longer exists or is disabled. Never throws.
+ */
+export async function notifyObserverOfReview(
+  mailer: Mailer,
+  db: Knex,
+  batch: MailBatch,
+  decision: 'approved' | 'returned',
+  note: string | null,
+  counts: MailBatchCounts | null,
+): Promise<Notified | null> {
+  try {
+    const account = await db('users').where({ email: batch.uploadedBy.email.trim().toLowerCase() }).first('disabled');
+    if (!account || account.disabled) return null;
+  } catch (e) {
+    console.error(`mail: could not look up the uploader of batch ${batch.id}: ${e instanceof Error ? e.message : e}`);
+    return null;
+  }
+  const link = mailer.link(`/batches/${batch.id}`);
+  const subject = decision === 'approved'
+    ? `Batch #${batch.id} approved: ${batch.filename}`
+    : `Batch #${batch.id} returned for changes: ${batch.filename}`;
+  const what = decision === 'approved'
+    ? 'has been approved by a curator.'
+    : 'has been returned to you by a curator for changes. The note below and the batch page say what needs fixing.';
+  const noteText = note && note.trim() ? note.trim().split('\n').map((l) => `  ${l}`).join('\n') : '  (the curator left no note)';
+  const text =
+    `Hello ${batch.uploadedBy.name},\n\n` +
+    `Your batch "${batch.filename}" (batch #${batch.id}) ${what}\n\n` +
+    `Curator's note:\n${noteText}\n\n` +
+    `Row counts:\n${countsTable(counts)}\n\n` +
+    `See the batch:\n${link}` +
+    FOOTER;
+  return { to: batch.uploadedBy.email, ...(await mailer.send({ to: batch.uploadedBy.email, subject, text })) };
+}
