@@ -14,6 +14,11 @@ import { adminRoutes } from './admin/routes.js';
 import { catalogRoutes } from './catalog/routes.js';
 import { intakeService, type IntakeService } from './intake/service.js';
 import { intakeRoutes } from './intake/routes.js';
+import { measurementService } from './measurements/service.js';
+import { reviewService } from './review/service.js';
+import { reviewRoutes } from './review/routes.js';
+import { createMailer, type Mailer } from './mail/transport.js';
+import { mailRoutes } from './mail/routes.js';
 
 export interface AppDeps {
   db: Knex;
@@ -24,6 +29,7 @@ export interface AppDeps {
 
 export interface AppServices {
   intake: IntakeService;
+  mail: Mailer;
 }
 
 /** Build the Express app without listening, so tests can drive it with supertest. */
@@ -51,6 +57,9 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const auth = authService(db, { allowDemoPassword: config.allowDemoPassword });
   const pp = createPassport(auth);
   const intake = intakeService(db, config, config.intake, deps.readDb ?? db);
+  const measurements = measurementService(db);
+  const review = reviewService(db, deps.readDb ?? db);
+  const mailer = createMailer(db, config);
 
   const api = express.Router();
   api.use(express.json({ limit: '2mb' }));
@@ -75,6 +84,8 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(adminRoutes({ auth }));
   api.use(catalogRoutes({ db }));
   api.use(intakeRoutes({ intake, config }));
+  api.use(reviewRoutes({ db, review, measurements }));
+  api.use(mailRoutes({ db, mailer, config }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
   app.use('/api/v1', api);
@@ -92,5 +103,5 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     });
   }
   app.use(errorMiddleware);
-  return Object.assign(app, { services: { intake } });
+  return Object.assign(app, { services: { intake, mail: mailer } });
 }

@@ -1,0 +1,97 @@
+import type { Knex } from 'knex';
+import { recordAudit, auditFor } from '../audit/service.js';
+import { AppError, badRequest, notFound } from '../errors.js';
+
+export const MEASUREMENT_SORTS = ['line', 'state', 'band', 'instrument', 'mjd', 'q', 'u', 'p', 'p_debiased', 'theta_deg', 'theta_err_deg', 'distance_pc', 'star_name'] as const;
+const FILTERABLE = ['state', 'band', 'instrument', 'distance_method'] as const;
+
+export interface BatchDecisionHook {
+  (batch: { id: number; filename: string; uploaded_by: number }, decision: 'approved' | 'returned', note: string | null, counts: Record<string, number>): Promise<void> | void;
+}
+
+/** Curator work on batches: the queue, the table of a batch's measurements, whole-batch decisions. */
+export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDecisionHook) {
+  return {
+    async queue(q: { state: string; sort: 'age' | 'rows' | 'uploader'; order: 'asc' | 'desc' }) {
+      const rows = await readDb('batches').leftJoin('users', 'users.id', 'batches.uploaded_by').where('batches.state', q.state).select('batches.id', 'batches.filename', 'batches.state', 'batches.instrument', 'batches.counts_json', 'batches.created_at', 'batches.reviewed_at', 'batches.review_note', 'users.name as uploader_name', 'users.email as uploader_email');
+      const now = Date.now();
+      const items = rows.map((b) => ({
+        id: b.id, filename: b.filename, state: b.state, instrument: b.instrument, counts: b.counts_json ? JSON.parse(b.counts_json) : null,
+        uploadedBy: { name: b.uploader_name, email: b.uploader_email }, createdAt: b.created_at, ageHours: Number(((now - Date.parse(b.created_at)) / 3.6e6).toFixed(2)),
+        reviewedAt: b.reviewed_at, reviewNote: b.review_note,
+      }));
+      const key = { age: (x: (typeof items)[0]) => -x.ageHours, rows: (x: (typeof items)[0]) => x.counts?.rows ?? 0, uploader: (x: (typeof items)[0]) => x.uploadedBy.name ?? '' }[q.sort];
+      items.sort((a, b) => {
+        const ka = key(a), kb = key(b);
+        return (ka < kb ? -1 : ka > kb ? 1 : 0) * (q.order === 'desc' ? -1 : 1);
+      });
+      return { batches: items };
+    },
+
+    /** One page of a batch's measurements (server-side sort and filters), for the review table. */
+    async measurements(batchId: number, q: { sort: string; order: 'asc' | 'desc'; limit: number; offset: number; filters: Record<string, string>; search?: string }) {
+      if (!(MEASUREMENT_SORTS as readonly string[]).includes(q.sort)) throw badRequest(`sort must be one of ${MEASUREMENT_SORTS.join(', ')}`, { fields: [{ field: 'sort', message: 'unknown column' }] });
+      const batch = await readDb('batches').where({ id: batchId }).first();
+      if (!batch) throw notFound(`Batch ${batchId}`);
+      let base = readDb('measurements').join('batch_rows', 'batch_rows.id', 'measurements.batch_row_id').leftJoin('stars', 'stars.id', 'measurements.star_id').where('measurements.batch_id', batchId);
+      for (const [k, v] of Object.entries(q.filters)) {
+        if (!(FILTERABLE as readonly string[]).includes(k)) throw badRequest(`filter.${k} is not filterable; use one of ${FILTERABLE.join(', ')}`, { fields: [{ field: `filter.${k}`, message: 'not filterable' }] });
+        base = base.where(`measurements.${k}`, v);
+      }
+      if (q.search) base = base.where((w) => w.where('stars.name', 'like', `%${q.search}%`).orWhere('stars.source_id', q.search!));
+      const [{ n }] = await base.clone().count({ n: '*' });
+      const sortCol = q.sort === 'line' ? 'batch_rows.line' : q.sort === 'star_name' ? 'stars.name' : `measurements.${q.sort}`;
+      const rows = await base.clone().orderBy(sortCol, q.order).orderBy('measurements.id').limit(q.limit).offset(q.offset).select(
+        'measurements.id', 'measurements.state', 'measurements.version', 'measurements.band', 'measurements.instrument', 'measurements.mjd', 'measurements.ra_deg', 'measurements.dec_deg',
+        'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err', 'measurements.p', 'measurements.p_err', 'measurements.p_debiased', 'measurements.theta_deg', 'measurements.theta_err_deg',
+        'measurements.theta_gal_deg', 'measurements.parallax_mas', 'measurements.parallax_err_mas', 'measurements.distance_pc', 'measurements.distance_lo_pc', 'measurements.distance_hi_pc', 'measurements.distance_method', 'measurements.ebv',
+        'measurements.flags_json', 'measurements.conflicts_with', 'batch_rows.line', 'batch_rows.warnings_json', 'batch_rows.candidates_json', 'stars.id as star_id', 'stars.name as star_name', 'stars.source_id as star_source_id',
+      );
+      // conflicts and ambiguous matches carry what competes with them
+      const otherIds = rows.filter((r) => r.conflicts_with).map((r) => r.conflicts_with);
+      const others = otherIds.length ? await readDb('measurements').whereIn('id', otherIds).select('id', 'state', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'theta_deg', 'batch_id') : [];
+      const byId = new Map(others.map((o) => [o.id, o]));
+      return {
+        total: Number(n),
+        rows: rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, ...r }) => ({
+          ...r,
+          star_source_id,
+          flags: flags_json ? JSON.parse(flags_json) : [],
+          warnings: warnings_json ? JSON.parse(warnings_json) : [],
+          candidates: candidates_json ? JSON.parse(candidates_json) : [],
+          competing: r.conflicts_with ? byId.get(r.conflicts_with) ?? null : null,
+        })),
+      };
+    },
+
+    /** Approve (or return) a whole batch: every pending measurement changes state; held rows stay held. */
+    async decide(actorId: number, batchId: number, decision: 'approved' | 'returned', note: string | null) {
+      const result = await db.transaction(async (trx) => {
+        const b = await trx('batches').where({ id: batchId }).first();
+        if (!b) throw notFound(`Batch ${batchId}`);
+        if (!['awaiting_review', 'approved', 'returned'].includes(b.state)) throw new AppError(409, 'not_reviewable', `Batch ${batchId} is ${b.state}; only a checked batch can be approved or returned.`);
+        const target = decision === 'approved' ? 'approved' : 'rejected';
+        const pending = await trx('measurements').where({ batch_id: batchId, state: 'pending' }).pluck('id');
+        const now = new Date().toISOString();
+        for (let i = 0; i < pending.length; i += 900) await trx('measurements').whereIn('id', pending.slice(i, i + 900)).update({ state: target, version: trx.raw('version + 1'), updated_at: now, updated_by: actorId });
+        const held = await trx('measurements').where({ batch_id: batchId }).whereIn('state', ['conflict', 'ambiguous']).select('state').count({ n: '*' }).groupBy('state');
+        const counts = { changed: pending.length, conflicts: 0, ambiguous: 0 } as Record<string, number>;
+        for (const h of held as { state: string; n: number }[]) counts[h.state === 'conflict' ? 'conflicts' : 'ambiguous'] = Number(h.n);
+        await trx('batches').where({ id: batchId }).update({ state: decision, reviewed_by: actorId, reviewed_at: now, review_note: note, updated_at: now });
+        await recordAudit(trx, [
+          { actorId, action: `batch.${decision === 'approved' ? 'approve' : 'return'}`, entityType: 'batch', entityId: batchId, before: { state: b.state }, after: { state: decision, ...counts }, reason: note },
+          ...pending.map((id: number) => ({ actorId, action: `measurement.${decision === 'approved' ? 'approve' : 'reject'}`, entityType: 'measurement', entityId: id, before: { state: 'pending' }, after: { state: target }, reason: `batch ${batchId} ${decision}` })),
+        ]);
+        return { batch: b, counts };
+      });
+      await onDecision?.(result.batch, decision, note, result.counts);
+      return { id: batchId, state: decision, note, counts: result.counts };
+    },
+
+    async history(entityType: string, entityId: number) {
+      const rows = await auditFor(readDb, entityType, entityId);
+      return rows.map((a) => ({ id: a.id, at: a.at, action: a.action, actor: a.actor_id ? { id: a.actor_id, name: a.actor_name, email: a.actor_email } : null, before: a.before_json ? JSON.parse(a.before_json) : null, after: a.after_json ? JSON.parse(a.after_json) : null, reason: a.reason }));
+    },
+  };
+}
+export type ReviewService = ReturnType<typeof reviewService>;
