@@ -50,6 +50,15 @@ export class CrossMatcher {
     return px;
   }
 
+  /** Forget what was loaded for the previous chunk (it is in the database now). */
+  resetChunk(): void {
+    this.bySource.clear();
+    this.byPixel.clear();
+    this.loadedPixels.clear();
+    this.loadedSources.clear();
+    this.pixelCache = new WeakMap();
+  }
+
   remember(star: StarRef): void {
     if (star.source_id) this.bySource.set(star.source_id, star);
     const list = this.byPixel.get(star.hpx15);

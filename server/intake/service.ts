@@ -7,6 +7,7 @@ import { AppError, badRequest, notFound } from '../errors.js';
 import type { SessionUser } from '../auth/roles.js';
 import { hasRole } from '../auth/roles.js';
 import { deriveMeasurement, INDEX_NSIDE, type Derived } from '../measurements/derive.js';
+import { derivedColumns } from '../measurements/service.js';
 import { normaliseRow, type RowIssue } from '../measurements/normalise.js';
 import { checkMapping, missingColumns, proposeMapping, type ColumnMapping, type MappingProposal } from '../measurements/mapping.js';
 import { ang2pixNest } from '../science/healpix.js';
@@ -119,13 +120,16 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
       await db.transaction(async (trx) => {
         const matcher = new CrossMatcher(trx, opts.crossmatchArcsec);
         let nextStarId = (await maxId(trx, 'stars')) + 1;
+        // stars with ids from here on were made by this batch (ids are assigned in order inside the transaction)
+        const firstNewStarId = nextStarId;
+        const isNew = (id: number) => id < 0 || id >= firstNewStarId;
         let nextRowId = (await maxId(trx, 'batch_rows')) + 1;
         let nextMeasId = (await maxId(trx, 'measurements')) + 1;
         const counts: BatchCounts = { ...ZERO_COUNTS };
         const matched = new Set<number>();
-        // measurements already known per star|band|instrument (catalog and this batch)
-        const known = new Map<string, { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number }[]>();
-        const loadedStars = new Set<number>();
+        // Memory stays bounded by the chunk: earlier chunks' stars and measurements are already
+        // written inside this transaction, so each chunk reads them back like catalog rows.
+        let known = new Map<string, { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number }[]>();
 
         for await (const chunk of readCsvRows(b.stored_path, proposal.delimiter, (bytes) => {
           const p = progress.get(batchId);
@@ -160,6 +164,8 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
             return { raDeg: derived.ra_deg, decDeg: derived.dec_deg };
           });
           const queries = parsed.map((p, i) => (p.row && positions[i] ? { sourceId: p.row.source_id, ...positions[i]! } : null));
+          matcher.resetChunk();
+          known = new Map();
           await matcher.prefetch(queries.filter((q): q is NonNullable<typeof q> => q !== null));
 
           const newStars: Record<string, unknown>[] = [];
@@ -169,7 +175,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
           const matches = parsed.map((p, i) => {
             if (!p.row) return null;
             const m = matcher.match(queries[i]!);
-            if (m.kind === 'source_id' || m.kind === 'position') if (m.star.id > 0 && !loadedStars.has(m.star.id)) toLoad.add(m.star.id);
+            if ((m.kind === 'source_id' || m.kind === 'position') && m.star.id > 0) toLoad.add(m.star.id);
             return m;
           });
           // existing measurements of the matched catalog stars, for de-duplication
@@ -180,7 +186,6 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
             if (list) list.push(r);
             else known.set(k, [r]);
           }
-          for (const id of ids) loadedStars.add(id);
 
           // 3. derive, de-duplicate, build rows
           parsed.forEach((p, i) => {
@@ -197,7 +202,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
             if (m.kind === 'source_id' || m.kind === 'position') {
               star = m.star;
               base.star_match = m.kind;
-              if (star.id > 0) matched.add(star.id);
+              if (!isNew(star.id)) matched.add(star.id);
             } else if (m.kind === 'none') {
               const pos = positions[i]!;
               star = {
@@ -429,8 +434,7 @@ export type IntakeService = ReturnType<typeof intakeService>;
 const DERIVED_COLUMNS = ['band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'theta_gal_deg', 'glon_deg', 'glat_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'distance_method', 'state', 'flags_json'] as const;
 
 function measurementRecord(id: number, starId: number | null, batchId: number, rowId: number, state: string, d: Derived, now: string, conflictsWith: number | null) {
-  const { flags, ...values } = d;
-  return { id, star_id: starId, batch_id: batchId, batch_row_id: rowId, state, version: 1, ...values, flags_json: flags.length ? JSON.stringify(flags) : null, conflicts_with: conflictsWith, created_at: now, updated_at: now };
+  return { id, star_id: starId, batch_id: batchId, batch_row_id: rowId, state, version: 1, ...derivedColumns(d), conflicts_with: conflictsWith, created_at: now, updated_at: now };
 }
 
 function presentRow(r: Record<string, any>, headers: string[]) {

@@ -18,7 +18,8 @@ afterAll(async () => {
 });
 
 const sha256 = (s: string) => crypto.createHash('sha256').update(s).digest('hex');
-const outboxTo = (email: string) => t.db('outbox').where({ to_address: email }).orderBy('id');
+const outboxTo = (email: string) => t.db('outbox').where({ to_address: email.toLowerCase() }).orderBy('id');
+const countOf = async (table: string) => Number((await t.db(table).count({ n: '*' }))[0].n);
 
 /** Ask for a reset link for `email` and return the token from the message that arrives. */
 async function resetTokenFor(email: string): Promise<string> {
@@ -31,6 +32,14 @@ async function resetTokenFor(email: string): Promise<string> {
   const m = rows.at(-1).text_body.match(/http:\/\/starveil\.test:8080\/reset-password\?token=([A-Za-z0-9_-]+)/);
   expect(m, 'the message holds the reset link').not.toBeNull();
   return m![1];
+}
+
+/** A fresh account with the password 'original-password', so the demo accounts keep theirs. */
+async function newAccount(email: string, role = 'observer') {
+  const admin = await signedIn(t.app, 'admin');
+  const res = await admin.post('/api/v1/admin/users').send({ email, name: email.split('@')[0], role, password: 'original-password' });
+  expect(res.status).toBe(201);
+  return res.body as { id: number; email: string };
 }
 
 const login = (email: string, password: string) => request(t.app).post('/api/v1/auth/login').send({ email, password });
@@ -82,12 +91,12 @@ describe('outbox transport', () => {
 
 describe('password reset', () => {
   it('answers an unknown e-mail exactly like a known one, and sends nothing for it', async () => {
-    const countBefore = Number((await t.db('outbox').count({ n: '*' }))[0].n);
+    const [mailBefore, resetsBefore] = [await countOf('outbox'), await countOf('password_resets')];
     const unknown = await request(t.app).post('/api/v1/auth/password-reset/request').send({ email: 'nobody@kestrel.example' });
     await t.app.services.mail.idle();
     expect(unknown.status).toBe(202);
-    expect(Number((await t.db('outbox').count({ n: '*' }))[0].n)).toBe(countBefore);
-    expect(await t.db('password_resets').count({ n: '*' }).first()).toEqual({ n: 0 });
+    expect(await countOf('outbox')).toBe(mailBefore);
+    expect(await countOf('password_resets')).toBe(resetsBefore);
 
     const known = await request(t.app).post('/api/v1/auth/password-reset/request').send({ email: DEMO.curator });
     expect(known.status).toBe(202);
@@ -110,33 +119,34 @@ describe('password reset', () => {
   });
 
   it('sets the new password once: old password stops working, sessions end, second use is refused', async () => {
-    const live = await signedIn(t.app, 'observer');
-    const token = await resetTokenFor(DEMO.observer);
+    const email = 'forgetful@kestrel.example';
+    const account = await newAccount(email);
+    const live = request.agent(t.app);
+    expect((await live.post('/api/v1/auth/login').send({ email, password: 'original-password' })).status).toBe(200);
+    const token = await resetTokenFor(email);
     const res = await confirm(token, 'a-fresh-observer-password');
     expect(res.status).toBe(204);
 
     expect((await live.get('/api/v1/me')).status).toBe(401);
-    expect((await login(DEMO.observer, DEMO_PASSWORD)).status).toBe(401);
-    expect((await login(DEMO.observer, 'a-fresh-observer-password')).status).toBe(200);
+    expect((await login(email, 'original-password')).status).toBe(401);
+    expect((await login(email, 'a-fresh-observer-password')).status).toBe(200);
 
     const again = await confirm(token, 'yet-another-password');
     expect(again.status).toBe(400);
     expect(again.body.error.code).toBe('reset_token_used');
     expect(again.body.error.message).toMatch(/already been used/);
     expect(again.body.error.details.fields[0].field).toBe('token');
-    expect((await login(DEMO.observer, 'yet-another-password')).status).toBe(401);
+    expect((await login(email, 'yet-another-password')).status).toBe(401);
 
-    const user = await t.db('users').where({ email: DEMO.observer }).first();
-    const audit = await t.db('audit_log').where({ entity_type: 'user', entity_id: String(user.id) }).orderBy('id').pluck('action');
-    expect(audit).toEqual(['user.password_reset_request', 'user.password_reset']);
-    const notice = (await outboxTo(DEMO.observer)).at(-1);
+    const audit = await t.db('audit_log').where({ entity_type: 'user', entity_id: String(account.id) }).orderBy('id');
+    expect(audit.map((a) => a.action)).toEqual(['user.create', 'user.password_reset_request', 'user.password_reset']);
+    expect(audit[2].actor_id).toBe(account.id);
+    const notice = (await outboxTo(email)).at(-1);
     expect(notice.subject).toBe('Your Starveil password was changed');
   });
 
   it('a newer reset spends the older links of the same person', async () => {
-    await t.app.services.auth_placeholder_guard?.(); // no-op: keeps this test independent of order
-    const admin = await signedIn(t.app, 'admin');
-    await admin.post('/api/v1/admin/users').send({ email: 'two.links@kestrel.example', name: 'Two Links', role: 'modeler', password: 'original-password' });
+    await newAccount('two.links@kestrel.example');
     const first = await resetTokenFor('two.links@kestrel.example');
     const second = await resetTokenFor('two.links@kestrel.example');
     expect(first).not.toBe(second);
@@ -164,7 +174,8 @@ describe('password reset', () => {
     expect(unknown.body.error.code).toBe('reset_token_unknown');
     expect(unknown.body.error.details.fields).toEqual([{ field: 'token', message: expect.stringMatching(/not valid/) }]);
 
-    const token = await resetTokenFor(DEMO.curator);
+    await newAccount('careful@kestrel.example');
+    const token = await resetTokenFor('careful@kestrel.example');
     const demo = await confirm(token, DEMO_PASSWORD);
     expect(demo.status).toBe(400);
     expect(demo.body.error.details.fields[0].field).toBe('newPassword');
@@ -175,13 +186,14 @@ describe('password reset', () => {
     expect(missing.status).toBe(400);
     expect(missing.body.error.details.fields[0]).toEqual({ field: 'email', message: 'email is required' });
     // the refused attempts did not spend the token
-    expect((await confirm(token, 'curator-new-password')).status).toBe(204);
+    expect((await confirm(token, 'careful-new-password')).status).toBe(204);
+    expect((await login('careful@kestrel.example', 'careful-new-password')).status).toBe(200);
   });
 
   it('sends nothing for a disabled account, but answers the same', async () => {
     const admin = await signedIn(t.app, 'admin');
-    const created = await admin.post('/api/v1/admin/users').send({ email: 'gone@kestrel.example', name: 'Gone', role: 'observer', password: 'gone-password' });
-    await admin.patch(`/api/v1/admin/users/${created.body.id}`).send({ disabled: true });
+    const created = await newAccount('gone@kestrel.example');
+    expect((await admin.patch(`/api/v1/admin/users/${created.id}`).send({ disabled: true })).status).toBe(200);
     const res = await request(t.app).post('/api/v1/auth/password-reset/request').send({ email: 'gone@kestrel.example' });
     await t.app.services.mail.idle();
     expect(res.status).toBe(202);
@@ -202,7 +214,7 @@ describe('admin outbox', () => {
   it('is for admins only', async () => {
     expect((await request(t.app).get('/api/v1/admin/outbox')).status).toBe(401);
     for (const role of ['curator', 'observer', 'modeler'] as const) {
-      const agent = await signedIn(t.app, role === 'observer' ? 'modeler' : role);
+      const agent = await signedIn(t.app, role);
       const res = await agent.get('/api/v1/admin/outbox');
       expect(res.status).toBe(403);
       expect(res.body.error.code).toBe('forbidden');
@@ -215,7 +227,7 @@ describe('admin outbox', () => {
     const admin = await signedIn(t.app, 'admin');
     const all = await admin.get('/api/v1/admin/outbox?limit=2');
     expect(all.status).toBe(200);
-    const total = Number((await t.db('outbox').count({ n: '*' }))[0].n);
+    const total = await countOf('outbox');
     expect(all.body.total).toBe(total);
     expect(all.body.messages).toHaveLength(2);
     expect(all.body.messages[0]).toMatchObject({ to: 'paging-2@kestrel.example', subject: 'Newer', text: 'second', transport: 'outbox', status: 'stored', createdAt: expect.any(String), id: expect.any(Number) });
@@ -235,8 +247,8 @@ describe('batch notifications', () => {
 
   it('tells every enabled curator and admin, and nobody else', async () => {
     const admin = await signedIn(t.app, 'admin');
-    const off = await admin.post('/api/v1/admin/users').send({ email: 'resting.curator@kestrel.example', name: 'Resting Curator', role: 'curator', password: 'resting-password' });
-    await admin.patch(`/api/v1/admin/users/${off.body.id}`).send({ disabled: true });
+    const off = await newAccount('resting.curator@kestrel.example', 'curator');
+    expect((await admin.patch(`/api/v1/admin/users/${off.id}`).send({ disabled: true })).status).toBe(200);
     const firstNew = Number((await t.db('outbox').max({ m: 'id' }))[0].m) + 1;
 
     const sent = await notifyCuratorsOfNewBatch(t.app.services.mail, t.db, { ...batch, counts });

@@ -8,8 +8,8 @@
  * random streams depend only on its cellId and draw number, so results are identical whatever
  * the number of workers or the order in which chunks finish.
  *
- * Workers run the TypeScript source under tsx (`--import tsx`, resolved to an absolute file URL
- * so the worker starts whatever the working directory), or worker.js next to a compiled build.
+ * Workers run the TypeScript source under tsx (see startWorker), or worker.js next to a
+ * compiled build.
  */
 
 import { Worker } from 'node:worker_threads';
@@ -56,13 +56,27 @@ export interface WorkFailure {
   message: string;
 }
 
-function workerSpec(): { url: URL; execArgv: string[] } {
+/**
+ * How to start a worker. From TypeScript source: a one-line bootstrap (eval) imports tsx's ESM
+ * API (resolved to an absolute file URL, so the working directory does not matter), calls its
+ * register() in the new thread, then imports worker.ts. `execArgv: ['--import', 'tsx']` is not
+ * enough on Node 20: tsx's --import entry registers its hooks on the main thread only. From a
+ * compiled build: worker.js directly.
+ */
+function startWorker(): Worker {
   const here = import.meta.url;
   if (here.endsWith('.ts')) {
-    const tsxLoader = pathToFileURL(createRequire(here).resolve('tsx')).href;
-    return { url: new URL('./worker.ts', here), execArgv: ['--import', tsxLoader] };
+    const req = createRequire(here);
+    // tsx's documented ESM API (tsx/esm/api, its "import" condition: index.mjs).
+    const apiPath = req.resolve('tsx/esm/api').replace(/index\.cjs$/, 'index.mjs');
+    const tsxApi = pathToFileURL(apiPath).href;
+    const workerUrl = new URL('./worker.ts', here).href;
+    const bootstrap =
+      `import(${JSON.stringify(tsxApi)}).then((m) => { m.register(); return import(${JSON.stringify(workerUrl)}); })` +
+      `.catch((e) => { setImmediate(() => { throw e; }); });`;
+    return new Worker(bootstrap, { eval: true });
   }
-  return { url: new URL('./worker.js', here), execArgv: [] };
+  return new Worker(new URL('./worker.js', here));
 }
 
 /**
@@ -83,8 +97,7 @@ export async function runCellsInWorkers(
   const chunkSize = pool.chunkSize ?? Math.max(1, Math.min(256, Math.ceil(total / (threads * 16))));
   const chunks: { start: number; end: number }[] = [];
   for (let s = 0; s < total; s += chunkSize) chunks.push({ start: s, end: Math.min(total, s + chunkSize) });
-  const spec = workerSpec();
-  const workers: Worker[] = [];
+    const workers: Worker[] = [];
   let next = 0;
   let done = 0;
   let starsDone = 0;
@@ -102,11 +115,11 @@ export async function runCellsInWorkers(
         const { start, end } = chunks[c];
         const packed = packCells(cells.slice(start, end));
         const msg: WorkRequest = { kind: 'work', chunk: c, packed, options };
-        w.postMessage(msg, [packed.numbers.buffer, packed.offsets.buffer]);
+        w.postMessage(msg, [packed.numbers.buffer as ArrayBuffer, packed.offsets.buffer as ArrayBuffer]);
         return true;
       };
       for (let i = 0; i < threads; i++) {
-        const w = new Worker(spec.url, { execArgv: spec.execArgv });
+        const w = startWorker();
         workers.push(w);
         w.on('message', (m: WorkResult | WorkFailure) => {
           if (m.kind === 'error') { fail(new Error(`tomography worker, chunk ${m.chunk}: ${m.message}`)); return; }
