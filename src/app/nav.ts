@@ -15,5 +15,6 @@ export const NAV: NavItem[] = [
   { to: '/upload', label: 'Upload', roles: ['observer', 'curator'] },
   { to: '/batches', label: createElement(BatchesNavLabel), roles: ['observer', 'curator'] },
   { to: '/admin/people', label: 'People', roles: ['admin'] },
+  { to: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
   { to: '/account', label: 'Account', roles: 'signed-in' },
 ];

@@ -9,9 +9,14 @@ import { UploadPage } from '../features/intake/routes/UploadPage';
 import { ColumnGuidePage } from '../features/intake/routes/ColumnGuidePage';
 import { BatchesPage } from '../features/intake/routes/BatchesPage';
 import { BatchPage } from '../features/intake/routes/BatchPage';
+import { ResetRequestPage } from '../features/auth/routes/ResetRequest';
+import { ResetConfirmPage } from '../features/auth/routes/ResetConfirm';
+import { OutboxPage } from '../features/outbox/routes/OutboxPage';
 
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
+  { path: '/forgot-password', element: <ResetRequestPage /> },
+  { path: '/reset-password', element: <ResetConfirmPage /> },
   {
     element: (
       <RequireRole roles="signed-in">
@@ -26,6 +31,7 @@ export const router = createBrowserRouter([
       { path: 'batches', element: <RequireRole roles={['observer', 'curator']}><BatchesPage /></RequireRole> },
       { path: 'batches/:id', element: <RequireRole roles={['observer', 'curator']}><BatchPage /></RequireRole> },
       { path: 'admin/people', element: <RequireRole roles={['admin']}><PeoplePage /></RequireRole> },
+      { path: 'admin/outbox', element: <RequireRole roles={['admin']}><OutboxPage /></RequireRole> },
       { path: '*', element: <div className="text-sm text-muted">There is no page here. <Link className="text-veil underline" to="/">Back to the overview</Link></div> },
     ],
   },

@@ -54,6 +54,7 @@ export interface ResolvedFitOptions {
   blendSpanSigma: number;
   blendAlpha: number;
   foregroundAlpha: number;
+  breakPosition: 'uniform' | 'midpoint';
 }
 
 /** Defaults. jumpThresholdDeg = 30 is a user setting, not a value from a source. */
@@ -66,6 +67,7 @@ export const DEFAULT_FIT_OPTIONS: Readonly<Omit<ResolvedFitOptions, 'cellId'>> =
   blendSpanSigma: 2,
   blendAlpha: 0.05,
   foregroundAlpha: 0.05,
+  breakPosition: 'uniform',
 };
 
 export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
@@ -79,7 +81,11 @@ export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
     blendSpanSigma: o.blendSpanSigma ?? DEFAULT_FIT_OPTIONS.blendSpanSigma,
     blendAlpha: o.blendAlpha ?? DEFAULT_FIT_OPTIONS.blendAlpha,
     foregroundAlpha: o.foregroundAlpha ?? DEFAULT_FIT_OPTIONS.foregroundAlpha,
+    breakPosition: o.breakPosition ?? DEFAULT_FIT_OPTIONS.breakPosition,
   };
+  if (r.breakPosition !== 'uniform' && r.breakPosition !== 'midpoint') {
+    throw new RangeError(`tomography option breakPosition = ${String(r.breakPosition)}: expected 'uniform' or 'midpoint'`);
+  }
   const check = (name: string, v: number, ok: boolean, expected: string): void => {
     if (!ok) throw new RangeError(`tomography option ${name} = ${v}: expected ${expected}`);
   };
@@ -166,13 +172,17 @@ class OrderingFitter {
     return this.bounds.length - 2 + (clear ? 0 : 1);
   }
 
-  /** Layer positions of this ordering into out[offset…]. */
-  positions(clear: boolean, out: Float64Array, offset: number): void {
+  /**
+   * Layer positions of this ordering into out[offset…]: midpoint of the two stars straddling a
+   * break, or (with rng) a uniform point between them.
+   */
+  positions(clear: boolean, out: Float64Array, offset: number, rng?: () => number): void {
     let k = offset;
     if (!clear) out[k++] = this.dist[0];
     for (let j = 1; j < this.bounds.length - 1; j++) {
       const c = this.bounds[j];
-      out[k++] = 0.5 * (this.dist[c - 1] + this.dist[c]);
+      const f = rng ? rng() : 0.5;
+      out[k++] = this.dist[c - 1] + f * (this.dist[c] - this.dist[c - 1]);
     }
   }
 
@@ -277,7 +287,7 @@ export function fitSightline(stars: TomographyStar[], options: FitOptions = {}):
       while (hist.length <= L) hist.push(0);
       hist[L]++;
       if (L === nLayers && nLayers > 0) {
-        fitter.positions(c, scratchPos, 0);
+        fitter.positions(c, scratchPos, 0, opt.breakPosition === 'uniform' ? rng : undefined);
         for (let k = 0; k < nLayers; k++) matched[k * D + nMatched] = scratchPos[k];
         nMatched++;
       } else if (L === nLayers) {

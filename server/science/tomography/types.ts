@@ -55,6 +55,14 @@ export interface FitOptions {
   blendAlpha?: number;
   /** Tail probability above which the nearest segment counts as unpolarized foreground. Default 0.05. */
   foregroundAlpha?: number;
+  /**
+   * Where a break sits in one draw, between the last star before it and the first star after
+   * it (that draw's distances): 'midpoint', or 'uniform' (default) — a uniform point between the
+   * two, drawn from the draw's random stream. The midpoint leaves out that the cloud edge can be
+   * anywhere in the gap, so its 16–84 % ranges are too narrow whenever the gap is wider than the
+   * distance errors (see the coverage test).
+   */
+  breakPosition?: 'uniform' | 'midpoint';
 }
 
 /** One cloud (thin screen) along the sightline. */

@@ -1,5 +1,5 @@
 import { useState, type FormEvent } from 'react';
-import { Navigate, useLocation, useNavigate } from 'react-router-dom';
+import { Link, Navigate, useLocation, useNavigate } from 'react-router-dom';
 import { Logo } from '../../../components/ui/Logo';
 import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
 import { useLogin } from '../api/login';
@@ -43,6 +43,9 @@ export function SignInPage() {
           <Button type="submit" className="w-full justify-center" disabled={login.isPending}>
             {login.isPending ? 'Signing in…' : 'Sign in'}
           </Button>
+          <p className="text-center text-sm">
+            <Link className="text-veil underline underline-offset-2" to="/forgot-password">Forgot your password?</Link>
+          </p>
         </form>
       </div>
     </div>

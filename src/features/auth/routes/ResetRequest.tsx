@@ -1,0 +1,43 @@
+import { useState, type FormEvent } from 'react';
+import { Link } from 'react-router-dom';
+import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
+import { ApiError } from '../../../lib/apiClient';
+import { useRequestPasswordReset } from '../api/requestPasswordReset';
+import { AuthFrame } from '../components/AuthFrame';
+
+const fieldError = (e: unknown, field: string) =>
+  e instanceof ApiError ? ((e.details as { fields?: { field: string; message: string }[] } | undefined)?.fields?.find((f) => f.field === field)?.message ?? null) : null;
+
+export function ResetRequestPage() {
+  const ask = useRequestPasswordReset();
+  const [email, setEmail] = useState('');
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    ask.mutate({ email: email.trim() });
+  };
+  return (
+    <AuthFrame>
+      <h1 className="text-lg font-semibold text-night">Forgot your password?</h1>
+      {ask.isSuccess ? (
+        <>
+          <Notice tone="ok">{ask.data.message}</Notice>
+          <p className="text-sm text-muted">Nothing arrived? Check the address and ask again in a few minutes.</p>
+        </>
+      ) : (
+        <form onSubmit={submit} className="space-y-4">
+          <p className="text-sm text-muted">Give the e-mail address of your account and Starveil will send a link to choose a new password.</p>
+          {ask.error && !fieldError(ask.error, 'email') && <Notice tone="bad">{ask.error.message}</Notice>}
+          <Field label="E-mail" error={fieldError(ask.error, 'email')}>
+            <TextInput name="email" type="email" autoComplete="username" required value={email} onChange={(e) => setEmail(e.target.value)} />
+          </Field>
+          <Button type="submit" className="w-full justify-center" disabled={ask.isPending}>
+            {ask.isPending ? 'Sending…' : 'Send the link'}
+          </Button>
+        </form>
+      )}
+      <p className="text-center text-sm">
+        <Link className="text-veil underline underline-offset-2" to="/sign-in">Back to sign-in</Link>
+      </p>
+    </AuthFrame>
+  );
+}
