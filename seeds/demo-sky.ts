@@ -3,6 +3,8 @@
 // them with positions and parallaxes. Same seed → same sky on every machine.
 import { gaussian, mulberry32 } from '../server/science/random.js';
 import { designation } from '../server/measurements/designation.js';
+import { galacticToIcrs } from '../server/science/frames.js';
+import { ang2pixNest, npixForNside, pix2angNest } from '../server/science/healpix.js';
 
 export interface DemoCloud {
   distancePc: number;
@@ -31,37 +33,52 @@ export interface DemoSkyStar {
 }
 
 export const DEMO_SKY_SEED = 20261201;
+export const DEMO_FIELD_NSIDE = 32;
 
 export function buildDemoSky(opts: { fields?: number; starsPerField?: number; seed?: number } = {}) {
   const nFields = opts.fields ?? 240;
-  const perField = opts.starsPerField ?? 24;
+  const perField = opts.starsPerField ?? 30;
+  const usedCells = new Set<number>();
   const rng = mulberry32(opts.seed ?? DEMO_SKY_SEED);
   const fields: DemoSkyField[] = [];
   const stars: DemoSkyStar[] = [];
   const seenSourceIds = new Set<string>();
   for (let f = 0; f < nFields; f++) {
     // uniform on the sphere, avoiding the densest Galactic-plane confusion is not needed for a demo
-    const raDeg = rng() * 360;
-    const decDeg = (Math.asin(2 * rng() - 1) * 180) / Math.PI;
+    // each field sits at the centre of its own Galactic HEALPix cell (NSIDE 32, as the demo run uses)
+    let cell: number;
+    do cell = Math.floor(rng() * npixForNside(DEMO_FIELD_NSIDE));
+    while (usedCells.has(cell));
+    usedCells.add(cell);
+    const centre = pix2angNest(DEMO_FIELD_NSIDE, cell);
+    const { raDeg, decDeg } = galacticToIcrs(centre.lonDeg, centre.latDeg);
     const kind = rng();
     const nClouds = kind < 0.4 ? 1 : kind < 0.8 ? 2 : 3;
     const clouds: DemoCloud[] = [];
     let d = 80 + rng() * 220;
     let theta = rng() * 180;
     for (let c = 0; c < nClouds; c++) {
-      clouds.push({ distancePc: Math.round(d), p: 0.006 + rng() * 0.018, thetaDeg: ((theta % 180) + 180) % 180 });
+      clouds.push({ distancePc: Math.round(d), p: 0.008 + rng() * 0.017, thetaDeg: ((theta % 180) + 180) % 180 });
       d += 250 + rng() * 600;
       theta += (rng() < 0.5 ? -1 : 1) * (35 + rng() * 50);
     }
     const key = `F${String(f + 1).padStart(3, '0')}`;
-    const radiusDeg = 0.6;
+    const radiusDeg = 0.4;
     fields.push({ key, raDeg, decDeg, radiusDeg, clouds });
     for (let s = 0; s < perField; s++) {
       // position uniform in a small disc around the field centre
-      const r = radiusDeg * Math.sqrt(rng());
-      const a = rng() * 2 * Math.PI;
-      const dec = Math.max(-89.9999, Math.min(89.9999, decDeg + r * Math.sin(a)));
-      const ra = (((raDeg + (r * Math.cos(a)) / Math.max(0.05, Math.cos((decDeg * Math.PI) / 180))) % 360) + 360) % 360;
+      // uniform in a small disc around the field centre, in Galactic coordinates, kept inside the cell
+      let ra = 0;
+      let dec = 0;
+      for (let tries = 0; tries < 50; tries++) {
+        const r = radiusDeg * Math.sqrt(rng());
+        const a = rng() * 2 * Math.PI;
+        const b = Math.max(-89.9999, Math.min(89.9999, centre.latDeg + r * Math.sin(a)));
+        const l = (((centre.lonDeg + (r * Math.cos(a)) / Math.max(0.05, Math.cos((centre.latDeg * Math.PI) / 180))) % 360) + 360) % 360;
+        if (ang2pixNest(DEMO_FIELD_NSIDE, l, b) !== cell && tries < 49) continue;
+        ({ raDeg: ra, decDeg: dec } = galacticToIcrs(l, b));
+        break;
+      }
       const distancePc = 40 + rng() * 2400;
       const trueParallax = 1000 / distancePc;
       const fracErr = 0.01 + rng() * 0.04;

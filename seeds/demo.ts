@@ -6,6 +6,8 @@ import { fileURLToPath } from 'node:url';
 import type { Knex } from 'knex';
 import { loadConfig, type Config } from '../server/config.js';
 import { intakeService } from '../server/intake/service.js';
+import { reviewService } from '../server/review/service.js';
+import { tomographyService } from '../server/tomography/service.js';
 import { hashPassword, DEMO_PASSWORD } from '../server/auth/passwords.js';
 import { icrsToGalactic } from '../server/science/frames.js';
 import { ang2pixNest } from '../server/science/healpix.js';
@@ -23,7 +25,12 @@ export const DEMO_BATCHES = [
   { file: 'kestrel-night-messy.csv', instrument: 'KR-OWL' }, // left needing its column mapping
 ];
 
-export async function seed(knex: Knex, config: Config = loadConfig()): Promise<void> {
+export interface DemoSeedOptions {
+  /** approve the R-band night and run tomography on it, so the sky map has results on first start */
+  tomography?: boolean;
+}
+
+export async function seed(knex: Knex, config: Config = loadConfig(), options: DemoSeedOptions = { tomography: true }): Promise<void> {
   const now = new Date().toISOString();
   await knex.transaction(async (trx) => {
     const hash = await hashPassword(DEMO_PASSWORD);
@@ -61,4 +68,16 @@ export async function seed(knex: Knex, config: Config = loadConfig()): Promise<v
     await intake.upload({ id: observer.id, email: observer.email, name: observer.name, role: 'observer' }, { path: tmp, originalname: b.file }, { instrument: b.instrument });
   }
   await intake.idle();
+
+  // The curator approves the clean R-band night, then runs tomography over the whole sky.
+  const curator = await knex('users').where({ email: 'curator@kestrel.example' }).first();
+  const night = await knex('batches').where({ filename: 'kestrel-night-hawk-R.csv' }).first();
+  await reviewService(knex).decide(curator.id, night.id, 'approved', 'Clean night; approved for the demo.');
+  if (options.tomography) {
+    const { done } = await tomographyService(knex).start(curator.id, DEMO_TOMOGRAPHY);
+    await done;
+  }
 }
+
+/** The demo's tomography run: cells a little larger than the demo fields. */
+export const DEMO_TOMOGRAPHY = { nside: 32, coordsys: 'G' as const, band: 'R', minStars: 10, draws: 50, jumpThresholdDeg: 30, minSegmentLength: 3 };

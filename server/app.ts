@@ -14,9 +14,12 @@ import { adminRoutes } from './admin/routes.js';
 import { catalogRoutes } from './catalog/routes.js';
 import { intakeService, type IntakeService } from './intake/service.js';
 import { intakeRoutes } from './intake/routes.js';
-import { measurementService } from './measurements/service.js';
-import { reviewService } from './review/service.js';
+import { measurementService, type MeasurementService } from './measurements/service.js';
+import { reviewService, type ReviewService } from './review/service.js';
 import { reviewRoutes } from './review/routes.js';
+import { tomographyService, type TomographyService } from './tomography/service.js';
+import { tomographyRoutes } from './tomography/routes.js';
+import { notifyCuratorsOfNewBatch, notifyObserverOfReview } from './mail/notifications.js';
 import { createMailer, type Mailer } from './mail/transport.js';
 import { mailRoutes } from './mail/routes.js';
 
@@ -30,6 +33,9 @@ export interface AppDeps {
 export interface AppServices {
   intake: IntakeService;
   mail: Mailer;
+  tomography: TomographyService;
+  review: ReviewService;
+  measurements: MeasurementService;
 }
 
 /** Build the Express app without listening, so tests can drive it with supertest. */
@@ -56,10 +62,18 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
 
   const auth = authService(db, { allowDemoPassword: config.allowDemoPassword });
   const pp = createPassport(auth);
-  const intake = intakeService(db, config, config.intake, deps.readDb ?? db);
-  const measurements = measurementService(db);
-  const review = reviewService(db, deps.readDb ?? db);
   const mailer = createMailer(db, config);
+  // e-mail is sent after the change has committed and never holds up the request
+  const intake = intakeService(db, config, config.intake, deps.readDb ?? db, (batch) => void notifyCuratorsOfNewBatch(mailer, db, batch));
+  const measurements = measurementService(db);
+  const review = reviewService(db, deps.readDb ?? db, (batch, decision, note, counts) => {
+    void (async () => {
+      const uploader = await db('users').where({ id: batch.uploaded_by }).first('name', 'email');
+      const b = await db('batches').where({ id: batch.id }).first('counts_json');
+      await notifyObserverOfReview(mailer, db, { id: batch.id, filename: batch.filename, uploadedBy: uploader }, decision, note, { ...(b?.counts_json ? JSON.parse(b.counts_json) : {}), ...counts });
+    })().catch((e) => console.error('review notification', e));
+  });
+  const tomography = tomographyService(db, deps.readDb ?? db);
 
   const api = express.Router();
   api.use(express.json({ limit: '2mb' }));
@@ -85,6 +99,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(catalogRoutes({ db }));
   api.use(intakeRoutes({ intake, config }));
   api.use(reviewRoutes({ db, review, measurements }));
+  api.use(tomographyRoutes({ tomography }));
   api.use(mailRoutes({ db, mailer, config }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
@@ -103,5 +118,5 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     });
   }
   app.use(errorMiddleware);
-  return Object.assign(app, { services: { intake, mail: mailer } });
+  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements } });
 }

@@ -53,7 +53,7 @@ const parseJson = <T>(s: string | null | undefined, fallback: T): T => (s ? (JSO
 const same = (a: number | null, b: number | null) => (a === null || b === null ? a === b : Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(a), Math.abs(b)));
 
 /** `readDb` answers reads on a second connection, so they are not queued behind a long check. */
-export function intakeService(db: Knex, config: Config, opts: IntakeOptions, readDb: Knex = db) {
+export function intakeService(db: Knex, config: Config, opts: IntakeOptions, readDb: Knex = db, onChecked?: (batch: { id: number; filename: string; uploadedBy: { name: string; email: string }; counts: BatchCounts }) => void) {
   const progress = new Map<number, { bytesDone: number; rowsDone: number }>();
   const running = new Map<number, Promise<void>>();
 
@@ -63,6 +63,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
     return b;
   }
 
+  type Batch = ReturnType<typeof present>;
   function present(b: Record<string, any>) {
     const live = progress.get(b.id);
     const proposal = parseJson<Proposal | null>(b.proposal_json, null);
@@ -83,7 +84,6 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
       failure: b.failure ?? null,
     };
   }
-  type Batch = ReturnType<typeof present>;
 
   function assertCanSee(user: SessionUser, b: { uploaded_by: number }) {
     if (hasRole(user, ['curator'])) return;
@@ -278,6 +278,8 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
     } finally {
       progress.delete(batchId);
     }
+    const done = await batchRow(batchId, db);
+    if (done.state === 'awaiting_review') onChecked?.(present(done));
   }
 
   function start(batchId: number): Promise<void> {

@@ -182,11 +182,11 @@ describe('the messy demo batch', () => {
     const res = await agent.post(`/api/v1/batches/${id}/mapping`).send({ mapping: { ...b.proposal.mapping, ra_deg: 'RAJ2000' }, saveForInstrument: true });
     expect(res.status).toBe(200);
     expect(res.body.state).toBe('awaiting_review');
-    // 72 field stars + 2 exact repeats + 1 conflicting repeat + 1 wrapped-angle repeat (other epoch) + 1 bad row + 1 new star
-    expect(res.body.counts).toMatchObject({ rows: 78, rejected: 1, duplicates: 2, conflicts: 1, newStars: 1, matchedStars: 72, accepted: 74 });
+    // 90 field stars + 2 exact repeats + 1 conflicting repeat + 1 wrapped-angle repeat (other epoch) + 1 bad row + 1 new star
+    expect(res.body.counts).toMatchObject({ rows: 96, rejected: 1, duplicates: 2, conflicts: 1, newStars: 1, matchedStars: 90, accepted: 92 });
 
     const bad = (await agent.get(`/api/v1/batches/${id}/rows?state=rejected`)).body.rows[0];
-    expect(bad.line).toBe(78);
+    expect(bad.line).toBe(96);
     const byColumn = Object.fromEntries(bad.errors.map((e: { column: string; message: string }) => [e.column, e.message]));
     expect(byColumn.RAJ2000).toMatch(/minutes/);
     expect(byColumn.DEJ2000).toMatch(/90/);
@@ -194,8 +194,9 @@ describe('the messy demo batch', () => {
 
     const rows = (await agent.get(`/api/v1/batches/${id}/rows?limit=200`)).body.rows;
     const first = rows[0];
-    // P% = 0.811 → p = 0.00811 (fraction)
-    expect(first.derived.p).toBeCloseTo(0.00811, 6);
+    // P% in the file (e.g. 0.811) → p as a fraction (0.00811)
+    const pPct = Number(MESSY.toString('utf8').replace(/^\ufeff/, '').split('\r\n')[1].split(',')[5]);
+    expect(first.derived.p).toBeCloseTo(pPct / 100, 9);
     expect(first.star.match).toBe('position'); // the messy file has no source_id column
     const wrapped = rows.find((r: { warnings: { message: string }[] }) => r.warnings.some((w) => /wrapped/.test(w.message)));
     expect(wrapped.warnings.find((w: { message: string }) => /wrapped/.test(w.message)).column).toBe('PA');
@@ -204,7 +205,7 @@ describe('the messy demo batch', () => {
 
     const csv = (await agent.get(`/api/v1/batches/${id}/errors.csv`)).text;
     expect(csv.split('\r\n')[0]).toBe('line,state,column,field,value,message');
-    expect(csv).toMatch(/^78,rejected,RAJ2000,ra_deg,25:61:00,/m);
+    expect(csv).toMatch(/^96,rejected,RAJ2000,ra_deg,25:61:00,/m);
 
     const saved = await t.db('instrument_mappings').where({ instrument: 'KR-OWL' }).first();
     expect(JSON.parse(saved.mapping_json).ra_deg).toBe('RAJ2000');

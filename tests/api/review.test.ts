@@ -88,7 +88,7 @@ describe('review table, conflicts and ambiguous matches', () => {
   it('pages, sorts and filters a batch on the server', async () => {
     const curator = await signedIn(t.app, 'curator');
     const page = (await curator.get(`/api/v1/batches/${batchId}/measurements?limit=100&offset=100&sort=p&order=desc`)).body;
-    expect(page.total).toBe(5760);
+    expect(page.total).toBe(7200);
     expect(page.rows).toHaveLength(100);
     for (let i = 1; i < page.rows.length; i++) expect(page.rows[i - 1].p).toBeGreaterThanOrEqual(page.rows[i].p);
     const filtered = (await curator.get(`/api/v1/batches/${batchId}/measurements?filter.distance_method=edsd_mode&limit=5000`)).body;
@@ -130,18 +130,22 @@ describe('review table, conflicts and ambiguous matches', () => {
 describe('whole-batch decisions', () => {
   it('approving a batch approves every pending row; observers cannot approve', async () => {
     const observer = await signedIn(t.app, 'observer');
-    expect((await observer.post(`/api/v1/batches/${batchId}/approve`).send({ note: 'mine' })).status).toBe(403);
+    const lines = [HEADER];
+    for (let i = 0; i < 40; i++) lines.push(`night star ${i},,${(120 + i * 0.01).toFixed(4)},-40.0,V,0.01,0.002,0.001,0.001,1.5,0.05,61100,KR-HAWK`);
+    const up = (await observer.post('/api/v1/batches').attach('file', Buffer.from(lines.join('\n')), 'night-40.csv')).body;
+    expect((await observer.post(`/api/v1/batches/${up.id}/approve`).send({ note: 'mine' })).status).toBe(403);
     const curator = await signedIn(t.app, 'curator');
     const queue = (await curator.get('/api/v1/review/queue')).body.batches;
-    expect(queue.map((b: { id: number }) => b.id)).toContain(batchId);
-    const res = await curator.post(`/api/v1/batches/${batchId}/approve`).send({ note: 'Good night; two edits.' });
+    expect(queue.map((b: { id: number }) => b.id)).toContain(up.id);
+    const res = await curator.post(`/api/v1/batches/${up.id}/approve`).send({ note: 'Good night.' });
     expect(res.status).toBe(200);
-    expect(res.body.counts.changed).toBe(5760);
-    expect(Number((await t.db('measurements').where({ batch_id: batchId, state: 'approved' }).count({ n: '*' }))[0].n)).toBe(5760);
-    const b = (await observer.get(`/api/v1/batches/${batchId}`)).body;
-    expect(b.state).toBe('approved');
+    expect(res.body.counts.changed).toBe(40);
+    expect(Number((await t.db('measurements').where({ batch_id: up.id, state: 'approved' }).count({ n: '*' }))[0].n)).toBe(40);
+    expect((await observer.get(`/api/v1/batches/${up.id}`)).body.state).toBe('approved');
     const queueAfter = (await curator.get('/api/v1/review/queue')).body.batches;
-    expect(queueAfter.map((x: { id: number }) => x.id)).not.toContain(batchId);
+    expect(queueAfter.map((x: { id: number }) => x.id)).not.toContain(up.id);
+    // the seeded R night was approved by the demo curator
+    expect((await observer.get(`/api/v1/batches/${batchId}`)).body.state).toBe('approved');
   });
 });
 

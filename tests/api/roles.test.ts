@@ -46,6 +46,12 @@ const MATRIX: Record<string, Who> = {
   'POST /audit/:id/revert': CUR,
   'POST /batches/:id/approve': CUR,
   'POST /batches/:id/reject': CUR,
+  'POST /tomography/runs': CUR,
+  'GET /tomography/runs': 'signed-in',
+  'GET /tomography/runs/:id': 'signed-in',
+  'POST /tomography/runs/:id/cancel': CUR,
+  'GET /tomography/runs/:id/cells': 'signed-in',
+  'GET /sightlines': 'signed-in',
 };
 
 function listRoutes(app: TestApp['app']): string[] {
@@ -74,7 +80,7 @@ afterAll(async () => t.close());
 
 const concrete = (route: string) => {
   const [method, path] = route.split(' ');
-  const id = path.startsWith('/batches') ? ids.batch : path.startsWith('/measurements') ? ids.measurement : path.startsWith('/stars') ? ids.star : path.startsWith('/admin/users') ? ids.user : ids.audit;
+  const id = path.startsWith('/batches') ? ids.batch : path.startsWith('/measurements') ? ids.measurement : path.startsWith('/stars') ? ids.star : path.startsWith('/admin/users') ? ids.user : path.startsWith('/tomography') ? 1 : ids.audit;
   return { method: method.toLowerCase() as 'get' | 'post' | 'patch' | 'delete', path: `/api/v1${path.replace(':id', String(id))}` };
 };
 

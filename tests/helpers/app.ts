@@ -18,7 +18,7 @@ export interface TestApp {
 }
 
 /** A fresh app on its own temporary SQLite file, migrated and seeded with the demo. */
-export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?: boolean } = {}): Promise<TestApp> {
+export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?: boolean; tomography?: boolean } = {}): Promise<TestApp> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-test-'));
   const config = loadConfig({ NODE_ENV: 'test' } as NodeJS.ProcessEnv, {
     dbFile: path.join(dir, 'test.sqlite'),
@@ -29,7 +29,7 @@ export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?
   });
   const db = openDb(config.dbFile);
   await migrateLatest(db);
-  if (opts.seed !== false) await seedDemoIfEmpty(db, config);
+  if (opts.seed !== false) await seedDemoIfEmpty(db, config, { tomography: opts.tomography ?? false });
   const readDb = openDb(config.dbFile);
   const app = createApp({ db, readDb, config });
   return {

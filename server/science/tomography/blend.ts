@@ -4,9 +4,12 @@
  * between them whose mean lies between its neighbours' means. Such a segment is not a cloud.
  *
  * Test, for every segment j with neighbours on both sides (j − 1 and j + 1):
- *  1. Span: its nearest and farthest stars agree in distance, d_last − d_first ≤
- *     k·sqrt(σ_first² + σ_last²) with σ = the half width of each star's 16–84 % interval and
- *     k = blendSpanSigma (default 2): the whole segment could sit at one distance, the edge.
+ *  1. Span: d_last − d_first ≤ k·√2·σ_rms, σ_rms = root mean square over the segment's stars of
+ *     the half width of each 16–84 % distance interval, k = blendSpanSigma (default 3). Two
+ *     stars at one true distance differ by √2·σ on average, and stars misordered around one
+ *     edge come from within about ±1.5–2σ of it: the segment fits inside one blurred edge. (A
+ *     test on the end stars alone failed when those happened to have small errors while the
+ *     middle stars, the ones that cause the mixing, had large ones.)
  *  2. Mixture: its mean S_j = (q̄_j, ū_j) is consistent with a convex combination of its
  *     neighbours' means, α·S_{j−1} + (1 − α)·S_{j+1}, α ∈ [0, 1]:
  *       χ²(α) = Σ_{c ∈ q,u} (S_j,c − α S_{j−1},c − (1 − α) S_{j+1},c)² /
@@ -92,9 +95,10 @@ export function mergeBlends(
     let bestChi2 = Infinity;
     for (let j = 1; j < nSeg - 1; j++) {
       const start = bounds[j], end = bounds[j + 1];
-      const sf = sigma[start], sl = sigma[end - 1];
+      let ss = 0;
+      for (let i = start; i < end; i++) ss += sigma[i] * sigma[i];
       const span = dist[end - 1] - dist[start];
-      if (span > s.blendSpanSigma * Math.sqrt(sf * sf + sl * sl)) continue;
+      if (span > s.blendSpanSigma * Math.sqrt((2 * ss) / (end - start))) continue;
       readMoments(table, bounds[j - 1], start, mA);
       readMoments(table, start, end, mX);
       readMoments(table, end, bounds[j + 2], mB);

@@ -88,9 +88,13 @@ export class PeltSolver {
     const NEVER = 0x7fffffff;
     for (let t = minSeg; t <= n; t++) {
       // Bounds grow by the star that joins every open segment.
-      if (single && t > minSeg) {
-        const add = single[t - 1];
-        for (let j = 0; j < nCand; j++) lb[cand[j]] += add;
+      if (single) {
+        if (t > minSeg) {
+          const add = single[t - 1];
+          for (let j = 0; j < nCand; j++) lb[cand[j]] += add;
+        }
+      } else {
+        for (let j = 0; j < nCand; j++) lb[cand[j]] = -Infinity; // no bound without singletons
       }
       // τ becomes usable once t − τ ≥ minSeg; legal τ are 0 and minSeg..n−minSeg.
       const tau = t - minSeg;

@@ -29,6 +29,8 @@ export interface PoolOptions {
   threads?: number;
   /** Cells per message; default chosen from the number of cells and threads. */
   chunkSize?: number;
+  /** Stops the run: no further chunks are sent and the promise rejects with an AbortError. */
+  signal?: AbortSignal;
 }
 
 export interface PoolProgress {
@@ -109,8 +111,10 @@ export async function runCellsInWorkers(
         failed = true;
         reject(err);
       };
+      pool.signal?.addEventListener('abort', () => fail(Object.assign(new Error('tomography run cancelled'), { name: 'AbortError' })), { once: true });
+      if (pool.signal?.aborted) fail(Object.assign(new Error('tomography run cancelled'), { name: 'AbortError' }));
       const send = (w: Worker): boolean => {
-        if (next >= chunks.length) return false;
+        if (next >= chunks.length || failed) return false;
         const c = next++;
         const { start, end } = chunks[c];
         const packed = packCells(cells.slice(start, end));

@@ -49,12 +49,15 @@ export interface FitOptions {
   seed?: number;
   /** Penalty per break in units of ln(nStars). Default 4 (BIC: position, q̄, ū, s). */
   penaltyParamsPerBreak?: number;
-  /** A blend candidate's first and last stars must agree in distance within this many σ. Default 2. */
+  /** A blend candidate's distance span may be at most this many times √2·σ_rms of its stars. Default 3. */
   blendSpanSigma?: number;
   /** Tail probability (χ², 1 dof) above which a segment mean counts as a blend of its neighbours. Default 0.05. */
   blendAlpha?: number;
-  /** Tail probability above which the nearest segment counts as unpolarized foreground. Default 0.05. */
-  foregroundAlpha?: number;
+  /**
+   * The nearest segment counts as polarized (a 'foreground' layer in front of every star) when
+   * its χ² against zero exceeds this many times ln(n). Default 2 (BIC for q̄ and ū).
+   */
+  foregroundPenaltyParams?: number;
   /**
    * Where a break sits in one draw, between the last star before it and the first star after
    * it (that draw's distances): 'midpoint', or 'uniform' (default) — a uniform point between the

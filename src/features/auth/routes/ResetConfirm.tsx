@@ -45,7 +45,7 @@ export function ResetConfirmPage() {
               {tokenRefused && (
                 <>
                   {' '}
-                  <Link className="underline" to="/forgot-password">Ask for a new link</Link>.
+                  <Link className="underline" to="/forgot-password">Send me a new link</Link>.
                 </>
               )}
             </Notice>

@@ -1,0 +1,266 @@
+import crypto from 'node:crypto';
+import type { Knex } from 'knex';
+import { recordAudit } from '../audit/service.js';
+import { bulkInsert } from '../dialect.js';
+import { AppError, notFound } from '../errors.js';
+import { whereInCone, withinCone } from '../catalog/cone.js';
+import { combineMeasurements } from '../science/combine.js';
+import { distanceFromParallax } from '../science/distance.js';
+import { galacticToIcrs } from '../science/frames.js';
+import { ang2pixNest, maxPixelRadiusDeg, pix2angNest } from '../science/healpix.js';
+import { runCellsInWorkers, type TomographyCell } from '../science/tomography/pool.js';
+import type { SightlineResult, TomographyStar } from '../science/tomography/types.js';
+
+export interface RunParams {
+  nside: number;
+  coordsys: 'G' | 'C';
+  band: string;
+  minStars: number;
+  draws: number;
+  jumpThresholdDeg: number;
+  minSegmentLength: number;
+  region: { ra: number; dec: number; radius: number } | null;
+}
+
+export const DEFAULT_RUN: RunParams = { nside: 32, coordsys: 'G', band: 'R', minStars: 10, draws: 100, jumpThresholdDeg: 30, minSegmentLength: 3, region: null };
+
+interface Live {
+  cellsDone: number;
+  cellsTotal: number;
+  startedMs: number;
+  abort: AbortController;
+}
+
+/** Stars of the approved catalog in one band, each with its combined (q, u) in the run's frame. */
+export async function gatherStars(db: Knex, p: RunParams) {
+  let q = db('measurements')
+    .join('stars', 'stars.id', 'measurements.star_id')
+    .where('measurements.state', 'approved')
+    .where('measurements.band', p.band)
+    .orderBy(['measurements.star_id', 'measurements.id'])
+    .select(
+      'measurements.id', 'measurements.version', 'measurements.star_id', 'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err',
+      'measurements.q_gal', 'measurements.u_gal', 'measurements.q_gal_err', 'measurements.u_gal_err', 'measurements.distance_pc', 'measurements.distance_lo_pc', 'measurements.distance_hi_pc',
+      'stars.ra_deg', 'stars.dec_deg', 'stars.glon_deg', 'stars.glat_deg', 'stars.parallax_mas', 'stars.parallax_err_mas',
+    );
+  if (p.region) q = whereInCone(q, 'stars.hpx15', p.region.ra, p.region.dec, p.region.radius);
+  let rows = await q;
+  if (p.region) rows = withinCone(rows, p.region.ra, p.region.dec, p.region.radius);
+  const hash = crypto.createHash('sha256');
+  hash.update(JSON.stringify(p));
+  const stars = new Map<number, { cell: number; star: TomographyStar; used: number }>();
+  let group: typeof rows = [];
+  const flush = () => {
+    if (!group.length) return;
+    const s = group[0];
+    const gal = p.coordsys === 'G';
+    const c = combineMeasurements(group.map((m) => (gal ? { q: m.q_gal, u: m.u_gal, qErr: m.q_gal_err, uErr: m.u_gal_err } : { q: m.q, u: m.u, qErr: m.q_err, uErr: m.u_err })));
+    let dist: { distancePc: number; distanceLoPc: number; distanceHiPc: number } | null = null;
+    let parallax: { parallaxMas: number; parallaxErrMas: number } | null = null;
+    if (s.parallax_mas !== null && s.parallax_err_mas !== null && s.parallax_err_mas > 0) {
+      dist = distanceFromParallax(s.parallax_mas, s.parallax_err_mas);
+      parallax = { parallaxMas: s.parallax_mas, parallaxErrMas: s.parallax_err_mas };
+    } else {
+      const withDist = group.find((m) => m.distance_pc !== null);
+      if (withDist) dist = { distancePc: withDist.distance_pc, distanceLoPc: withDist.distance_lo_pc, distanceHiPc: withDist.distance_hi_pc };
+    }
+    if (dist && Number.isFinite(dist.distancePc) && dist.distancePc > 0) {
+      const cell = gal ? ang2pixNest(p.nside, s.glon_deg, s.glat_deg) : ang2pixNest(p.nside, s.ra_deg, s.dec_deg);
+      stars.set(s.star_id, {
+        cell,
+        used: group.length,
+        star: { id: String(s.star_id), distancePc: dist.distancePc, distanceLoPc: dist.distanceLoPc, distanceHiPc: dist.distanceHiPc, ...(parallax ?? { distanceErrPc: (dist.distanceHiPc - dist.distanceLoPc) / 2 }), q: c.q, u: c.u, qErr: c.qErr, uErr: c.uErr },
+      });
+      for (const m of group) hash.update(`${m.id}:${m.version};`);
+      hash.update(`s${s.star_id}:${s.parallax_mas}:${s.parallax_err_mas};`);
+    }
+    group = [];
+  };
+  for (const r of rows) {
+    if (group.length && group[0].star_id !== r.star_id) flush();
+    group.push(r);
+  }
+  flush();
+  const byCell = new Map<number, TomographyStar[]>();
+  let measurementsUsed = 0;
+  for (const { cell, star, used } of stars.values()) {
+    measurementsUsed += used;
+    const list = byCell.get(cell);
+    if (list) list.push(star);
+    else byCell.set(cell, [star]);
+  }
+  return { byCell, fingerprint: hash.digest('hex'), starsUsed: stars.size, measurementsUsed };
+}
+
+function summarise(r: SightlineResult) {
+  const maxJump = r.jumps.reduce<{ deg: number; sig: number } | null>((best, j) => (!best || Math.abs(j.deltaThetaDeg) > best.deg ? { deg: Math.abs(j.deltaThetaDeg), sig: j.significance } : best), null);
+  return {
+    n_stars: r.nStars,
+    n_layers: r.nLayers,
+    layer_support: r.layerCountSupport,
+    complex: r.complex,
+    max_jump_deg: maxJump?.deg ?? null,
+    max_jump_significance: maxJump?.sig ?? null,
+    nearest_layer_pc: r.layers.length ? r.layers[0].distancePc : null,
+    farthest_layer_pc: r.layers.length ? r.layers[r.layers.length - 1].distancePc : null,
+  };
+}
+
+/** Tomography runs: gather the approved data, fit every cell on worker threads, store with a fingerprint. */
+export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?: number } = {}) {
+  const live = new Map<number, Live>();
+  let queue: Promise<void> = Promise.resolve();
+
+  async function execute(runId: number): Promise<void> {
+    const run = await db('tomography_runs').where({ id: runId }).first();
+    if (run.state !== 'queued') return;
+    const params = JSON.parse(run.params_json) as RunParams;
+    const abort = new AbortController();
+    const state: Live = { cellsDone: 0, cellsTotal: 0, startedMs: Date.now(), abort };
+    live.set(runId, state);
+    try {
+      await db('tomography_runs').where({ id: runId }).update({ state: 'running', started_at: new Date().toISOString() });
+      const { byCell, fingerprint, starsUsed, measurementsUsed } = await gatherStars(readDb, params);
+      const cells: TomographyCell[] = [...byCell].filter(([, s]) => s.length >= params.minStars).sort((a, b) => a[0] - b[0]).map(([ipix, stars]) => ({ cellId: `${params.nside}/${ipix}`, stars }));
+      state.cellsTotal = cells.length;
+      await db('tomography_runs').where({ id: runId }).update({ cells_total: cells.length, fingerprint, stars_used: starsUsed, measurements_used: measurementsUsed });
+      const results = await runCellsInWorkers(
+        cells,
+        { draws: params.draws, jumpThresholdDeg: params.jumpThresholdDeg, minSegmentLength: params.minSegmentLength },
+        (p) => {
+          state.cellsDone = p.cellsDone;
+        },
+        { threads: opts.threads, signal: abort.signal },
+      );
+      const rows = results.map((r, i) => {
+        const ipix = Number(cells[i].cellId.split('/')[1]);
+        const c = pix2angNest(params.nside, ipix);
+        const icrs = params.coordsys === 'G' ? galacticToIcrs(c.lonDeg, c.latDeg) : { raDeg: c.lonDeg, decDeg: c.latDeg };
+        const { segments, starOrder, ...rest } = r;
+        return { run_id: runId, nside: params.nside, ipix, lon_deg: c.lonDeg, lat_deg: c.latDeg, ra_deg: icrs.raDeg, dec_deg: icrs.decDeg, ...summarise(r), result_json: JSON.stringify({ ...rest, segments, starOrder }) };
+      });
+      await db.transaction(async (trx) => {
+        await bulkInsert(trx, 'tomography_cells', rows);
+        await trx('tomography_runs').where({ id: runId }).update({ state: 'done', cells_done: rows.length, finished_at: new Date().toISOString() });
+        await recordAudit(trx, { actorId: run.started_by, action: 'tomography.finished', entityType: 'tomography_run', entityId: runId, after: { cells: rows.length, fingerprint } });
+      });
+    } catch (e) {
+      const cancelled = abort.signal.aborted;
+      if (!cancelled) console.error(e);
+      await db('tomography_runs').where({ id: runId }).update({ state: cancelled ? 'cancelled' : 'failed', error: cancelled ? null : String((e as Error).message).slice(0, 500), finished_at: new Date().toISOString(), cells_done: state.cellsDone });
+    } finally {
+      live.delete(runId);
+    }
+  }
+
+  function present(r: Record<string, any>) {
+    const l = live.get(r.id);
+    const cellsDone = l ? l.cellsDone : r.cells_done;
+    const cellsTotal = l ? l.cellsTotal : r.cells_total;
+    const elapsed = l ? (Date.now() - l.startedMs) / 1000 : null;
+    return {
+      id: r.id,
+      state: r.state,
+      params: JSON.parse(r.params_json) as RunParams,
+      fingerprint: r.fingerprint,
+      progress: { cellsDone, cellsTotal, etaSeconds: l && cellsDone > 0 && elapsed !== null ? Number(((elapsed / cellsDone) * (cellsTotal - cellsDone)).toFixed(1)) : null },
+      starsUsed: r.stars_used,
+      measurementsUsed: r.measurements_used,
+      startedBy: r.started_by,
+      createdAt: r.created_at,
+      startedAt: r.started_at,
+      finishedAt: r.finished_at,
+      error: r.error,
+    };
+  }
+
+  return {
+    async start(actorId: number, input: Partial<RunParams>) {
+      const params: RunParams = { ...DEFAULT_RUN, ...input, region: input.region ?? null };
+      const id = await db.transaction(async (trx) => {
+        const [id] = await trx('tomography_runs').insert({ state: 'queued', params_json: JSON.stringify(params), started_by: actorId, created_at: new Date().toISOString() });
+        await recordAudit(trx, { actorId, action: 'tomography.start', entityType: 'tomography_run', entityId: id, after: params });
+        return id as number;
+      });
+      const job = queue.then(() => execute(id));
+      queue = job.catch(() => undefined);
+      return { id, done: job };
+    },
+
+    async cancel(actorId: number, id: number) {
+      const run = await db('tomography_runs').where({ id }).first();
+      if (!run) throw notFound(`Run ${id}`);
+      if (!['queued', 'running'].includes(run.state)) throw new AppError(409, 'finished', `Run ${id} is ${run.state}; only a queued or running run can be cancelled.`);
+      await db.transaction(async (trx) => {
+        if (run.state === 'queued') await trx('tomography_runs').where({ id }).update({ state: 'cancelled', finished_at: new Date().toISOString() });
+        await recordAudit(trx, { actorId, action: 'tomography.cancel', entityType: 'tomography_run', entityId: id });
+      });
+      live.get(id)?.abort.abort();
+      return present(await db('tomography_runs').where({ id }).first());
+    },
+
+    async get(id: number) {
+      const r = await readDb('tomography_runs').where({ id }).first();
+      if (!r) throw notFound(`Run ${id}`);
+      return present(r);
+    },
+
+    async list() {
+      return (await readDb('tomography_runs').orderBy('id', 'desc').limit(100)).map(present);
+    },
+
+    /** The run answers come from: the one asked for, else the latest finished. */
+    async resolveRun(runId?: number) {
+      const r = runId ? await readDb('tomography_runs').where({ id: runId }).first() : await readDb('tomography_runs').where({ state: 'done' }).orderBy('id', 'desc').first();
+      if (!r) throw notFound(runId ? `Run ${runId}` : 'A finished tomography run');
+      if (r.state !== 'done') throw new AppError(409, 'not_finished', `Run ${r.id} is ${r.state}.`);
+      return present(r);
+    },
+
+    /** Every cell of a run, compact, for the sky map. */
+    async cells(runId: number) {
+      const rows = await readDb('tomography_cells').where({ run_id: runId }).orderBy('ipix').select('ipix', 'lon_deg', 'lat_deg', 'ra_deg', 'dec_deg', 'n_stars', 'n_layers', 'layer_support', 'complex', 'max_jump_deg', 'max_jump_significance', 'nearest_layer_pc', 'farthest_layer_pc');
+      return rows.map((c) => ({ ...c, ipix: Number(c.ipix), complex: Boolean(c.complex) }));
+    },
+
+    async sightlines(run: ReturnType<typeof present>, where: { ipix: number[] } | { ra: number; dec: number; radius: number }, includeStars: boolean) {
+      let q = readDb('tomography_cells').where({ run_id: run.id });
+      if ('ipix' in where) q = q.whereIn('ipix', where.ipix);
+      let rows = await q.orderBy('ipix');
+      if (!('ipix' in where)) rows = withinCone(rows, where.ra, where.dec, where.radius);
+      const out = rows.map((c) => presentCell(c));
+      if (includeStars) {
+        // the stars of each cell, gathered exactly as the run gathered them (a cone around the cell, then the cell itself)
+        for (const c of out.slice(0, 50)) {
+          const region = { ra: c.centre.raDeg, dec: c.centre.decDeg, radius: maxPixelRadiusDeg(run.params.nside) * 1.01 };
+          const { byCell } = await gatherStars(readDb, { ...run.params, region });
+          (c as Record<string, unknown>).stars = (byCell.get(c.ipix) ?? []).sort((a, b) => a.distancePc - b.distancePc);
+        }
+      }
+      return out;
+    },
+  };
+}
+export type TomographyService = ReturnType<typeof tomographyService>;
+
+export function presentCell(c: Record<string, any>) {
+  const r = JSON.parse(c.result_json);
+  return {
+    nside: c.nside,
+    ipix: Number(c.ipix),
+    centre: { lonDeg: c.lon_deg, latDeg: c.lat_deg, raDeg: c.ra_deg, decDeg: c.dec_deg },
+    ...(c.separation_deg !== undefined ? { separationDeg: c.separation_deg } : {}),
+    nStars: c.n_stars,
+    nLayers: c.n_layers,
+    layerCountSupport: c.layer_support,
+    layerCountHistogram: r.layerCountHistogram,
+    complex: Boolean(c.complex),
+    clearForeground: r.clearForeground,
+    layers: r.layers,
+    jumps: r.jumps,
+    segments: r.segments,
+    draws: r.draws,
+    matchedDraws: r.matchedDraws,
+  };
+}
+
