@@ -19,6 +19,8 @@ import { reviewService, type ReviewService } from './review/service.js';
 import { reviewRoutes } from './review/routes.js';
 import { tomographyService, type TomographyService } from './tomography/service.js';
 import { tomographyRoutes } from './tomography/routes.js';
+import { releaseService, type ReleaseService } from './releases/service.js';
+import { releaseRoutes } from './releases/routes.js';
 import { notifyCuratorsOfNewBatch, notifyObserverOfReview } from './mail/notifications.js';
 import { createMailer, type Mailer } from './mail/transport.js';
 import { mailRoutes } from './mail/routes.js';
@@ -36,6 +38,7 @@ export interface AppServices {
   tomography: TomographyService;
   review: ReviewService;
   measurements: MeasurementService;
+  releases: ReleaseService;
 }
 
 /** Build the Express app without listening, so tests can drive it with supertest. */
@@ -74,6 +77,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     })().catch((e) => console.error('review notification', e));
   });
   const tomography = tomographyService(db, deps.readDb ?? db);
+  const releases = releaseService(db, deps.readDb ?? db);
 
   const api = express.Router();
   api.use(express.json({ limit: '2mb' }));
@@ -100,6 +104,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(intakeRoutes({ intake, config }));
   api.use(reviewRoutes({ db, review, measurements }));
   api.use(tomographyRoutes({ tomography }));
+  api.use(releaseRoutes({ releases }));
   api.use(mailRoutes({ db, mailer, config }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
@@ -118,5 +123,5 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     });
   }
   app.use(errorMiddleware);
-  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements } });
+  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements, releases } });
 }

@@ -56,7 +56,7 @@ export function tomographyRoutes(deps: { tomography: TomographyService }): Route
 
   r.get('/sightlines', readers, async (req, res) => {
     const q = req.query as Record<string, string | undefined>;
-    const run = await tomography.resolveRun(num(q.run, 'run'));
+    const run = await tomography.resolveRun(num(q.run, 'run'), q.release);
     const includeStars = q.include === 'stars';
     const nside = num(q.nside, 'nside');
     const ipix = num(q.ipix, 'ipix');
@@ -77,7 +77,7 @@ export function tomographyRoutes(deps: { tomography: TomographyService }): Route
     } else {
       throw badRequest('give either ra, dec and radius (degrees, ICRS) or nside and ipix (nested)', { fields: [{ field: 'ra', message: 'or nside+ipix' }] });
     }
-    res.json({ run: { id: run.id, params: run.params, fingerprint: run.fingerprint, finishedAt: run.finishedAt }, conventions: SIGHTLINE_CONVENTIONS, cells });
+    res.json({ run: { id: run.id, params: run.params, fingerprint: run.fingerprint, finishedAt: run.finishedAt }, release: run.release, conventions: SIGHTLINE_CONVENTIONS, cells });
   });
 
   return r;

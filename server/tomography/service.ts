@@ -209,12 +209,19 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
       return (await readDb('tomography_runs').orderBy('id', 'desc').limit(100)).map(present);
     },
 
-    /** The run answers come from: the one asked for, else the latest finished. */
-    async resolveRun(runId?: number) {
+    /** The run answers come from: a release's frozen run, the one asked for, else the latest finished. */
+    async resolveRun(runId?: number, releaseTag?: string) {
+      let release: { tag: string; run_id: number } | undefined;
+      if (releaseTag) {
+        release = await readDb('releases').where({ tag: releaseTag }).first('tag', 'run_id');
+        if (!release) throw notFound(`Release ${releaseTag}`);
+        if (runId && runId !== release.run_id) throw new AppError(400, 'bad_request', `release ${releaseTag} is run ${release.run_id}, not run ${runId}`, { fields: [{ field: 'run', message: 'does not match the release' }] });
+        runId = release.run_id;
+      }
       const r = runId ? await readDb('tomography_runs').where({ id: runId }).first() : await readDb('tomography_runs').where({ state: 'done' }).orderBy('id', 'desc').first();
       if (!r) throw notFound(runId ? `Run ${runId}` : 'A finished tomography run');
       if (r.state !== 'done') throw new AppError(409, 'not_finished', `Run ${r.id} is ${r.state}.`);
-      return present(r);
+      return { ...present(r), release: release?.tag ?? null };
     },
 
     /** Every cell of a run, compact, for the sky map. */

@@ -52,6 +52,9 @@ const MATRIX: Record<string, Who> = {
   'POST /tomography/runs/:id/cancel': CUR,
   'GET /tomography/runs/:id/cells': 'signed-in',
   'GET /sightlines': 'signed-in',
+  'POST /releases': CUR,
+  'GET /releases': 'signed-in',
+  'GET /releases/:tag': 'signed-in',
 };
 
 function listRoutes(app: TestApp['app']): string[] {
