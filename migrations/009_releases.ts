@@ -27,11 +27,16 @@ export async function up(knex: Knex): Promise<void> {
     t.double('u_err').notNullable();
     t.double('q_gal').notNullable();
     t.double('u_gal').notNullable();
+    t.double('q_gal_err').notNullable();
+    t.double('u_gal_err').notNullable();
     t.double('p_debiased').notNullable();
     t.double('theta_deg').notNullable();
     t.double('theta_gal_deg').notNullable();
     t.double('distance_pc');
+    t.double('distance_lo_pc');
+    t.double('distance_hi_pc');
     t.primary(['release_id', 'measurement_id']);
+    t.index(['release_id', 'star_id']);
   });
   await knex.schema.createTable('release_stars', (t) => {
     t.integer('release_id').notNullable().references('releases.id');
@@ -40,6 +45,9 @@ export async function up(knex: Knex): Promise<void> {
     t.string('source_id', 32);
     t.double('ra_deg').notNullable();
     t.double('dec_deg').notNullable();
+    t.double('glon_deg').notNullable();
+    t.double('glat_deg').notNullable();
+    t.bigInteger('hpx15').notNullable();
     t.double('parallax_mas');
     t.double('parallax_err_mas');
     t.primary(['release_id', 'star_id']);

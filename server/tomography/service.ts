@@ -32,18 +32,20 @@ interface Live {
 }
 
 /** Stars of the approved catalog in one band, each with its combined (q, u) in the run's frame. */
-export async function gatherStars(db: Knex, p: RunParams) {
-  let q = db('measurements')
-    .join('stars', 'stars.id', 'measurements.star_id')
-    .where('measurements.state', 'approved')
-    .where('measurements.band', p.band)
-    .orderBy(['measurements.star_id', 'measurements.id'])
+export async function gatherStars(db: Knex, p: RunParams, from: { releaseId?: number } = {}) {
+  // live approved catalog, or the copies frozen with a release
+  const [M, S] = from.releaseId ? ['release_measurements', 'release_stars'] : ['measurements', 'stars'];
+  let q = db(`${M} as m`)
+    .join(`${S} as s`, from.releaseId ? (j) => j.on('s.star_id', 'm.star_id').andOn('s.release_id', 'm.release_id') : (j) => j.on('s.id', 'm.star_id'))
+    .where('m.band', p.band)
+    .orderBy(['m.star_id', from.releaseId ? 'm.measurement_id' : 'm.id'])
     .select(
-      'measurements.id', 'measurements.version', 'measurements.star_id', 'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err',
-      'measurements.q_gal', 'measurements.u_gal', 'measurements.q_gal_err', 'measurements.u_gal_err', 'measurements.distance_pc', 'measurements.distance_lo_pc', 'measurements.distance_hi_pc',
-      'stars.ra_deg', 'stars.dec_deg', 'stars.glon_deg', 'stars.glat_deg', 'stars.parallax_mas', 'stars.parallax_err_mas',
+      from.releaseId ? 'm.measurement_id as id' : 'm.id', 'm.version', 'm.star_id', 'm.q', 'm.u', 'm.q_err', 'm.u_err',
+      'm.q_gal', 'm.u_gal', 'm.q_gal_err', 'm.u_gal_err', 'm.distance_pc', 'm.distance_lo_pc', 'm.distance_hi_pc',
+      's.ra_deg', 's.dec_deg', 's.glon_deg', 's.glat_deg', 's.parallax_mas', 's.parallax_err_mas',
     );
-  if (p.region) q = whereInCone(q, 'stars.hpx15', p.region.ra, p.region.dec, p.region.radius);
+  q = from.releaseId ? q.where('m.release_id', from.releaseId) : q.where('m.state', 'approved');
+  if (p.region) q = whereInCone(q, 's.hpx15', p.region.ra, p.region.dec, p.region.radius);
   let rows = await q;
   if (p.region) rows = withinCone(rows, p.region.ra, p.region.dec, p.region.radius);
   const hash = crypto.createHash('sha256');
@@ -230,7 +232,7 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
       return rows.map((c) => ({ ...c, ipix: Number(c.ipix), complex: Boolean(c.complex) }));
     },
 
-    async sightlines(run: ReturnType<typeof present>, where: { ipix: number[] } | { ra: number; dec: number; radius: number }, includeStars: boolean) {
+    async sightlines(run: ReturnType<typeof present> & { release?: string | null }, where: { ipix: number[] } | { ra: number; dec: number; radius: number }, includeStars: boolean) {
       let q = readDb('tomography_cells').where({ run_id: run.id });
       if ('ipix' in where) q = q.whereIn('ipix', where.ipix);
       let rows = await q.orderBy('ipix');
@@ -240,7 +242,8 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
         // the stars of each cell, gathered exactly as the run gathered them (a cone around the cell, then the cell itself)
         for (const c of out.slice(0, 50)) {
           const region = { ra: c.centre.raDeg, dec: c.centre.decDeg, radius: maxPixelRadiusDeg(run.params.nside) * 1.01 };
-          const { byCell } = await gatherStars(readDb, { ...run.params, region });
+          const releaseId = run.release ? (await readDb('releases').where({ tag: run.release }).first('id'))?.id : undefined;
+          const { byCell } = await gatherStars(readDb, { ...run.params, region }, { releaseId });
           (c as Record<string, unknown>).stars = (byCell.get(c.ipix) ?? []).sort((a, b) => a.distancePc - b.distancePc);
         }
       }

@@ -26,7 +26,7 @@ describe('frozen releases', () => {
     const modeler = await signedIn(t.app, 'modeler');
     const cells = (await modeler.get('/api/v1/tomography/runs/1/cells')).body.cells;
     const cell = cells.find((c: { n_layers: number }) => c.n_layers >= 2);
-    const ask = () => modeler.get(`/api/v1/sightlines?nside=32&ipix=${cell.ipix}&release=KRPS-DR1`);
+    const ask = () => modeler.get(`/api/v1/sightlines?nside=32&ipix=${cell.ipix}&release=KRPS-DR1&include=stars`);
     const before = (await ask()).text;
     expect(JSON.parse(before).release).toBe('KRPS-DR1');
 
