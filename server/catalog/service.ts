@@ -30,9 +30,9 @@ export function catalogService(db: Knex) {
   return {
     async stars(user: SessionUser, query: StarQuery) {
       if (!(STAR_SORTS as readonly string[]).includes(query.sort)) throw badRequest(`sort must be one of ${STAR_SORTS.join(', ')}`, { fields: [{ field: 'sort', message: 'unknown column' }] });
-      const counts = visibleMeasurements(db, user).select('star_id').count({ n: '*' }).groupBy('star_id').as('mc');
-      let base = db('stars').leftJoin(counts, 'mc.star_id', 'stars.id');
-      if (!hasRole(user, ['curator'])) base = base.whereNotNull('mc.star_id'); // stars known only from unseen batches stay hidden
+      let base = db('stars');
+      // stars known only from batches a person may not see stay hidden (an indexed EXISTS per star)
+      if (!hasRole(user, ['curator'])) base = base.whereExists(visibleMeasurements(db, user).select(db.raw('1')).whereRaw('measurements.star_id = stars.id'));
       if (query.q) {
         const like = `%${query.q.replace(/[%_]/g, (c) => `\\${c}`)}%`;
         base = base.where((w) => w.whereRaw("stars.name LIKE ? ESCAPE '\\'", [like]).orWhere('stars.source_id', query.q!));
@@ -44,17 +44,28 @@ export function catalogService(db: Knex) {
         if (!(query.dec! >= -90 && query.dec! <= 90)) throw badRequest('dec must be in degrees, −90 ≤ dec ≤ 90', { fields: [{ field: 'dec', message: 'expected −90 ≤ dec ≤ 90 (deg)' }] });
         base = whereInCone(base, 'stars.hpx15', query.ra!, query.dec!, query.radius!);
       }
-      const cols = ['stars.id', 'stars.name', 'stars.source_id', 'stars.ra_deg', 'stars.dec_deg', 'stars.glon_deg', 'stars.glat_deg', 'stars.parallax_mas', 'stars.parallax_err_mas', db.raw('coalesce(mc.n, 0) as n_measurements')];
+      const cols = ['stars.id', 'stars.name', 'stars.source_id', 'stars.ra_deg', 'stars.dec_deg', 'stars.glon_deg', 'stars.glat_deg', 'stars.parallax_mas', 'stars.parallax_err_mas'];
+      const withCounts = async <T extends { id: number }>(rows: T[]) => {
+        const counts = new Map<number, number>();
+        for (const c of await visibleMeasurements(db, user).whereIn('measurements.star_id', rows.map((r) => r.id)).select('measurements.star_id').count({ n: '*' }).groupBy('measurements.star_id') as { star_id: number; n: number }[]) counts.set(Number(c.star_id), Number(c.n));
+        return rows.map((r) => ({ ...r, n_measurements: counts.get(r.id) ?? 0 }));
+      };
       if (cone) {
-        // exact separations, sorted by distance from the centre unless another sort is asked for
-        const all = withinCone(await base.clone().select(cols), query.ra!, query.dec!, query.radius!);
-        const sorted = query.sort === 'id' ? all : [...all].sort((a: any, b: any) => (a[query.sort] < b[query.sort] ? -1 : a[query.sort] > b[query.sort] ? 1 : 0) * (query.order === 'desc' ? -1 : 1));
-        return { stars: sorted.slice(query.offset, query.offset + query.limit).map(present), total: all.length };
+        // exact separations, nearest first unless another sort is asked for
+        let all: Record<string, any>[] = withinCone(await base.clone().select(cols), query.ra!, query.dec!, query.radius!);
+        if (query.sort === 'n_measurements') all = await withCounts(all as { id: number }[]);
+        const key = query.sort;
+        const sorted = key === 'id' ? all : [...all].sort((a, b) => (a[key] < b[key] ? -1 : a[key] > b[key] ? 1 : 0) * (query.order === 'desc' ? -1 : 1));
+        const page = sorted.slice(query.offset, query.offset + query.limit) as { id: number }[];
+        return { stars: (query.sort === 'n_measurements' ? page : await withCounts(page)).map(present), total: all.length };
       }
       const [{ n }] = await base.clone().count({ n: '*' });
-      const sortCol = query.sort === 'n_measurements' ? 'n_measurements' : `stars.${query.sort}`;
-      const rows = await base.clone().select(cols).orderBy(sortCol, query.order).orderBy('stars.id').limit(query.limit).offset(query.offset);
-      return { stars: rows.map(present), total: Number(n) };
+      let rows;
+      if (query.sort === 'n_measurements') {
+        const counts = visibleMeasurements(db, user).select('star_id').count({ n: '*' }).groupBy('star_id').as('mc');
+        rows = await base.clone().leftJoin(counts, 'mc.star_id', 'stars.id').select(cols).orderByRaw(`coalesce(mc.n, 0) ${query.order}`).orderBy('stars.id').limit(query.limit).offset(query.offset);
+      } else rows = await base.clone().select(cols).orderBy(`stars.${query.sort}`, query.order).orderBy('stars.id').limit(query.limit).offset(query.offset);
+      return { stars: (await withCounts(rows)).map(present), total: Number(n) };
     },
 
     async star(user: SessionUser, id: number) {
