@@ -125,6 +125,7 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
       const { byCell, fingerprint, starsUsed, measurementsUsed } = await gatherStars(readDb, params);
       const cells: TomographyCell[] = [...byCell].filter(([, s]) => s.length >= params.minStars).sort((a, b) => a[0] - b[0]).map(([ipix, stars]) => ({ cellId: `${params.nside}/${ipix}`, stars }));
       state.cellsTotal = cells.length;
+      state.startedMs = Date.now(); // time left counts fitting only, not gathering
       await db('tomography_runs').where({ id: runId }).update({ cells_total: cells.length, fingerprint, stars_used: starsUsed, measurements_used: measurementsUsed });
       const results = await runCellsInWorkers(
         cells,

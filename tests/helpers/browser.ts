@@ -36,9 +36,12 @@ export interface LiveServer {
   close: () => Promise<void>;
 }
 
-/** The built client and the API on a free port, with a fresh demo database. */
-export async function startLiveServer(): Promise<LiveServer> {
-  const t = await makeTestApp({ distDir: DIST });
+/**
+ * The built client and the API on a free port, with a fresh demo database.
+ * `tomography: true` lets the seed run the demo tomography too (a finished run for the sky map).
+ */
+export async function startLiveServer(opts: { tomography?: boolean } = {}): Promise<LiveServer> {
+  const t = await makeTestApp({ distDir: DIST }, { tomography: opts.tomography ?? false });
   const server: Server = await new Promise((resolve) => {
     const s = t.app.listen(0, '127.0.0.1', () => resolve(s));
   });

@@ -1,0 +1,125 @@
+import { useState, type FormEvent } from 'react';
+import { Button, Field, Notice, Select, TextInput } from '../../../components/ui/primitives';
+import { ApiError } from '../../../lib/apiClient';
+import { useStartRun, type StartRunInput } from '../api/startRun';
+import { BANDS, NSIDES, type CoordSys } from '../types';
+
+/** The server's defaults for a run (schemas/api/tomography-run.json). */
+const DEFAULTS = { nside: '32', coordsys: 'G' as CoordSys, band: 'R', minStars: '10', draws: '100', jumpThresholdDeg: '30', minSegmentLength: '3', ra: '', dec: '', radius: '5' };
+type Form = typeof DEFAULTS;
+
+interface FieldProblem {
+  field: string;
+  message: string;
+}
+
+/** Problems the server named, by field ("region.ra" → "ra"). */
+function problemsByField(err: unknown): Record<string, string> {
+  if (!(err instanceof ApiError)) return {};
+  const fields = (err.details as { fields?: FieldProblem[] } | undefined)?.fields ?? [];
+  const out: Record<string, string> = {};
+  for (const f of fields) out[f.field.replace(/^region\./, '')] = f.message;
+  return out;
+}
+
+/** Numbers the person typed; a blank or non-number is left for the server to name. */
+const numberOf = (s: string) => (s.trim() === '' ? Number.NaN : Number(s));
+
+/** Start a tomography run over the approved catalog (curator, admin). */
+export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }) {
+  const [f, setF] = useState<Form>(DEFAULTS);
+  const [cone, setCone] = useState(false);
+  const start = useStartRun();
+  const problems = problemsByField(start.error);
+  const set = (k: keyof Form) => (e: { target: { value: string } }) => setF({ ...f, [k]: e.target.value });
+
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    const body: StartRunInput = {
+      nside: Number(f.nside),
+      coordsys: f.coordsys,
+      band: f.band,
+      minStars: numberOf(f.minStars),
+      draws: numberOf(f.draws),
+      jumpThresholdDeg: numberOf(f.jumpThresholdDeg),
+      minSegmentLength: numberOf(f.minSegmentLength),
+      ...(cone ? { region: { ra: numberOf(f.ra), dec: numberOf(f.dec), radius: numberOf(f.radius) } } : {}),
+    };
+    // JSON has no NaN: a blank number goes as null, which the server refuses naming the field
+    const clean = JSON.parse(JSON.stringify(body, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v))) as StartRunInput;
+    start.mutate(clean, { onSuccess: (run) => onStarted?.(run.id) });
+  };
+
+  return (
+    <form onSubmit={submit} className="space-y-4" aria-label="Start a run">
+      <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
+        <Field label="NSIDE" hint="HEALPix cells, nested; 32 ≈ 1.8° across" error={problems.nside}>
+          <Select value={f.nside} onChange={set('nside')} className="w-full">
+            {NSIDES.map((n) => (
+              <option key={n} value={n}>
+                {n}
+              </option>
+            ))}
+          </Select>
+        </Field>
+        <Field label="Frame" hint="of the cells and the angles" error={problems.coordsys}>
+          <Select value={f.coordsys} onChange={set('coordsys')} className="w-full">
+            <option value="G">Galactic</option>
+            <option value="C">Equatorial (ICRS)</option>
+          </Select>
+        </Field>
+        <Field label="Band" error={problems.band}>
+          <Select value={f.band} onChange={set('band')} className="w-full">
+            {BANDS.map((b) => (
+              <option key={b} value={b}>
+                {b}
+              </option>
+            ))}
+          </Select>
+        </Field>
+        <Field label="Min stars per cell" hint="4 to 1000; fewer: skipped" error={problems.minStars}>
+          <TextInput inputMode="numeric" value={f.minStars} onChange={set('minStars')} />
+        </Field>
+        <Field label="Distance draws" hint="0 to 500 Monte Carlo draws per cell" error={problems.draws}>
+          <TextInput inputMode="numeric" value={f.draws} onChange={set('draws')} />
+        </Field>
+        <Field label="Jump threshold [deg]" hint="|Δθ| that makes a sightline complex" error={problems.jumpThresholdDeg}>
+          <TextInput inputMode="decimal" value={f.jumpThresholdDeg} onChange={set('jumpThresholdDeg')} />
+        </Field>
+        <Field label="Min stars per segment" hint="2 to 50" error={problems.minSegmentLength}>
+          <TextInput inputMode="numeric" value={f.minSegmentLength} onChange={set('minSegmentLength')} />
+        </Field>
+      </div>
+      <fieldset className="rounded-lg border border-line p-3">
+        <legend className="px-1 text-sm">
+          <label className="inline-flex items-center gap-2 font-medium text-ink">
+            <input type="checkbox" checked={cone} onChange={(e) => setCone(e.target.checked)} className="accent-night" />
+            Only a cone of the sky
+          </label>
+        </legend>
+        {cone ? (
+          <div className="grid gap-4 sm:grid-cols-3">
+            <Field label="Cone RA [deg]" hint="ICRS, 0 ≤ RA < 360" error={problems.ra}>
+              <TextInput inputMode="decimal" value={f.ra} onChange={set('ra')} />
+            </Field>
+            <Field label="Cone Dec [deg]" hint="ICRS, −90 to 90" error={problems.dec}>
+              <TextInput inputMode="decimal" value={f.dec} onChange={set('dec')} />
+            </Field>
+            <Field label="Cone radius [deg]" hint="above 0, at most 180" error={problems.radius}>
+              <TextInput inputMode="decimal" value={f.radius} onChange={set('radius')} />
+            </Field>
+          </div>
+        ) : (
+          <p className="text-xs text-muted">Off: the run covers every approved star of the band.</p>
+        )}
+      </fieldset>
+      {start.error && <Notice tone="bad">{start.error.message}</Notice>}
+      <div className="flex items-center gap-3">
+        <Button type="submit" disabled={start.isPending}>
+          {start.isPending ? 'Starting…' : 'Start run'}
+        </Button>
+        <span className="text-xs text-muted">Runs wait in line and fit one at a time, on background threads; the same data and parameters give the same fingerprint.</span>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,132 @@
+/**
+ * What the sightline plots draw, from one sightline answer (pure functions).
+ *
+ * The fit splits the distance-ordered stars into segments of constant mean (q̄, ū): the summed
+ * Stokes parameters of every cloud in front (thin screens add, METHODS.md "Tomography" 2). Drawn
+ * against distance that is a step function rising at each layer's break. When the nearest stars
+ * are unpolarized (clearForeground) the first segment is that foreground and there is one more
+ * segment than layers; otherwise segment k belongs to layer k, the first being a 'foreground'
+ * layer nearer than every star.
+ */
+import { propagateStokesErrors } from '../../../../server/science/polarization';
+import type { Sightline, TomographyStar } from '../types';
+
+export interface Step {
+  segment: number;
+  /** the layer whose near edge starts this step; null for the unpolarized foreground */
+  layer: number | null;
+  fromPc: number;
+  toPc: number;
+  /** per cent */
+  q: number;
+  u: number;
+  qErr: number;
+  uErr: number;
+  p: number;
+  thetaDeg: number;
+}
+
+export interface DistanceBand {
+  layer: number;
+  kind: 'break' | 'foreground';
+  medianPc: number;
+  /** 16th and 84th percentiles, clamped to the plot's range (a foreground layer reaches down to the left edge) */
+  loPc: number;
+  hiPc: number;
+}
+
+export interface StarPoint {
+  id: string;
+  distancePc: number;
+  distanceLoPc: number;
+  distanceHiPc: number;
+  /** per cent */
+  q: number;
+  u: number;
+  qErr: number;
+  uErr: number;
+  p: number;
+  pErr: number;
+  thetaDeg: number;
+  thetaErrDeg: number;
+}
+
+const PCT = 100;
+
+/** Stars with q, u (and p, σp) in per cent and θ, σθ in degrees by linear propagation. */
+export function starPoints(stars: TomographyStar[]): StarPoint[] {
+  return stars.map((s) => {
+    const f = propagateStokesErrors(s.q, s.u, s.qErr, s.uErr);
+    return {
+      id: s.id,
+      distancePc: s.distancePc,
+      distanceLoPc: s.distanceLoPc,
+      distanceHiPc: s.distanceHiPc,
+      q: PCT * s.q,
+      u: PCT * s.u,
+      qErr: PCT * s.qErr,
+      uErr: PCT * s.uErr,
+      p: PCT * f.p,
+      pErr: PCT * f.pErr,
+      thetaDeg: f.thetaDeg,
+      thetaErrDeg: f.thetaErrDeg,
+    };
+  });
+}
+
+/** Distance range of the plots [pc]: every star's 16–84 % range and every layer's, with a margin (log axis, so > 0). */
+export function distanceDomain(s: Sightline): [number, number] {
+  const lows = [...(s.stars ?? []).map((x) => x.distanceLoPc), ...s.layers.map((l) => l.distanceLoPc)].filter((v) => v > 0);
+  const highs = [...(s.stars ?? []).map((x) => x.distanceHiPc), ...s.layers.map((l) => l.distanceHiPc)].filter((v) => v > 0);
+  const lo = lows.length ? Math.min(...lows) : 10;
+  const hi = highs.length ? Math.max(...highs) : 5000;
+  return [lo / 1.25, hi * 1.15];
+}
+
+/** Segment means as steps: each from its layer's median break distance to the next one. */
+export function segmentSteps(s: Sightline, domain: [number, number]): Step[] {
+  const offset = s.clearForeground ? 1 : 0;
+  const startOf = (seg: number) => {
+    if (seg === 0) return domain[0];
+    const layer = s.layers[seg - offset];
+    return layer ? Math.max(domain[0], layer.distancePc) : domain[0];
+  };
+  return s.segments.map((g, i) => {
+    const f = propagateStokesErrors(g.meanQ, g.meanU, g.meanQErr, g.meanUErr);
+    const layer = i - offset;
+    return {
+      segment: i,
+      layer: layer >= 0 ? layer : null,
+      fromPc: startOf(i),
+      toPc: i + 1 < s.segments.length ? startOf(i + 1) : domain[1],
+      q: PCT * g.meanQ,
+      u: PCT * g.meanU,
+      qErr: PCT * g.meanQErr,
+      uErr: PCT * g.meanUErr,
+      p: PCT * f.p,
+      thetaDeg: f.thetaDeg,
+    };
+  });
+}
+
+/** The step function as a polyline (horizontal runs joined by verticals at the breaks). */
+export function stepLine(steps: Step[], key: 'q' | 'u'): { distancePc: number; value: number }[] {
+  return steps.flatMap((st) => [
+    { distancePc: st.fromPc, value: st[key] },
+    { distancePc: st.toPc, value: st[key] },
+  ]);
+}
+
+/** The 16–84 % distance range of every layer's near edge. */
+export function layerBands(s: Sightline, domain: [number, number]): DistanceBand[] {
+  return s.layers.map((l) => ({
+    layer: l.index,
+    kind: l.kind,
+    medianPc: l.distancePc,
+    loPc: Math.max(domain[0], l.kind === 'foreground' ? domain[0] : l.distanceLoPc),
+    hiPc: Math.min(domain[1], Math.max(l.distanceHiPc, domain[0])),
+  }));
+}
+
+/** Layer numbers as people count them: the nearest layer is 1. */
+export const layerNumber = (index: number) => index + 1;
