@@ -24,6 +24,12 @@ import { releaseRoutes } from './releases/routes.js';
 import { notifyCuratorsOfNewBatch, notifyObserverOfReview } from './mail/notifications.js';
 import { createMailer, type Mailer } from './mail/transport.js';
 import { mailRoutes } from './mail/routes.js';
+import { tokenService, type TokenService } from './tokens/service.js';
+import { tokenRoutes } from './tokens/routes.js';
+import { bearerTokenAuth } from './tokens/middleware.js';
+import { skyService } from './masks/service.js';
+import { maskRoutes } from './masks/routes.js';
+import { apiDocsPage, openApiRoutes } from './openapi/routes.js';
 
 export interface AppDeps {
   db: Knex;
@@ -39,6 +45,7 @@ export interface AppServices {
   review: ReviewService;
   measurements: MeasurementService;
   releases: ReleaseService;
+  tokens: TokenService;
 }
 
 /** Build the Express app without listening, so tests can drive it with supertest. */
@@ -78,6 +85,8 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   });
   const tomography = tomographyService(db, deps.readDb ?? db);
   const releases = releaseService(db, deps.readDb ?? db);
+  const tokens = tokenService(db, deps.readDb ?? db);
+  const sky = skyService(deps.readDb ?? db, tomography);
 
   const api = express.Router();
   api.use(express.json({ limit: '2mb' }));
@@ -94,10 +103,13 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   );
   api.use(pp.initialize());
   api.use(pp.session());
+  // Authorization: Bearer <personal API token> → req.user for GET routes (server/tokens/middleware.ts)
+  api.use(bearerTokenAuth({ tokens, config }));
 
   api.get('/health', (_req, res) => {
     res.json({ ok: true });
   });
+  api.use(openApiRoutes());
   api.use(authRoutes({ auth, passport: pp, config }));
   api.use(adminRoutes({ auth }));
   api.use(catalogRoutes({ db }));
@@ -106,9 +118,13 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(tomographyRoutes({ tomography }));
   api.use(releaseRoutes({ releases }));
   api.use(mailRoutes({ db, mailer, config }));
+  api.use(tokenRoutes({ tokens }));
+  api.use(maskRoutes({ sky }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
   app.use('/api/v1', api);
+  // the OpenAPI document rendered for people (server/openapi/docs + swagger-ui-dist assets)
+  app.use('/api/docs', ...apiDocsPage());
 
   // The built client, with the router's paths falling back to index.html.
   const index = path.join(config.distDir, 'index.html');
@@ -123,5 +139,5 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     });
   }
   app.use(errorMiddleware);
-  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements, releases } });
+  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements, releases, tokens } });
 }

@@ -11,6 +11,8 @@ export interface Config {
   /** Allow the published demo password to sign in (refused in production unless STARVEIL_ALLOW_DEMO=1). */
   allowDemoPassword: boolean;
   loginRateLimit: { windowMs: number; max: number };
+  /** Requests allowed per personal API token per window (TOKEN_RATE_MAX per TOKEN_RATE_WINDOW_MS). */
+  tokenRateLimit: { windowMs: number; max: number };
   uploadMaxBytes: number;
   mail: { transport: 'outbox' | 'smtp'; from: string; smtpUrl?: string };
   /** How long an e-mailed password-reset link works. */
@@ -50,6 +52,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     loginRateLimit: {
       windowMs: intVar(env, 'LOGIN_RATE_WINDOW_MS', 15 * 60 * 1000, 1),
       max: intVar(env, 'LOGIN_RATE_MAX', 10, 1),
+    },
+    tokenRateLimit: {
+      windowMs: intVar(env, 'TOKEN_RATE_WINDOW_MS', 60 * 1000, 1),
+      max: intVar(env, 'TOKEN_RATE_MAX', 600, 1),
     },
     uploadMaxBytes: intVar(env, 'UPLOAD_MAX_BYTES', 100 * 1024 * 1024, 1),
     mail: { transport, from: env.MAIL_FROM ?? 'Starveil <no-reply@starveil.example>', smtpUrl: env.SMTP_URL },

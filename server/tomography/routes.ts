@@ -3,6 +3,7 @@ import { guard } from '../auth/roles.js';
 import { badRequest } from '../errors.js';
 import { validateBody } from '../lib/validate.js';
 import { npixForNside } from '../science/healpix.js';
+import { cellView, filterCells, sendCells, type CellForOutput } from '../masks/format.js';
 import type { TomographyService } from './service.js';
 
 /** Conventions stated in every sightline answer, so a script never has to guess. */
@@ -56,6 +57,7 @@ export function tomographyRoutes(deps: { tomography: TomographyService }): Route
 
   r.get('/sightlines', readers, async (req, res) => {
     const q = req.query as Record<string, string | undefined>;
+    const view = cellView(q); // criteria, convention, format (server/masks/format.ts)
     const run = await tomography.resolveRun(num(q.run, 'run'), q.release);
     const includeStars = q.include === 'stars';
     const nside = num(q.nside, 'nside');
@@ -77,7 +79,7 @@ export function tomographyRoutes(deps: { tomography: TomographyService }): Route
     } else {
       throw badRequest('give either ra, dec and radius (degrees, ICRS) or nside and ipix (nested)', { fields: [{ field: 'ra', message: 'or nside+ipix' }] });
     }
-    res.json({ run: { id: run.id, params: run.params, fingerprint: run.fingerprint, finishedAt: run.finishedAt }, release: run.release, conventions: SIGHTLINE_CONVENTIONS, cells });
+    sendCells(res, { what: 'sightlines', run, ...view, cells: filterCells(cells as unknown as CellForOutput[], view.criteria), conventions: SIGHTLINE_CONVENTIONS });
   });
 
   return r;

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
+import { listRoutes } from '../helpers/routes.js';
 
 type Who = 'open' | 'signed-in' | ('observer' | 'curator' | 'modeler' | 'admin')[];
 const OBS_CUR: Who = ['observer', 'curator'];
@@ -13,6 +14,7 @@ const ADMIN: Who = ['admin'];
  */
 const MATRIX: Record<string, Who> = {
   'GET /health': 'open',
+  'GET /openapi.json': 'open',
   'POST /auth/login': 'open',
   'POST /auth/logout': 'open',
   'POST /auth/password-reset/request': 'open',
@@ -55,19 +57,12 @@ const MATRIX: Record<string, Who> = {
   'POST /releases': CUR,
   'GET /releases': 'signed-in',
   'GET /releases/:tag': 'signed-in',
+  'POST /tokens': 'signed-in',
+  'GET /tokens': 'signed-in',
+  'DELETE /tokens/:id': 'signed-in',
+  'GET /sky': 'signed-in',
+  'GET /masks': 'signed-in',
 };
-
-function listRoutes(app: TestApp['app']): string[] {
-  const out: string[] = [];
-  const walk = (stack: any[]) => {
-    for (const l of stack) {
-      if (l.route) for (const m of Object.keys(l.route.methods)) out.push(`${m.toUpperCase()} ${l.route.path}`);
-      else if (l.handle?.stack) walk(l.handle.stack);
-    }
-  };
-  walk((app as any).router.stack);
-  return out.filter((r) => r !== 'GET /' && !r.startsWith('GET /^'));
-}
 
 let t: TestApp;
 const ids: Record<string, number> = {};

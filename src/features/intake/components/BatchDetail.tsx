@@ -1,3 +1,4 @@
+import { Link } from 'react-router-dom';
 import { Card, Notice } from '../../../components/ui/primitives';
 import { useBatch } from '../api/batch';
 import { useIntakeColumns } from '../api/columns';
@@ -56,7 +57,14 @@ function StateBody({ batch }: { batch: Batch }) {
   }
   if (batch.state === 'failed') return null;
   return (
-    <Card title="Checked rows">
+    <Card
+      title="Checked rows"
+      actions={
+        <Link to={`/review/batches/${batch.id}`} className="rounded-md border border-line bg-card px-3 py-1.5 text-sm text-night hover:bg-veil-soft">
+          Open the measurements table →
+        </Link>
+      }
+    >
       <BatchRowsTable batchId={batch.id} counts={batch.counts} />
     </Card>
   );

@@ -9,6 +9,9 @@ export interface EditInput {
   field: EditableField;
   value: number | string | null;
   reason?: string;
+  /** for messages only: what the person typed, and the row's line in the file */
+  typed?: string;
+  line?: number;
 }
 
 export interface EditAnswer {

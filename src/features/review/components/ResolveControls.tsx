@@ -37,9 +37,9 @@ export function ResolveControls({ row, readOnly, busy, onResolve }: { row: Revie
           new star
         </button>
         {row.candidates.map((c) => (
-          <div key={c.id}>
-            <button type="button" disabled={busy} className="text-veil underline-offset-2 hover:underline disabled:opacity-40" aria-label={`Attach line ${row.line} to ${c.name}`} onClick={(e) => { e.stopPropagation(); onResolve(row, { starId: c.id }); }}>
-              attach here
+          <div key={c.id} className="truncate">
+            <button type="button" disabled={busy} className="max-w-full truncate text-veil underline-offset-2 hover:underline disabled:opacity-40" aria-label={`Attach line ${row.line} to ${c.name}`} title={`Attach to ${c.name} (${c.separationArcsec.toFixed(2)}″ away)`} onClick={(e) => { e.stopPropagation(); onResolve(row, { starId: c.id }); }}>
+              attach to {c.name}
             </button>
           </div>
         ))}

@@ -129,7 +129,7 @@ function QueueRow({ b, decided }: { b: QueueBatch; decided: boolean }) {
       </td>
       {decided && (
         <td className="max-w-xs text-xs">
-          <div className="text-muted">{b.reviewedAt ? formatAge(b.reviewedAt) : '—'}</div>
+          <div className="text-muted">{b.reviewedAt ? `decided ${formatAge(b.reviewedAt)}` : '—'}</div>
           {b.reviewNote && <div className="mt-0.5 line-clamp-2 text-ink" title={b.reviewNote}>“{b.reviewNote}”</div>}
         </td>
       )}

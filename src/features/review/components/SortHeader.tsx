@@ -7,7 +7,7 @@ export function SortHeader({ label, active, order, onSort, title, align = 'left'
       type="button"
       onClick={onSort}
       title={title}
-      className={`inline-flex items-center gap-1 uppercase tracking-wide hover:text-night ${active ? 'text-night' : ''} ${align === 'right' ? 'flex-row-reverse' : ''}`}
+      className={`group inline-flex items-center gap-1 uppercase tracking-wide hover:text-night ${active ? 'text-night' : ''} ${align === 'right' ? 'flex-row-reverse' : ''}`}
     >
       {label}
       <SortMark active={active} order={order} />
@@ -17,8 +17,8 @@ export function SortHeader({ label, active, order, onSort, title, align = 'left'
 
 export function SortMark({ active, order }: { active: boolean; order: SortOrder }) {
   return (
-    <span aria-hidden className={`text-[10px] ${active ? 'text-veil' : 'text-line'}`}>
-      {active ? (order === 'asc' ? '▲' : '▼') : '△'}
+    <span aria-hidden className={`text-[10px] ${active ? 'text-veil' : 'text-muted opacity-0 transition-opacity group-hover:opacity-60'}`}>
+      {active ? (order === 'asc' ? '▲' : '▼') : '▲'}
     </span>
   );
 }

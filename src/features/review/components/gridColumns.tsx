@@ -1,4 +1,5 @@
 import { createColumnHelper, type ColumnDef } from '@tanstack/react-table';
+import type { MouseEvent, ReactNode } from 'react';
 import { fixed } from '../../intake/format';
 import { FIELDS, type FieldSpec } from '../fields';
 import type { Competing, MeasurementSort, ReviewRow } from '../types';
@@ -107,10 +108,52 @@ function NotesValue({ row }: { row: ReviewRow }) {
  * The table's columns. Cell content only: the grid wraps each cell with its active-cell state,
  * editor, notes and refusals.
  */
-export function buildColumns(opts: { selectable: boolean; resolve: (row: ReviewRow) => React.ReactNode; history: (row: ReviewRow) => React.ReactNode; selectHeader: () => React.ReactNode; selectCell: (index: number, row: ReviewRow) => React.ReactNode }): ColumnDef<ReviewRow, any>[] {
+export function buildColumns(opts: {
+  selectable: boolean;
+  resolve: (row: ReviewRow) => ReactNode;
+  history: (row: ReviewRow) => ReactNode;
+  /** a row's checkbox was clicked (with shift: a range from the last one) */
+  onCheck: (e: MouseEvent<HTMLInputElement>, row: ReviewRow) => void;
+  /** whether every loaded row is selected (the table itself holds only the rows in view) */
+  selectAll: () => { checked: boolean; indeterminate: boolean; toggle: () => void };
+}): ColumnDef<ReviewRow, any>[] {
   const cols: ColumnDef<ReviewRow, any>[] = [];
   if (opts.selectable) {
-    cols.push(col.display({ id: SELECT_COLUMN, size: 36, enableResizing: false, enableHiding: false, header: () => opts.selectHeader(), cell: (c) => opts.selectCell(c.row.index, c.row.original) }));
+    cols.push(
+      col.display({
+        id: SELECT_COLUMN,
+        size: 36,
+        enableResizing: false,
+        enableHiding: false,
+        header: () => {
+          const all = opts.selectAll();
+          return (
+            <input
+              type="checkbox"
+              tabIndex={-1}
+              aria-label="Select every loaded row"
+              checked={all.checked}
+              ref={(el) => {
+                if (el) el.indeterminate = all.indeterminate;
+              }}
+              onChange={all.toggle}
+              className="h-3.5 w-3.5 accent-night"
+            />
+          );
+        },
+        cell: (c) => (
+          <input
+            type="checkbox"
+            tabIndex={-1}
+            aria-label={`Select line ${c.row.original.line}`}
+            checked={c.row.getIsSelected()}
+            onClick={(e) => opts.onCheck(e, c.row.original)}
+            onChange={() => undefined}
+            className="h-3.5 w-3.5 accent-night"
+          />
+        ),
+      }),
+    );
   }
   cols.push(
     col.accessor('line', { id: 'line', header: 'line', size: 60, minSize: 44, enableHiding: false, cell: (c) => <span className="num font-mono text-muted">{c.getValue()}</span> }),

@@ -1,0 +1,206 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { ROLES } from '../auth/roles.js';
+import { ajv } from '../lib/validate.js';
+import { OPERATIONS } from './operations.js';
+import type { JsonSchema, Operation, Who } from './types.js';
+
+/**
+ * The OpenAPI 3.1 document, assembled from the route registry (operations.ts) and the JSON
+ * Schemas the server itself validates with (schemas/, loaded into the one ajv instance).
+ * Schemas are not copied by hand: each referenced $id is taken from ajv, its $refs rewritten to
+ * point into components.schemas, and the schemas it refers to are pulled in the same way.
+ */
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+const pkg = JSON.parse(fs.readFileSync(path.resolve(here, '../../package.json'), 'utf8')) as { version: string };
+
+/** OpenAPI component keys allow [A-Za-z0-9._-]: "responses/batch" → "responses.batch". */
+export const componentKey = (id: string) => id.replace(/\//g, '.');
+
+// $ids are relative ("responses/batch"), so resolve $refs the way ajv does, against a common base.
+const BASE = 'https://starveil.invalid/schemas/';
+export function resolveSchemaRef(fromId: string, ref: string): { id: string; pointer: string } {
+  const u = new URL(ref, BASE + fromId);
+  const basePath = new URL(BASE).pathname;
+  if (!u.pathname.startsWith(basePath)) throw new Error(`$ref ${ref} in ${fromId} leaves schemas/`);
+  return { id: decodeURIComponent(u.pathname.slice(basePath.length)), pointer: decodeURIComponent(u.hash.slice(1)) };
+}
+
+function schemaById(id: string): JsonSchema {
+  const v = ajv.getSchema(id);
+  if (!v) throw new Error(`OpenAPI document: no schema with $id ${id} under schemas/`);
+  return v.schema as JsonSchema;
+}
+
+/** Copy a schema for components.schemas: drop $id/$schema, rewrite $refs, note what they need. */
+function embed(id: string, need: (id: string) => void): JsonSchema {
+  const walk = (node: unknown, top: boolean): unknown => {
+    if (Array.isArray(node)) return node.map((n) => walk(n, false));
+    if (!node || typeof node !== 'object') return node;
+    const out: Record<string, unknown> = {};
+    for (const [k, v] of Object.entries(node)) {
+      if (top && (k === '$id' || k === '$schema')) continue;
+      if (k === '$ref' && typeof v === 'string') {
+        const target = resolveSchemaRef(id, v);
+        need(target.id);
+        out.$ref = `#/components/schemas/${componentKey(target.id)}${target.pointer}`;
+      } else out[k] = walk(v, false);
+    }
+    return out;
+  };
+  return walk(schemaById(id), true) as JsonSchema;
+}
+
+const ALL_ROLES = [...ROLES];
+
+/** Roles that pass the guard (admin passes every guard). */
+export function rolesFor(who: Who): string[] {
+  if (who === 'anyone') return ['anyone'];
+  if (who === 'signed-in') return ALL_ROLES;
+  return ALL_ROLES.filter((r) => r === 'admin' || who.includes(r));
+}
+
+function whoText(op: Operation): string {
+  const base = op.who === 'anyone' ? 'anyone, signed in or not' : op.who === 'signed-in' ? 'any signed-in role (observer, curator, modeler, admin)' : `${rolesFor(op.who).join(', ')} (admin passes every guard)`;
+  return `**Who may call:** ${base}${op.whoNote ? `; ${op.whoNote}` : ''}.`;
+}
+
+export function operationId(op: Operation): string {
+  const words = op.path.split('/').filter(Boolean).map((seg) => (seg.startsWith(':') ? `By-${seg.slice(1)}` : seg));
+  const camel = words.join('-').split(/[^A-Za-z0-9]+/).filter(Boolean).map((w) => w[0].toUpperCase() + w.slice(1)).join('');
+  return op.method + camel;
+}
+
+export const openApiPath = (expressPath: string) => expressPath.replace(/:(\w+)/g, '{$1}');
+
+const ERROR_RESPONSES: Record<number, { key: string; description: string }> = {
+  400: { key: 'BadRequest', description: 'Bad input: the message names the problem and `details.fields` each offending field (also bad_json for a body that is not JSON).' },
+  401: { key: 'Unauthenticated', description: 'Not signed in (no valid session cookie or API token), wrong credentials, or an unknown or revoked API token.' },
+  403: { key: 'Forbidden', description: 'Your role may not do this; or an API token was used for a write (tokens only read: code token_read_only).' },
+  404: { key: 'NotFound', description: 'No such thing, or not one you may see.' },
+  409: { key: 'Conflict', description: 'The request conflicts with the current state (stale version, held rows, duplicate tag, unfinished run, …).' },
+  413: { key: 'TooLarge', description: 'The upload is larger than UPLOAD_MAX_BYTES.' },
+  415: { key: 'NotCsvText', description: 'The upload is not CSV text: binary, not valid UTF-8, or without a comma, semicolon or tab delimiter.' },
+  429: { key: 'TooManyRequests', description: 'Too many requests: failed sign-ins or password-reset attempts per address and e-mail, or calls per API token (wait the seconds in the Retry-After header).' },
+};
+
+const ANGLE_NOTE = 'Starlight polarization is parallel to the plane-of-sky magnetic field; thermal dust emission is polarized perpendicular to it, so field angle = emission angle + 90°: add 90° to a Starveil angle before comparing it with the polarization angle of an emission map.';
+
+const INFO_DESCRIPTION = [
+  'The HTTP API of Starveil, the curated catalog of stellar polarization measurements tied to distances and the distance-resolved dust layers and sky masks computed from it. Base path `/api/v1`, JSON in and out.',
+  '',
+  '**Units and conventions.** Stokes q = Q/I and u = U/I are fractions, never percent. Angles are degrees, IAU convention (from north through east), in [0, 180); jumps between layers are wrapped to (−90, 90]. Positions are ICRS degrees with Galactic l, b derived; HEALPix pixels are nested. Distances are parsecs, parallaxes milliarcseconds (the +0.017 mas zero point is applied when distances are derived), epochs MJD (days). `source_id` is text end to end, never a number. Every numeric field below names its unit.',
+  '',
+  `**Field and emission angles.** ${ANGLE_NOTE}`,
+  '',
+  '**Signing in.** Either the session cookie `starveil.sid` from POST /auth/login (browsers and scripts alike), or a personal API token in `Authorization: Bearer <token>` (create one at POST /tokens while signed in). A token acts as its owner and only reads: any other method with a token answers 403. Each token has its own rate limit (429).',
+  '',
+  '**Who may call what.** Each operation states the roles that pass its guard in its description and as `x-roles` (admin passes every guard). Modelers see approved measurements only; observers see approved ones plus their own batches’; curators and admins see everything.',
+  '',
+  '**Errors** are always `{"error": {"code", "message", "details"?}}` with the matching HTTP status.',
+].join('\n');
+
+const TAGS: { name: string; description: string }[] = [
+  { name: 'Sign-in and account', description: 'Session sign-in, your own account, password reset by e-mail' },
+  { name: 'Tokens', description: 'Personal API tokens for scripts (read-only)' },
+  { name: 'Catalog', description: 'Stars, cone search, measurements and combined values' },
+  { name: 'Intake', description: 'CSV batches: upload, column mapping, row report' },
+  { name: 'Review', description: 'Curator review: queue, table, edits, approvals, audit trail' },
+  { name: 'Tomography', description: 'Runs, cells and sightlines: dust layers along each line of sight' },
+  { name: 'Sky and masks', description: 'Pages of cells and sky masks (HEALPix FITS, MOC, CSV, JSON) for modelers' },
+  { name: 'Releases', description: 'Frozen data releases for reproducible queries' },
+  { name: 'Admin', description: 'Accounts and the mail outbox' },
+  { name: 'Service', description: 'Health and this document' },
+];
+
+function buildOperation(op: Operation, need: (id: string) => void): Record<string, unknown> {
+  const ref = (id: string) => {
+    need(id);
+    return { $ref: `#/components/schemas/${componentKey(id)}` };
+  };
+  const guarded = op.who !== 'anyone';
+  const reads = op.method === 'get';
+  const errors = new Set(op.errors ?? []);
+  if (guarded) errors.add(401);
+  if (Array.isArray(op.who)) errors.add(403);
+  if (guarded && reads) errors.add(429); // per-token rate limit
+  if (guarded && !reads) errors.add(403); // a token used for a write
+  if (op.params?.length || op.body?.schema) errors.add(400);
+
+  const responses: Record<string, unknown> = {};
+  for (const [status, r] of Object.entries(op.responses)) {
+    const content: Record<string, unknown> = {};
+    if (r.schema) content['application/json'] = { schema: ref(r.schema) };
+    for (const [type, schema] of Object.entries(r.content ?? {})) content[type] = { schema };
+    responses[status] = { description: r.description, ...(Object.keys(content).length ? { content } : {}), ...(r.headers ? { headers: r.headers } : {}) };
+  }
+  for (const status of [...errors].sort((a, b) => a - b)) responses[String(status)] = { $ref: `#/components/responses/${ERROR_RESPONSES[status].key}` };
+
+  let requestBody: Record<string, unknown> | undefined;
+  if (op.body?.schema) requestBody = { required: op.body.required ?? true, content: { 'application/json': { schema: ref(op.body.schema) } } };
+  else if (op.body?.inline) requestBody = { required: op.body.required ?? true, content: { [op.body.inline.contentType]: { schema: op.body.inline.schema } } };
+
+  return {
+    tags: [op.tag],
+    summary: op.summary,
+    description: [whoText(op), op.description].filter(Boolean).join('\n\n'),
+    operationId: operationId(op),
+    'x-roles': rolesFor(op.who),
+    // open routes need nothing; reads take the cookie or a token; writes the cookie only
+    security: !guarded ? [] : reads ? [{ session: [] }, { bearerToken: [] }] : [{ session: [] }],
+    ...(op.params?.length ? { parameters: op.params.map((p) => ({ name: p.name, in: p.in, required: p.in === 'path' ? true : p.required ?? false, description: p.description, schema: p.schema })) } : {}),
+    ...(requestBody ? { requestBody } : {}),
+    responses,
+  };
+}
+
+export function buildDocument(operations: Operation[] = OPERATIONS): Record<string, unknown> {
+  const needed: string[] = [];
+  const need = (id: string) => {
+    if (!needed.includes(id)) needed.push(id);
+  };
+  need('responses/error');
+
+  const paths: Record<string, Record<string, unknown>> = {};
+  for (const op of operations) {
+    const p = openApiPath(op.path);
+    paths[p] ??= {};
+    if (paths[p][op.method]) throw new Error(`OpenAPI document: ${op.method.toUpperCase()} ${op.path} is listed twice`);
+    paths[p][op.method] = buildOperation(op, need);
+  }
+
+  const schemas: Record<string, JsonSchema> = {};
+  for (let i = 0; i < needed.length; i++) schemas[componentKey(needed[i])] = embed(needed[i], need);
+
+  const errorResponses: Record<string, unknown> = {};
+  for (const { key, description } of Object.values(ERROR_RESPONSES)) {
+    errorResponses[key] = { description, content: { 'application/json': { schema: { $ref: '#/components/schemas/responses.error' } } } };
+  }
+
+  const sortedSchemas = Object.fromEntries(Object.entries(schemas).sort(([a], [b]) => a.localeCompare(b)));
+  return {
+    openapi: '3.1.0',
+    info: { title: 'Starveil API', version: pkg.version, summary: 'Stellar polarization catalog, dust-layer tomography and sky masks', description: INFO_DESCRIPTION },
+    jsonSchemaDialect: 'https://spec.openapis.org/oas/3.1/dialect/base', // JSON Schema 2020-12 with the OpenAPI vocabulary
+    servers: [{ url: '/api/v1', description: 'this Starveil server' }],
+    tags: TAGS.filter((t) => operations.some((op) => op.tag === t.name)),
+    paths,
+    components: {
+      schemas: sortedSchemas,
+      responses: errorResponses,
+      securitySchemes: {
+        session: { type: 'apiKey', in: 'cookie', name: 'starveil.sid', description: 'The session cookie set by POST /auth/login (HTTP-only, 8 hours, renewed on use).' },
+        bearerToken: { type: 'http', scheme: 'bearer', description: 'A personal API token (POST /tokens): `Authorization: Bearer sv_…`. Acts as its owner for GET requests only; rate-limited per token.' },
+      },
+    },
+  };
+}
+
+let cached: Record<string, unknown> | undefined;
+/** The document, built once per process (schemas and registry do not change while it runs). */
+export function openApiDocument(): Record<string, unknown> {
+  cached ??= buildDocument();
+  return cached;
+}

@@ -1,0 +1,479 @@
+import { MEASUREMENT_SORTS } from '../review/service.js';
+import { coneQuery, conventionQuery, criteriaQuery, formatQuery, idPath, limitQuery, offsetQuery, orderQuery, query, runChoiceQuery } from './params.js';
+import type { Operation } from './types.js';
+
+/**
+ * Every route under /api/v1, described once. document.ts turns this list into the OpenAPI
+ * document; tests/api/openapi.test.ts checks it against the Express router (same methods and
+ * paths), against the guards (x-roles) and against live answers (response schemas).
+ */
+
+const OBS_CUR = ['observer', 'curator'] as const;
+const CUR = ['curator'] as const;
+const ADMIN = ['admin'] as const;
+const OWN_BATCHES = 'observers see their own batches only (another observer’s batch answers 404)';
+
+const BATCH_STATES = ['received', 'needs_mapping', 'checking', 'awaiting_review', 'failed', 'approved', 'returned'];
+const ROW_STATES = ['accepted', 'rejected', 'duplicate', 'conflict', 'ambiguous'];
+const STAR_SORTS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'n_measurements'];
+const csvBody = { 'text/csv': { type: 'string' } };
+
+const tagParam = { name: 'tag', in: 'path' as const, required: true, description: 'release tag (letters, digits, dot, dash, underscore)', schema: { type: 'string', pattern: '^[A-Za-z0-9][A-Za-z0-9._-]{0,59}$' } };
+
+const provenanceHeaders = {
+  'Starveil-Run': { description: 'id of the tomography run the answer came from', schema: { type: 'integer' } },
+  'Starveil-Release': { description: 'release tag, or none', schema: { type: 'string' } },
+  'Starveil-Convention': { description: 'IAU or COSMO', schema: { enum: ['IAU', 'COSMO'] } },
+};
+
+export const OPERATIONS: Operation[] = [
+  // ---- service
+  {
+    method: 'get', path: '/health', tag: 'Service', who: 'anyone',
+    summary: 'Is the API up?',
+    responses: { 200: { description: 'the API answers', schema: 'responses/health' } },
+  },
+  {
+    method: 'get', path: '/openapi.json', tag: 'Service', who: 'anyone',
+    summary: 'This OpenAPI 3.1 document',
+    description: 'Rendered for people at /api/docs.',
+    responses: { 200: { description: 'the document', schema: 'responses/openapi' } },
+  },
+
+  // ---- sign-in and account
+  {
+    method: 'post', path: '/auth/login', tag: 'Sign-in and account', who: 'anyone',
+    summary: 'Sign in and receive the session cookie',
+    description: 'Sets the `starveil.sid` cookie (HTTP-only, 8 h, renewed on use) with a new session id. Failed sign-ins are limited per address and e-mail (`LOGIN_RATE_MAX` per `LOGIN_RATE_WINDOW_MS`); the published demo password is refused in production.',
+    body: { schema: 'api/login', required: true },
+    responses: { 200: { description: 'signed in', schema: 'responses/login' } },
+    errors: [400, 401, 429],
+  },
+  {
+    method: 'post', path: '/auth/logout', tag: 'Sign-in and account', who: 'anyone',
+    summary: 'End the session',
+    responses: { 204: { description: 'the session is ended and the cookie cleared' } },
+  },
+  {
+    method: 'get', path: '/me', tag: 'Sign-in and account', who: 'signed-in',
+    summary: 'Who am I?',
+    responses: { 200: { description: 'the signed-in person', schema: 'responses/session-user' } },
+  },
+  {
+    method: 'post', path: '/me/password', tag: 'Sign-in and account', who: 'signed-in',
+    summary: 'Change your own password',
+    body: { schema: 'api/password-change', required: true },
+    responses: { 204: { description: 'changed' } },
+    errors: [400],
+  },
+  {
+    method: 'post', path: '/auth/password-reset/request', tag: 'Sign-in and account', who: 'anyone',
+    summary: 'Ask for a password-reset link by e-mail',
+    description: 'Always answers 202 with the same message, whether or not the address has an account; an enabled account gets a one-time link `PUBLIC_URL/reset-password?token=…`. Every request counts towards the sign-in limit.',
+    body: { schema: 'api/password-reset-request', required: true },
+    responses: { 202: { description: 'accepted', schema: 'responses/message' } },
+    errors: [400, 429],
+  },
+  {
+    method: 'post', path: '/auth/password-reset/confirm', tag: 'Sign-in and account', who: 'anyone',
+    summary: 'Set a new password with the e-mailed token',
+    description: 'Ends every session of the account. An unknown, expired or used token is a 400; failed attempts are limited.',
+    body: { schema: 'api/password-reset-confirm', required: true },
+    responses: { 204: { description: 'the new password is set' } },
+    errors: [400, 429],
+  },
+
+  // ---- admin
+  {
+    method: 'get', path: '/admin/users', tag: 'Admin', who: ADMIN,
+    summary: 'Every account',
+    responses: { 200: { description: 'accounts by id', schema: 'responses/accounts' } },
+  },
+  {
+    method: 'post', path: '/admin/users', tag: 'Admin', who: ADMIN,
+    summary: 'Create an account',
+    body: { schema: 'api/user-create', required: true },
+    responses: { 201: { description: 'created', schema: 'responses/account' } },
+    errors: [400, 409],
+  },
+  {
+    method: 'patch', path: '/admin/users/:id', tag: 'Admin', who: ADMIN,
+    summary: 'Change or disable an account',
+    description: 'Disabling an account ends its sessions. You cannot disable yourself or take away your own admin role (400).',
+    params: [idPath('account')],
+    body: { schema: 'api/user-update', required: true },
+    responses: { 200: { description: 'the account after the change', schema: 'responses/account' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'get', path: '/admin/outbox', tag: 'Admin', who: ADMIN,
+    summary: 'Every e-mail Starveil wrote, newest first',
+    params: [limitQuery(50, 500, 'messages'), offsetQuery('messages')],
+    responses: { 200: { description: 'one page of the outbox', schema: 'responses/outbox' } },
+    errors: [400],
+  },
+
+  // ---- catalog
+  {
+    method: 'get', path: '/overview', tag: 'Catalog', who: 'signed-in',
+    summary: 'Survey name, star and instrument counts',
+    responses: { 200: { description: 'the overview', schema: 'responses/overview' } },
+  },
+  {
+    method: 'get', path: '/instruments', tag: 'Catalog', who: 'signed-in',
+    summary: 'Registered instruments with their bands',
+    responses: { 200: { description: 'instruments by code', schema: 'responses/instruments' } },
+  },
+  {
+    method: 'get', path: '/stars', tag: 'Catalog', who: 'signed-in',
+    summary: 'Catalog stars: search by name or source id, or a cone search',
+    description: 'A cone search needs ra, dec and radius together (degrees, ICRS) and answers nearest first with `separation_deg`. Stars known only from batches you may not see are hidden.',
+    params: [
+      query('q', 'text: part of a star name, or an exact source_id', { type: 'string' }),
+      ...coneQuery(30, '; with the other two'),
+      query('sort', 'column to sort by (default id; a cone search without sort is nearest first)', { enum: STAR_SORTS, default: 'id' }),
+      orderQuery('asc'),
+      limitQuery(50, 1000, 'stars'),
+      offsetQuery('stars'),
+    ],
+    responses: { 200: { description: 'one page of stars', schema: 'responses/stars' } },
+    errors: [400],
+  },
+  {
+    method: 'get', path: '/stars/:id', tag: 'Catalog', who: 'signed-in',
+    summary: 'A star, every measurement you may see, and combined values',
+    description: 'Combined per band and instrument from approved measurements: inverse-variance weighted q, u with the χ² consistency flag. A star none of whose measurements you may see answers 404 (curators and admins see every star).',
+    params: [idPath('star')],
+    responses: { 200: { description: 'the star', schema: 'responses/star-detail' } },
+    errors: [400, 404],
+  },
+
+  // ---- intake
+  {
+    method: 'post', path: '/batches', tag: 'Intake', who: OBS_CUR,
+    summary: 'Upload a CSV batch',
+    description: 'Multipart form. Identical bytes again answer 200 with the existing batch (idempotent re-upload). Small files are checked before the answer; larger ones continue in the background (poll GET /batches/{id}). A batch whose headers are ambiguous or incomplete waits in `needs_mapping`.',
+    body: {
+      required: true,
+      inline: {
+        contentType: 'multipart/form-data',
+        schema: {
+          type: 'object',
+          required: ['file'],
+          properties: {
+            file: { type: 'string', contentMediaType: 'text/csv', description: 'the CSV, header line first (columns: GET /intake/columns)' },
+            instrument: { type: 'string', description: 'registered instrument code, for rows without an instrument column' },
+            mapping: { type: 'string', description: 'JSON object canonical column → header of the file, e.g. {"ra_deg":"RAJ2000"}' },
+          },
+        },
+      },
+    },
+    responses: {
+      201: { description: 'a new batch', schema: 'responses/batch' },
+      200: { description: 'these bytes were uploaded before: the existing batch', schema: 'responses/batch' },
+    },
+    errors: [400, 404, 413, 415],
+  },
+  {
+    method: 'get', path: '/batches', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'Batches, newest first',
+    params: [query('state', 'only batches in this state', { enum: BATCH_STATES }), limitQuery(100, 500, 'batches'), offsetQuery('batches')],
+    responses: { 200: { description: 'one page of batches', schema: 'responses/batches' } },
+    errors: [400],
+  },
+  {
+    method: 'get', path: '/batches/:id', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'One batch: state, counts, progress, mapping',
+    params: [idPath('batch')],
+    responses: { 200: { description: 'the batch', schema: 'responses/batch' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'post', path: '/batches/:id/mapping', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'Confirm the column mapping; checking starts',
+    description: 'Only while the batch is `needs_mapping` (else 409). Every header must exist in the file and the required columns must be covered (else 400, naming each).',
+    params: [idPath('batch')],
+    body: { schema: 'api/batch-mapping', required: true },
+    responses: { 200: { description: 'the batch, checking or checked', schema: 'responses/batch' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'get', path: '/batches/:id/rows', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'Every row of a batch with errors, warnings and derived values',
+    params: [idPath('batch'), query('state', 'only rows in this state', { enum: ROW_STATES }), limitQuery(100, 5000, 'rows'), offsetQuery('rows')],
+    responses: { 200: { description: 'one page of rows, by line', schema: 'responses/batch-rows' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'get', path: '/batches/:id/errors.csv', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'Error report: one line per problem',
+    description: 'CSV with the header `line,state,column,field,value,message`.',
+    params: [idPath('batch')],
+    responses: { 200: { description: 'the error report', content: csvBody } },
+    errors: [400, 404],
+  },
+  {
+    method: 'get', path: '/batches/:id/raw', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'The file exactly as received',
+    params: [idPath('batch')],
+    responses: { 200: { description: 'the raw upload', content: csvBody } },
+    errors: [400, 404],
+  },
+  {
+    method: 'get', path: '/intake/columns', tag: 'Intake', who: 'signed-in',
+    summary: 'The upload column contract: units, rules, synonyms',
+    responses: { 200: { description: 'every canonical column and the conventions', schema: 'responses/intake-columns' } },
+  },
+  {
+    method: 'get', path: '/intake/template.csv', tag: 'Intake', who: 'signed-in',
+    summary: 'A template CSV with every column and one example row',
+    responses: { 200: { description: 'the template', content: csvBody } },
+  },
+
+  // ---- review
+  {
+    method: 'get', path: '/review/queue', tag: 'Review', who: CUR,
+    summary: 'Batches awaiting review (or in another state)',
+    params: [
+      query('state', 'batches in this state (default awaiting_review)', { enum: ['awaiting_review', 'approved', 'returned', 'needs_mapping', 'checking', 'failed'], default: 'awaiting_review' }),
+      query('sort', 'age, rows or uploader (default age; another value also sorts by age)', { enum: ['age', 'rows', 'uploader'], default: 'age' }),
+      orderQuery('desc', '; any value but asc is desc'),
+    ],
+    responses: { 200: { description: 'the queue', schema: 'responses/review-queue' } },
+    errors: [400],
+  },
+  {
+    method: 'get', path: '/batches/:id/measurements', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'The review table of a batch, paged, sorted and filtered on the server',
+    params: [
+      idPath('batch'),
+      limitQuery(500, 5000, 'measurements'),
+      offsetQuery('measurements'),
+      query('sort', 'column to sort by (default line)', { enum: [...MEASUREMENT_SORTS], default: 'line' }),
+      orderQuery('asc', '; any value but desc is asc'),
+      query('filter.state', 'only measurements in this state', { enum: ['pending', 'conflict', 'ambiguous', 'approved', 'rejected'] }),
+      query('filter.band', 'only this band', { enum: ['U', 'B', 'V', 'R', 'I'] }),
+      query('filter.instrument', 'only this instrument code', { type: 'string' }),
+      query('filter.distance_method', 'only this distance method', { enum: ['inverse_parallax', 'edsd_mode', 'given'] }),
+      query('search', 'text: part of the star name, or an exact source_id', { type: 'string' }),
+    ],
+    responses: { 200: { description: 'one page of the table', schema: 'responses/batch-measurements' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'patch', path: '/measurements/:id', tag: 'Review', who: CUR,
+    summary: 'Edit a measurement',
+    description: 'The merged row is validated with the upload schema (schemas/measurement-row.json) and re-derived; the edit is audited. A stale `version` answers 409 with `details.current`, the row as it is now.',
+    params: [idPath('measurement')],
+    body: { schema: 'api/measurement-patch', required: true },
+    responses: { 200: { description: 'the measurement after the edit', schema: 'responses/measurement-edit' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'get', path: '/measurements/:id/history', tag: 'Review', who: OBS_CUR, whoNote: 'observers see the history of their own batches’ measurements only',
+    summary: 'Audit trail of a measurement: who, when, before, after, reason',
+    params: [idPath('measurement')],
+    responses: { 200: { description: 'the trail, oldest first', schema: 'responses/measurement-history' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'post', path: '/measurements/approve', tag: 'Review', who: CUR,
+    summary: 'Approve selected measurements',
+    description: 'A held measurement (conflict or ambiguous) answers 409 with `details.ids`; an unknown id 404. Nothing changes on an error.',
+    body: { schema: 'api/measurement-ids', required: true },
+    responses: { 200: { description: 'done', schema: 'responses/measurement-state-change' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'post', path: '/measurements/reject', tag: 'Review', who: CUR,
+    summary: 'Reject selected measurements',
+    body: { schema: 'api/measurement-ids', required: true },
+    responses: { 200: { description: 'done', schema: 'responses/measurement-state-change' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'post', path: '/measurements/:id/resolve', tag: 'Review', who: CUR,
+    summary: 'Settle a conflict or an ambiguous match',
+    description: '`{keep: "this"|"other"}` settles a conflict (the other measurement is rejected); `{starId}` or `{newStar: true, name?}` attaches an ambiguous match. The wrong kind of measurement answers 409.',
+    params: [idPath('measurement')],
+    body: { schema: 'api/measurement-resolve', required: true },
+    responses: { 200: { description: 'settled', schema: 'responses/measurement-resolve' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'post', path: '/audit/:id/revert', tag: 'Review', who: CUR,
+    summary: 'Undo one recorded edit (itself audited as a revert)',
+    params: [idPath('audit entry')],
+    body: { required: false, inline: { contentType: 'application/json', schema: { type: 'object', properties: { reason: { type: 'string', description: 'why (default "revert of change N")' } } } } },
+    responses: { 200: { description: 'the measurement after the revert', schema: 'responses/measurement-edit' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'post', path: '/batches/:id/approve', tag: 'Review', who: CUR,
+    summary: 'Approve every pending measurement of a batch',
+    description: 'Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409). The uploader is told by e-mail.',
+    params: [idPath('batch')],
+    body: { schema: 'api/batch-decision', required: false },
+    responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'post', path: '/batches/:id/reject', tag: 'Review', who: CUR,
+    summary: 'Return a batch: every pending measurement is rejected',
+    params: [idPath('batch')],
+    body: { schema: 'api/batch-decision', required: false },
+    responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
+    errors: [400, 404, 409],
+  },
+
+  // ---- tomography
+  {
+    method: 'post', path: '/tomography/runs', tag: 'Tomography', who: CUR,
+    summary: 'Start a tomography run',
+    description: 'Queued, then fitted on worker threads off the request path; poll GET /tomography/runs/{id}. Parameters left out take their defaults.',
+    body: { schema: 'api/tomography-run', required: false },
+    responses: { 202: { description: 'queued', schema: 'responses/tomography-run' } },
+    errors: [400],
+  },
+  {
+    method: 'get', path: '/tomography/runs', tag: 'Tomography', who: 'signed-in',
+    summary: 'Runs, newest first (at most 100)',
+    responses: { 200: { description: 'the runs', schema: 'responses/tomography-runs' } },
+  },
+  {
+    method: 'get', path: '/tomography/runs/:id', tag: 'Tomography', who: 'signed-in',
+    summary: 'One run: state, progress, parameters, fingerprint',
+    params: [idPath('run')],
+    responses: { 200: { description: 'the run', schema: 'responses/tomography-run' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'post', path: '/tomography/runs/:id/cancel', tag: 'Tomography', who: CUR,
+    summary: 'Stop a queued or running run; nothing of it is stored',
+    params: [idPath('run')],
+    responses: { 200: { description: 'the run, cancelled (or stopping)', schema: 'responses/tomography-run' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'get', path: '/tomography/runs/:id/cells', tag: 'Tomography', who: 'signed-in',
+    summary: 'Every cell of a finished run, compact (for a sky map)',
+    description: 'A run that is not finished answers 409.',
+    params: [idPath('run')],
+    responses: { 200: { description: 'the cells', schema: 'responses/tomography-cells' } },
+    errors: [404, 409],
+  },
+  {
+    method: 'get', path: '/sightlines', tag: 'Tomography', who: 'signed-in',
+    summary: 'Dust layers per cell: by pixel or in a cone',
+    description: 'Give either `nside` and `ipix` (nested, in the run’s coordinate system) or `ra`, `dec` and `radius` (ICRS). Per cell: star count, number of layers and its support, layers (distance, Stokes, angle), jumps between successive layers and the run it came from; criteria parameters keep only the cells that meet them. Starlight polarization is parallel to the plane-of-sky magnetic field; dust emission is polarized perpendicular to it, so add 90° to a layer angle before comparing it with an emission map.',
+    params: [
+      query('nside', 'HEALPix NSIDE; must be the run’s NSIDE (with ipix)', { type: 'integer', enum: [16, 32, 64, 128, 256] }),
+      query('ipix', 'HEALPix pixel index, nested ordering, 0 to 12·nside² − 1 (with nside)', { type: 'integer', minimum: 0 }),
+      ...coneQuery(30, '; instead of nside and ipix'),
+      ...runChoiceQuery,
+      query('include', 'stars: also the stars of each cell as the run used them (first 50 cells)', { enum: ['stars'] }),
+      ...criteriaQuery(0),
+      conventionQuery,
+      formatQuery(['json', 'csv'], 'json (default) or csv: one row per layer with a units header'),
+    ],
+    responses: { 200: { description: 'the cells', schema: 'responses/sightlines', content: { 'text/csv': { type: 'string', description: 'format=csv: one row per layer' } }, headers: provenanceHeaders } },
+    errors: [400, 404, 409],
+  },
+
+  // ---- releases
+  {
+    method: 'post', path: '/releases', tag: 'Releases', who: CUR,
+    summary: 'Freeze a release: a run and copies of the approved catalog',
+    description: 'A release never changes afterwards; a tag in use answers 409, as does a run that is not finished.',
+    body: { schema: 'api/release-create', required: true },
+    responses: { 201: { description: 'frozen', schema: 'responses/release' } },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'get', path: '/releases', tag: 'Releases', who: 'signed-in',
+    summary: 'Releases, newest first',
+    responses: { 200: { description: 'the releases', schema: 'responses/releases' } },
+  },
+  {
+    method: 'get', path: '/releases/:tag', tag: 'Releases', who: 'signed-in',
+    summary: 'One release with its counts',
+    params: [tagParam],
+    responses: { 200: { description: 'the release', schema: 'responses/release' } },
+    errors: [404],
+  },
+
+  // ---- tokens
+  {
+    method: 'post', path: '/tokens', tag: 'Tokens', who: 'signed-in',
+    summary: 'Create a personal API token (its secret is shown once)',
+    description: 'Needs the session cookie: a token cannot make tokens. At most 25 active tokens per person (409).',
+    body: { schema: 'api/token-create', required: true },
+    responses: { 201: { description: 'created; keep the secret now', schema: 'responses/token-created' } },
+    errors: [400, 409],
+  },
+  {
+    method: 'get', path: '/tokens', tag: 'Tokens', who: 'signed-in', whoNote: 'each person sees their own tokens',
+    summary: 'Your tokens, newest first (without secrets)',
+    responses: { 200: { description: 'your tokens', schema: 'responses/tokens' } },
+  },
+  {
+    method: 'delete', path: '/tokens/:id', tag: 'Tokens', who: 'signed-in', whoNote: 'your own tokens only (another person’s answers 404)',
+    summary: 'Revoke one of your tokens (again: no change)',
+    params: [idPath('token')],
+    responses: { 204: { description: 'revoked' } },
+    errors: [400, 404],
+  },
+
+  // ---- sky and masks
+  {
+    method: 'get', path: '/sky', tag: 'Sky and masks', who: 'signed-in',
+    summary: 'Every cell of a run in pixel order, page by page, with layers and jumps',
+    description: 'Pages follow the HEALPix nested pixel order of the run: pass the answer’s `next` (also in the Starveil-Next-Cursor header) as `cursor` until it is null. Criteria keep only the cells that meet them.',
+    params: [
+      limitQuery(1000, 5000, 'cells'),
+      query('cursor', 'the `next` value of the previous page, unchanged (a nested pixel index of this run); absent for the first page', { type: 'string', pattern: '^[0-9]{1,16}$' }),
+      ...runChoiceQuery,
+      ...criteriaQuery(0),
+      conventionQuery,
+      formatQuery(['json', 'csv'], 'json (default) or csv: one row per layer with a units header'),
+    ],
+    responses: {
+      200: {
+        description: 'one page of cells',
+        schema: 'responses/sky',
+        content: { 'text/csv': { type: 'string' } },
+        headers: { ...provenanceHeaders, 'Starveil-Next-Cursor': { description: 'cursor of the next page; absent on the last page', schema: { type: 'string' } } },
+      },
+    },
+    errors: [400, 404, 409],
+  },
+  {
+    method: 'get', path: '/masks', tag: 'Sky and masks', who: 'signed-in',
+    summary: 'Sky mask of the cells that meet every criterion (by default: more than one cloud)',
+    description: 'Where two clouds with differently oriented fields overlap, a single-layer dust model fails; the mask flags those sightlines. Formats: fits (default) — a full-sky HEALPix map in the run’s frame, nested ordering, readable by the standard HEALPix libraries (columns MASK, MAX_JUMP in deg, N_LAYERS); moc-json and moc-ascii — an IVOA MOC of the flagged cells, always ICRS; csv — the flagged pixels with a units header; json — a summary with every cell.',
+    params: [
+      formatQuery(['fits', 'moc-json', 'moc-ascii', 'csv', 'json'], 'fits (default), moc-json, moc-ascii, csv or json'),
+      query('nside', 'HEALPix NSIDE of the mask: a power of two from the run’s NSIDE up to 512 (default the run’s)', { type: 'integer', minimum: 1, maximum: 512 }),
+      ...runChoiceQuery,
+      ...criteriaQuery(2),
+      conventionQuery,
+    ],
+    responses: {
+      200: {
+        description: 'the mask in the format asked for',
+        schema: 'responses/masks',
+        content: {
+          'image/fits': { type: 'string', contentMediaType: 'image/fits', description: 'binary table HEALPix map (format=fits)' },
+          'text/plain': { type: 'string', description: 'MOC in the IVOA ASCII serialisation (format=moc-ascii)' },
+          'text/csv': { type: 'string', description: 'flagged pixels (format=csv)' },
+        },
+        headers: {
+          ...provenanceHeaders,
+          'Starveil-Flagged-Cells': { description: 'count of cells meeting every criterion', schema: { type: 'integer' } },
+          'Starveil-Moc-Order': { description: 'HEALPix order of the MOC (moc formats)', schema: { type: 'integer' } },
+        },
+      },
+    },
+    errors: [400, 404, 409],
+  },
+];

@@ -1,0 +1,18 @@
+import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
+import { api } from '../../../lib/apiClient';
+import type { Star, StarListParams } from '../types';
+
+export function getStars(p: StarListParams) {
+  const qs = new URLSearchParams({ sort: p.sort, order: p.order, limit: String(p.limit), offset: String(p.offset) });
+  if (p.q) qs.set('q', p.q);
+  if (p.cone) {
+    qs.set('ra', p.cone.ra);
+    qs.set('dec', p.cone.dec);
+    qs.set('radius', p.cone.radius);
+  }
+  return api.get<{ stars: Star[]; total: number }>(`/stars?${qs}`);
+}
+
+export const starsQueryOptions = (p: StarListParams) => queryOptions({ queryKey: ['catalog', 'stars', p], queryFn: () => getStars(p), placeholderData: keepPreviousData });
+
+export const useStars = (p: StarListParams) => useQuery(starsQueryOptions(p));

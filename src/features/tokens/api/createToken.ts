@@ -1,0 +1,13 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { api } from '../../../lib/apiClient';
+import type { ApiToken } from './tokens';
+
+/** The answer to a creation: the only time the secret is shown. */
+export type CreatedToken = Pick<ApiToken, 'id' | 'name' | 'createdAt'> & { token: string };
+
+export const createToken = (input: { name: string }) => api.post<CreatedToken>('/tokens', input);
+
+export function useCreateToken() {
+  const qc = useQueryClient();
+  return useMutation({ mutationFn: createToken, onSuccess: () => qc.invalidateQueries({ queryKey: ['tokens'] }) });
+}
