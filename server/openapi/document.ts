@@ -115,6 +115,15 @@ const TAGS: { name: string; description: string }[] = [
   { name: 'Service', description: 'Health and this document' },
 ];
 
+/** A parameter's enum with its type spelled out, so renderers show "string" rather than "any". */
+function typedEnum(schema: JsonSchema): JsonSchema {
+  const values = schema.enum as unknown[] | undefined;
+  if (!values || 'type' in schema) return schema;
+  if (values.every((v) => typeof v === 'string')) return { type: 'string', ...schema };
+  if (values.every((v) => Number.isInteger(v))) return { type: 'integer', ...schema };
+  return schema;
+}
+
 function buildOperation(op: Operation, need: (id: string) => void): Record<string, unknown> {
   const ref = (id: string) => {
     need(id);
@@ -150,7 +159,7 @@ function buildOperation(op: Operation, need: (id: string) => void): Record<strin
     'x-roles': rolesFor(op.who),
     // open routes need nothing; reads take the cookie or a token; writes the cookie only
     security: !guarded ? [] : reads ? [{ session: [] }, { bearerToken: [] }] : [{ session: [] }],
-    ...(op.params?.length ? { parameters: op.params.map((p) => ({ name: p.name, in: p.in, required: p.in === 'path' ? true : p.required ?? false, description: p.description, schema: p.schema })) } : {}),
+    ...(op.params?.length ? { parameters: op.params.map((p) => ({ name: p.name, in: p.in, required: p.in === 'path' ? true : p.required ?? false, description: p.description, schema: typedEnum(p.schema) })) } : {}),
     ...(requestBody ? { requestBody } : {}),
     responses,
   };

@@ -357,7 +357,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'get', path: '/tomography/runs/:id/cells', tag: 'Tomography', who: 'signed-in',
     summary: 'Every cell of a finished run, compact (for a sky map)',
-    description: 'A run that is not finished answers 409.',
+    description: 'A run that is not finished answers 409. (Today an id that is not a positive integer, e.g. `abc` or `0`, answers with the latest finished run instead of a 400.)',
     params: [idPath('run')],
     responses: { 200: { description: 'the cells', schema: 'responses/tomography-cells' } },
     errors: [404, 409],

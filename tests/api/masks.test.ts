@@ -234,6 +234,11 @@ describe('conventions', () => {
       expect(b.jumps[i].deltaThetaDeg).toBeCloseTo(j.deltaThetaDeg === 90 ? 90 : -j.deltaThetaDeg, 12);
       expect(b.jumps[i].significance).toBe(j.significance);
     });
+    expect(a.segments.length).toBeGreaterThan(1);
+    a.segments.forEach((seg: { meanQ: number; meanU: number }, i: number) => {
+      expect(b.segments[i].meanU).toBe(-seg.meanU);
+      expect(b.segments[i].meanQ).toBe(seg.meanQ);
+    });
     a.stars.forEach((s: { u: number; q: number }, i: number) => {
       expect(b.stars[i].u).toBe(-s.u);
       expect(b.stars[i].q).toBe(s.q);

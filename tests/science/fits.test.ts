@@ -40,6 +40,7 @@ describe('header cards (FITS Standard 4.0 §4)', () => {
   });
 
   it('writes reals with a decimal point or an E exponent (HEALPix UNSEEN = -1.6375E+30)', () => {
+    // UNSEEN −1.6375e30: the HEALPix convention (healpy 1.16 healpy.UNSEEN; compared live in tests/api/masks.test.ts)
     expect(formatReal(0)).toBe('0.0');
     expect(formatReal(30)).toBe('30.0');
     expect(formatReal(2.5)).toBe('2.5');
@@ -97,7 +98,7 @@ describe('HDUs', () => {
     expect(head.find((c) => c.startsWith('TNULL2'))!.slice(10, 30).trim()).toBe('-1');
     const data = hdu.subarray(FITS_BLOCK);
     expect(hdu.length).toBe(2 * FITS_BLOCK);
-    // row 0: 01 | FF FF | 3F 80 00 00 (IEEE 754 1.0);  row 1: FF | 00 02 | C0 00 00 00 (−2.0)
+    // big-endian as FITS Standard 4.0 §7.3 requires; row 0: 01 | FF FF | 3F 80 00 00 (IEEE 754 1.0);  row 1: FF | 00 02 | C0 00 00 00 (−2.0)
     expect([...data.subarray(0, 14)]).toEqual([0x01, 0xff, 0xff, 0x3f, 0x80, 0x00, 0x00, 0xff, 0x00, 0x02, 0xc0, 0x00, 0x00, 0x00]);
     expect([...data.subarray(14)].every((b) => b === 0)).toBe(true);
   });

@@ -42,16 +42,22 @@ export function OperationList({ doc }: { doc: OpenApiDocument }) {
         <section key={g.tag}>
           <h3 className="text-sm font-semibold text-night">{g.tag}</h3>
           {g.description && <p className="text-xs text-muted">{g.description}</p>}
-          <table className="mt-2 w-full text-sm">
+          <table className="mt-2 w-full table-fixed text-sm">
+            <colgroup>
+              <col className="w-20" />
+              <col className="w-[38%]" />
+              <col />
+              <col className="w-36" />
+            </colgroup>
             <tbody>
               {g.rows.map((r) => (
                 <tr key={`${r.method} ${r.path}`} className="border-t border-line align-top">
-                  <td className="w-16 py-1.5 pr-2">
+                  <td className="py-1.5 pr-2">
                     <span className={`inline-block rounded px-1.5 py-0.5 font-mono text-xs uppercase ${METHOD_TONE[r.method]}`}>{r.method}</span>
                   </td>
-                  <td className="py-1.5 pr-4 font-mono text-xs text-ink">/api/v1{r.path}</td>
+                  <td className="py-1.5 pr-4 font-mono text-xs break-all text-ink">/api/v1{r.path}</td>
                   <td className="py-1.5 pr-4 text-ink">{r.summary}</td>
-                  <td className="py-1.5 text-right text-xs whitespace-nowrap text-muted">{rolesText(r.roles)}</td>
+                  <td className="py-1.5 text-right text-xs text-muted">{rolesText(r.roles)}</td>
                 </tr>
               ))}
             </tbody>

@@ -20,6 +20,8 @@ export const batchMeasurementsQueryOptions = (batchId: number, p: MeasurementLis
     queryKey: [...batchMeasurementsKey(batchId), 'list', p],
     queryFn: ({ pageParam }) => getBatchMeasurements(batchId, { ...p, offset: pageParam, limit: MEASUREMENTS_PAGE }),
     initialPageParam: 0,
+    // a page is only ever appended or patched row by row: comparing 100,000 rows deeply on each page is wasted work
+    structuralSharing: false,
     getNextPageParam: (last, pages) => {
       const loaded = pages.reduce((n, pg) => n + pg.rows.length, 0);
       return loaded < last.total && last.rows.length > 0 ? loaded : undefined;

@@ -1,7 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
-import { flexRender, getCoreRowModel, useReactTable, type RowSelectionState, type SortingState, type VisibilityState } from '@tanstack/react-table';
+import { flexRender, getCoreRowModel, useReactTable, type Row, type RowSelectionState, type SortingState, type VisibilityState } from '@tanstack/react-table';
 import { useVirtualizer } from '@tanstack/react-virtual';
-import { useCallback, useEffect, useMemo, useRef, useState, type KeyboardEvent, type MouseEvent } from 'react';
+import { memo, useCallback, useEffect, useMemo, useRef, useState, type KeyboardEvent, type MouseEvent } from 'react';
 import { Notice } from '../../../components/ui/primitives';
 import { formatCount } from '../../intake/format';
 import { patchCachedRow, rowPatchFromStored } from '../api/cache';
@@ -378,6 +378,10 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
     dropProblem(key);
   };
 
+  // the rows are memoised; they reach the grid's current handlers through this ref
+  const handlers = useRef<RowHandlers>(null!);
+  handlers.current = { onCellClick, commit, cancelEdit, dropProblem, reloadRow };
+
   const historyRow = historyId !== null ? data.find((r) => r.id === historyId) ?? null : null;
   const selectedIds = Object.keys(rowSelection).map(Number);
   const problemList = Object.entries(problems);
@@ -488,76 +492,33 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
               const top = vi.start - HEADER_H;
               if (!row) {
                 return (
-                  <div role="row" key={vi.key} data-index={vi.index} ref={virtualizer.measureElement} aria-rowindex={vi.index + 2} className="absolute left-0 flex w-full items-center border-b border-line/50 px-3 text-xs text-muted" style={{ transform: `translateY(${top}px)`, height: ROW_H }}>
+                  <div role="row" key={vi.key} data-index={vi.index} aria-rowindex={vi.index + 2} className="absolute left-0 flex w-full items-center border-b border-line/50 px-3 text-xs text-muted" style={{ transform: `translateY(${top}px)`, height: ROW_H }}>
                     <span role="gridcell" className="animate-pulse">loading row {formatCount(vi.index + 1)}…</span>
                   </div>
                 );
               }
-              const m = row.original;
-              const selected = row.getIsSelected();
-              const rowHasPopover = problemList.some(([k]) => k.startsWith(`${m.id}:`) && (k === latestProblem || (vi.index === active.row && k === problemKey(m.id, active.col))));
+              const isActiveRow = vi.index === active.row;
               return (
-                <div
-                  role="row"
+                <GridRow
                   key={row.id}
-                  data-index={vi.index}
-                  data-line={m.line}
-                  data-id={m.id}
-                  data-state={m.state}
-                  ref={virtualizer.measureElement}
-                  aria-rowindex={vi.index + 2}
-                  aria-selected={readOnly ? undefined : selected}
-                  className={`absolute left-0 grid border-b border-line/50 text-[13px] ${rowHasPopover ? 'z-10' : ''} ${selected ? 'bg-amber/10' : m.state === 'conflict' ? 'bg-warn/[0.04]' : m.state === 'ambiguous' ? 'bg-amber/[0.06]' : vi.index % 2 ? 'bg-paper/50' : 'bg-card'}`}
-                  style={{ gridTemplateColumns: template, width, transform: `translateY(${top}px)` }}
-                >
-                  {row.getVisibleCells().map((cell) => {
-                    const colId = cell.column.id;
-                    const info = COLUMN_INFO[colId];
-                    const isActive = vi.index === active.row && colId === active.col;
-                    const isEditing = !!editing && editing.row === vi.index && editing.col === colId;
-                    const spec = info?.field;
-                    const key = problemKey(m.id, colId);
-                    const problem = problems[key];
-                    const isSaving = !!saving[key];
-                    const notes = spec ? cellNotes(m, spec.key) : [];
-                    const state = problem ? (problem.kind === 'stale' ? 'stale' : 'refused') : isSaving ? 'saving' : notes.length ? 'warning' : 'ok';
-                    return (
-                      <div
-                        role="gridcell"
-                        key={cell.id}
-                        id={cellId(batchId, vi.index, colId)}
-                        aria-selected={info?.navigable ? isActive : undefined}
-                        aria-readonly={spec ? !spec.editable || readOnly : undefined}
-                        aria-invalid={problem ? true : undefined}
-                        data-col={colId}
-                        data-cell-state={state}
-                        title={spec ? cellTitle(spec.key, m, notes) : undefined}
-                        onClick={() => onCellClick({ row: vi.index, col: colId })}
-                        style={{ scrollMarginTop: HEADER_H }}
-                        className={`relative flex min-w-0 items-center px-2 py-1 ${info?.align === 'right' ? 'justify-end text-right' : ''} ${
-                          isEditing ? 'p-0' : ''
-                        } ${problem ? 'bg-bad/10 ring-2 ring-inset ring-bad' : isActive ? 'bg-veil-soft/70 ring-2 ring-inset ring-veil' : ''} ${isSaving ? 'italic text-muted' : ''} ${spec?.editable && !readOnly ? 'cursor-cell' : ''}`}
-                      >
-                        {isEditing && spec ? (
-                          <CellEditor
-                            initial={editing.text}
-                            selectAll={editing.selectAll}
-                            label={`${spec.header}, line ${m.line}`}
-                            numeric={spec.kind === 'number'}
-                            onCommit={commit}
-                            onCancel={cancelEdit}
-                          />
-                        ) : (
-                          flexRender(cell.column.columnDef.cell, cell.getContext())
-                        )}
-                        {!isEditing && notes.length > 0 && !problem && <span aria-hidden data-testid="cell-note" className="pointer-events-none absolute right-0 top-0 h-0 w-0 border-l-[7px] border-t-[7px] border-l-transparent border-t-amber" />}
-                        {problem && !isEditing && (key === latestProblem || isActive) && (
-                          <ProblemPopover problem={problem} alignRight={info?.align === 'right'} onDismiss={() => dropProblem(key)} onReload={() => reloadRow(problem, key)} />
-                        )}
-                      </div>
-                    );
-                  })}
-                </div>
+                  index={vi.index}
+                  top={top}
+                  m={row.original}
+                  tableRow={row}
+                  selected={row.getIsSelected()}
+                  activeCol={isActiveRow ? active.col : null}
+                  editing={editing && editing.row === vi.index ? editing : null}
+                  problems={problems}
+                  latestProblem={latestProblem}
+                  saving={saving}
+                  template={template}
+                  width={width}
+                  columns={columns}
+                  readOnly={readOnly}
+                  batchId={batchId}
+                  measure={virtualizer.measureElement}
+                  handlers={handlers}
+                />
               );
             })}
           </div>
@@ -613,6 +574,110 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
 }
 
 const cellId = (batchId: number, row: number, col: string) => `b${batchId}-r${row}-${col}`;
+
+interface RowHandlers {
+  onCellClick: (cell: Cell) => void;
+  commit: (text: string, dRow: number, dCol: number, refocus?: boolean) => void;
+  cancelEdit: () => void;
+  dropProblem: (key: string) => void;
+  reloadRow: (p: Problem, key: string) => void;
+}
+
+interface GridRowProps {
+  index: number;
+  top: number;
+  m: ReviewRow;
+  /** TanStack's row for the cells; rebuilt whenever the rows in view change, so not compared */
+  tableRow: Row<ReviewRow>;
+  selected: boolean;
+  /** the active column, when the active cell is in this row */
+  activeCol: string | null;
+  editing: (Cell & { text: string; selectAll: boolean }) | null;
+  problems: Record<string, Problem>;
+  latestProblem: string | null;
+  saving: Record<string, true>;
+  template: string;
+  width: number;
+  /** the column definitions (their identity changes when a cell renderer's inputs do) */
+  columns: unknown;
+  readOnly: boolean;
+  batchId: number;
+  measure: (el: Element | null) => void;
+  /** not compared: always the grid's current handlers */
+  handlers: { current: RowHandlers };
+}
+
+/** Re-render a row only when something it shows changed: scrolling then costs only the rows that come into view. */
+const sameRow = (a: GridRowProps, b: GridRowProps) =>
+  (Object.keys(a) as (keyof GridRowProps)[]).every((k) => k === 'tableRow' || k === 'handlers' || a[k] === b[k]);
+
+const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activeCol, editing, problems, latestProblem, saving, template, width, readOnly, batchId, measure, handlers }: GridRowProps) {
+  const rowHasPopover = Object.keys(problems).some((k) => k.startsWith(`${m.id}:`) && (k === latestProblem || k === problemKey(m.id, activeCol ?? '')));
+  const fixedHeight = estimateRow(m) === ROW_H;
+  return (
+    <div
+      role="row"
+      data-index={index}
+      data-line={m.line}
+      data-id={m.id}
+      data-state={m.state}
+      // ordinary rows are exactly ROW_H tall; only rows whose content varies are measured (measuring forces a layout)
+      ref={fixedHeight ? undefined : measure}
+      aria-rowindex={index + 2}
+      aria-selected={readOnly ? undefined : selected}
+      className={`absolute left-0 grid border-b border-line/50 text-[13px] ${rowHasPopover ? 'z-10' : ''} ${selected ? 'bg-amber/10' : m.state === 'conflict' ? 'bg-warn/[0.04]' : m.state === 'ambiguous' ? 'bg-amber/[0.06]' : index % 2 ? 'bg-paper/50' : 'bg-card'}`}
+      style={{ gridTemplateColumns: template, width, transform: `translateY(${top}px)`, height: fixedHeight ? ROW_H : undefined }}
+    >
+      {tableRow.getVisibleCells().map((cell) => {
+        const colId = cell.column.id;
+        const info = COLUMN_INFO[colId];
+        const isActive = colId === activeCol;
+        const isEditing = !!editing && editing.col === colId;
+        const spec = info?.field;
+        const key = problemKey(m.id, colId);
+        const problem = problems[key];
+        const isSaving = !!saving[key];
+        const notes = spec ? cellNotes(m, spec.key) : [];
+        const state = problem ? (problem.kind === 'stale' ? 'stale' : 'refused') : isSaving ? 'saving' : notes.length ? 'warning' : 'ok';
+        return (
+          <div
+            role="gridcell"
+            key={cell.id}
+            id={cellId(batchId, index, colId)}
+            aria-selected={info?.navigable ? isActive : undefined}
+            aria-readonly={spec ? !spec.editable || readOnly : undefined}
+            aria-invalid={problem ? true : undefined}
+            data-col={colId}
+            data-cell-state={state}
+            title={spec ? cellTitle(spec.key, m, notes) : undefined}
+            onClick={() => handlers.current.onCellClick({ row: index, col: colId })}
+            style={{ scrollMarginTop: HEADER_H }}
+            className={`relative flex min-w-0 items-center px-2 py-1 ${info?.align === 'right' ? 'justify-end text-right' : ''} ${isEditing ? 'p-0' : ''} ${
+              problem ? 'bg-bad/10 ring-2 ring-inset ring-bad' : isActive ? 'bg-veil-soft/70 ring-2 ring-inset ring-veil' : ''
+            } ${isSaving ? 'italic text-muted' : ''} ${spec?.editable && !readOnly ? 'cursor-cell' : ''}`}
+          >
+            {isEditing && spec ? (
+              <CellEditor
+                initial={editing.text}
+                selectAll={editing.selectAll}
+                label={`${spec.header}, line ${m.line}`}
+                numeric={spec.kind === 'number'}
+                onCommit={(...a) => handlers.current.commit(...a)}
+                onCancel={() => handlers.current.cancelEdit()}
+              />
+            ) : (
+              flexRender(cell.column.columnDef.cell, cell.getContext())
+            )}
+            {!isEditing && notes.length > 0 && !problem && <span aria-hidden data-testid="cell-note" className="pointer-events-none absolute right-0 top-0 h-0 w-0 border-l-[7px] border-t-[7px] border-l-transparent border-t-amber" />}
+            {problem && !isEditing && (key === latestProblem || isActive) && (
+              <ProblemPopover problem={problem} alignRight={info?.align === 'right'} onDismiss={() => handlers.current.dropProblem(key)} onReload={() => handlers.current.reloadRow(problem, key)} />
+            )}
+          </div>
+        );
+      })}
+    </div>
+  );
+}, sameRow);
 
 function cellTitle(key: FieldKey, m: ReviewRow, notes: string[]): string | undefined {
   const parts: string[] = [];
