@@ -63,21 +63,21 @@ export function maskRoutes(deps: { sky: SkyService }): Router {
     res.setHeader('Starveil-Flagged-Cells', String(cells.filter((c) => c.flagged).length));
     if (format === 'fits') {
       const bytes = maskFits(run, cells, nside, criteria, convention);
-      res.type('application/fits').attachment(`${name}.fits`).send(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength));
+      res.attachment(`${name}.fits`).type('application/fits').send(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength));
       return;
     }
     if (format === 'csv') {
-      res.type('text/csv; charset=utf-8').attachment(`${name}.csv`).send(maskCsv(run, cells, nside, criteria, convention));
+      res.attachment(`${name}.csv`).type('text/csv; charset=utf-8').send(maskCsv(run, cells, nside, criteria, convention));
       return;
     }
     const { moc, order } = maskMoc(run, cells, nside);
     res.setHeader('Starveil-Moc-Order', String(order));
     if (format === 'moc-json') {
-      res.type('application/json').attachment(`${name}.moc.json`).send(JSON.stringify(mocToJson(moc)));
+      res.attachment(`${name}.moc.json`).type('application/json').send(JSON.stringify(mocToJson(moc)));
       return;
     }
     if (format === 'moc-ascii') {
-      res.type('text/plain; charset=utf-8').attachment(`${name}.moc.txt`).send(`${mocToAscii(moc)}\n`);
+      res.attachment(`${name}.moc.txt`).type('text/plain; charset=utf-8').send(`${mocToAscii(moc)}\n`);
       return;
     }
     res.json({

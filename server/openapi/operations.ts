@@ -463,7 +463,7 @@ export const OPERATIONS: Operation[] = [
         description: 'the mask in the format asked for',
         schema: 'responses/masks',
         content: {
-          'image/fits': { type: 'string', contentMediaType: 'image/fits', description: 'binary table HEALPix map (format=fits)' },
+          'application/fits': { type: 'string', contentMediaType: 'application/fits', description: 'binary table HEALPix map (format=fits)' },
           'text/plain': { type: 'string', description: 'MOC in the IVOA ASCII serialisation (format=moc-ascii)' },
           'text/csv': { type: 'string', description: 'flagged pixels (format=csv)' },
         },

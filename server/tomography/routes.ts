@@ -51,7 +51,9 @@ export function tomographyRoutes(deps: { tomography: TomographyService }): Route
   });
 
   r.get('/tomography/runs/:id/cells', readers, async (req, res) => {
-    const run = await tomography.resolveRun(Number(req.params.id));
+    const id = Number(req.params.id);
+    if (!Number.isInteger(id) || id < 1) throw badRequest('The run id must be a positive integer.', { fields: [{ field: 'id', message: 'expected a positive integer' }] });
+    const run = await tomography.resolveRun(id);
     res.json({ run, cells: await tomography.cells(run.id), conventions: SIGHTLINE_CONVENTIONS });
   });
 

@@ -249,12 +249,13 @@ describe('the OpenAPI document', () => {
     expect(wrong).toEqual([]);
   });
 
-  it('every numeric field of every response schema says its unit or convention', () => {
+  it('every numeric field of every response (and request) schema says its unit or convention', () => {
     const files = responseSchemaFiles();
     expect(files.length).toBeGreaterThan(20);
     expect(files.flatMap(({ file, schema }) => undescribedNumbers(schema, file))).toEqual([]);
-    // and the schemas as the document carries them (nothing lost on the way)
-    const embedded = Object.entries<Json>(doc.components.schemas).filter(([n]) => n.startsWith('responses.'));
+    // the schemas as the document carries them, request bodies included
+    const embedded = Object.entries<Json>(doc.components.schemas);
+    expect(embedded.some(([n]) => n.startsWith('api.'))).toBe(true);
     expect(embedded.flatMap(([n, s]) => undescribedNumbers(s, n))).toEqual([]);
   });
 

@@ -183,11 +183,15 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
     [readOnly, resolve.isPending, onResolve, onCheck],
   );
   const count = Math.max(total, data.length);
+  // stable between renders: the virtualiser recomputes every row's offset when these change
+  const estimateSize = useCallback((i: number) => estimateRow(data[i]), [data]);
+  const getItemKey = useCallback((i: number) => data[i]?.id ?? `slot-${i}`, [data]);
+  const getScrollElement = useCallback(() => scroller.current, []);
   const virtualizer = useVirtualizer({
     count,
-    getScrollElement: () => scroller.current,
-    estimateSize: (i) => estimateRow(data[i]),
-    getItemKey: (i) => data[i]?.id ?? `slot-${i}`,
+    getScrollElement,
+    estimateSize,
+    getItemKey,
     overscan: 8,
     scrollMargin: HEADER_H,
     scrollPaddingStart: HEADER_H,
@@ -517,6 +521,7 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
                   readOnly={readOnly}
                   batchId={batchId}
                   measure={virtualizer.measureElement}
+                  nearEnd={vi.index >= count - 3}
                   handlers={handlers}
                 />
               );
@@ -603,6 +608,8 @@ interface GridRowProps {
   readOnly: boolean;
   batchId: number;
   measure: (el: Element | null) => void;
+  /** among the last rows: a refusal opens above the cell, where there is room */
+  nearEnd: boolean;
   /** not compared: always the grid's current handlers */
   handlers: { current: RowHandlers };
 }
@@ -611,7 +618,7 @@ interface GridRowProps {
 const sameRow = (a: GridRowProps, b: GridRowProps) =>
   (Object.keys(a) as (keyof GridRowProps)[]).every((k) => k === 'tableRow' || k === 'handlers' || a[k] === b[k]);
 
-const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activeCol, editing, problems, latestProblem, saving, template, width, readOnly, batchId, measure, handlers }: GridRowProps) {
+const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activeCol, editing, problems, latestProblem, saving, template, width, readOnly, batchId, measure, nearEnd, handlers }: GridRowProps) {
   const rowHasPopover = Object.keys(problems).some((k) => k.startsWith(`${m.id}:`) && (k === latestProblem || k === problemKey(m.id, activeCol ?? '')));
   const fixedHeight = estimateRow(m) === ROW_H;
   return (
@@ -626,7 +633,7 @@ const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activ
       aria-rowindex={index + 2}
       aria-selected={readOnly ? undefined : selected}
       className={`absolute left-0 grid border-b border-line/50 text-[13px] ${rowHasPopover ? 'z-10' : ''} ${selected ? 'bg-amber/10' : m.state === 'conflict' ? 'bg-warn/[0.04]' : m.state === 'ambiguous' ? 'bg-amber/[0.06]' : index % 2 ? 'bg-paper/50' : 'bg-card'}`}
-      style={{ gridTemplateColumns: template, width, transform: `translateY(${top}px)`, height: fixedHeight ? ROW_H : undefined }}
+      style={{ gridTemplateColumns: template, width, transform: `translateY(${top}px)`, height: fixedHeight ? ROW_H : undefined, contain: 'layout style' }}
     >
       {tableRow.getVisibleCells().map((cell) => {
         const colId = cell.column.id;
@@ -670,7 +677,7 @@ const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activ
             )}
             {!isEditing && notes.length > 0 && !problem && <span aria-hidden data-testid="cell-note" className="pointer-events-none absolute right-0 top-0 h-0 w-0 border-l-[7px] border-t-[7px] border-l-transparent border-t-amber" />}
             {problem && !isEditing && (key === latestProblem || isActive) && (
-              <ProblemPopover problem={problem} alignRight={info?.align === 'right'} onDismiss={() => handlers.current.dropProblem(key)} onReload={() => handlers.current.reloadRow(problem, key)} />
+              <ProblemPopover problem={problem} alignRight={info?.align === 'right'} above={nearEnd} onDismiss={() => handlers.current.dropProblem(key)} onReload={() => handlers.current.reloadRow(problem, key)} />
             )}
           </div>
         );
@@ -725,7 +732,7 @@ function CellEditor({ initial, selectAll, label, numeric, onCommit, onCancel }: 
   );
 }
 
-function ProblemPopover({ problem, alignRight, onDismiss, onReload }: { problem: Problem; alignRight: boolean; onDismiss: () => void; onReload: () => void }) {
+function ProblemPopover({ problem, alignRight, above, onDismiss, onReload }: { problem: Problem; alignRight: boolean; above: boolean; onDismiss: () => void; onReload: () => void }) {
   const spec = FIELD_BY_KEY.get(problem.field);
   return (
     <div
@@ -733,7 +740,7 @@ function ProblemPopover({ problem, alignRight, onDismiss, onReload }: { problem:
       data-testid="cell-problem"
       data-kind={problem.kind}
       onClick={(e) => e.stopPropagation()}
-      className={`absolute ${alignRight ? 'right-0' : 'left-0'} top-full z-30 mt-0.5 w-80 whitespace-normal rounded-md border border-bad/50 bg-card p-2.5 text-left text-xs not-italic leading-snug text-ink shadow-lg`}
+      className={`absolute ${alignRight ? 'right-0' : 'left-0'} ${above ? 'bottom-full mb-0.5' : 'top-full mt-0.5'} z-30 w-80 whitespace-normal rounded-md border border-bad/50 bg-card p-2.5 text-left text-xs not-italic leading-snug text-ink shadow-lg`}
     >
       {problem.kind === 'refused' ? (
         <p>
