@@ -66,7 +66,8 @@ export function measurementService(db: Knex) {
     if (!String(inst.bands).split(',').includes(res.row.band)) throw badRequest(`band: ${inst.code} observes in ${inst.bands} only`, { fields: [{ field: 'band', message: `expected one of ${inst.bands}` }] });
     const star = m.star_id ? await trx('stars').where({ id: m.star_id }).first() : null;
     const fallback = star && star.parallax_mas !== null && star.parallax_err_mas !== null ? { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas } : null;
-    return { ...deriveMeasurement(res.row as CanonicalRow, fallback), warnings: res.warnings };
+    const { derived, warnings } = deriveMeasurement(res.row as CanonicalRow, fallback);
+    return { derived, warnings: [...res.warnings, ...warnings] };
   }
 
   async function applyEdit(trx: Knex.Transaction, actorId: number, m: MeasurementRow, changes: Record<string, unknown>, reason: string | null, action: string) {

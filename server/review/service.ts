@@ -70,6 +70,7 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
         const b = await trx('batches').where({ id: batchId }).first();
         if (!b) throw notFound(`Batch ${batchId}`);
         if (!['awaiting_review', 'approved', 'returned'].includes(b.state)) throw new AppError(409, 'not_reviewable', `Batch ${batchId} is ${b.state}; only a checked batch can be approved or returned.`);
+        if (b.state === decision) throw new AppError(409, 'already_decided', `Batch ${batchId} is already ${decision}.`);
         const target = decision === 'approved' ? 'approved' : 'rejected';
         const pending = await trx('measurements').where({ batch_id: batchId, state: 'pending' }).pluck('id');
         const now = new Date().toISOString();

@@ -34,6 +34,14 @@ describe('editing a measurement', () => {
     expect(edit.actor.email).toBe('curator@kestrel.example');
   });
 
+  it('an edit returns the re-derived warnings', async () => {
+    const curator = await signedIn(t.app, 'curator');
+    const m = await t.db('measurements').where({ batch_id: batchId }).orderBy('id').offset(5).first();
+    const res = await curator.patch(`/api/v1/measurements/${m.id}`).send({ changes: { q: 0.0001, u: 0.0001 }, version: m.version });
+    expect(res.status).toBe(200);
+    expect(res.body.warnings.map((w: { message: string }) => w.message).join(' ')).toMatch(/p\/σp = .* below 5/);
+  });
+
   it('a bad value is refused with its reason and changes nothing', async () => {
     const curator = await signedIn(t.app, 'curator');
     const m = await firstMeasurement();
@@ -142,6 +150,9 @@ describe('whole-batch decisions', () => {
     expect(res.body.counts.changed).toBe(40);
     expect(Number((await t.db('measurements').where({ batch_id: up.id, state: 'approved' }).count({ n: '*' }))[0].n)).toBe(40);
     expect((await observer.get(`/api/v1/batches/${up.id}`)).body.state).toBe('approved');
+    const again = await curator.post(`/api/v1/batches/${up.id}/approve`).send({});
+    expect(again.status).toBe(409);
+    expect(again.body.error.code).toBe('already_decided');
     const queueAfter = (await curator.get('/api/v1/review/queue')).body.batches;
     expect(queueAfter.map((x: { id: number }) => x.id)).not.toContain(up.id);
     // the seeded R night was approved by the demo curator

@@ -273,6 +273,11 @@ describe.runIf(run)('review in a real browser', () => {
     await expect.poll(() => panel.getByTestId('history-entry').count()).toBe(2);
     await panel.getByRole('button', { name: 'Close the history' }).click();
 
+    // A derived value is not editable, and the grid says why.
+    await cell(page, 4, 'p_debiased').click();
+    expect(await editor.count()).toBe(0);
+    expect(await page.getByTestId('grid-hint').textContent()).toContain('p debiased [fraction] is derived from the other values');
+
     // Someone else changes line 4 meanwhile: the edit is refused with the current value, which can be loaded.
     const line4 = await rowAtLine(page, batchId, 4);
     const elsewhere = await api<{ measurement: Row }>(page, 'PATCH', `/measurements/${line4.id}`, { changes: { mjd: 61002.5 }, version: line4.version, reason: 'another curator' });

@@ -9,7 +9,7 @@ import { refusalFor, staleCurrent, useEditMeasurement } from '../api/editMeasure
 import { useBatchMeasurements } from '../api/measurements';
 import { useResolveMeasurement, type Resolution } from '../api/resolveMeasurement';
 import { cellNotes, editText, FIELD_BY_KEY, isEditableField, parseEdit, type FieldKey } from '../fields';
-import type { MeasurementFilters, MeasurementListParams, MeasurementSort, MeasurementState, ReviewRow, StoredMeasurement } from '../types';
+import type { MeasurementFilters, MeasurementListParams, MeasurementState, ReviewRow, StoredMeasurement } from '../types';
 import { BulkBar } from './BulkBar';
 import { buildColumns, COLUMN_INFO, COLUMN_TITLES, formatField, HISTORY_COLUMN, INITIAL_VISIBILITY, RESOLVE_COLUMN, SELECT_COLUMN } from './gridColumns';
 import { ColumnsMenu, GridFilters } from './GridToolbar';
@@ -94,6 +94,8 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
   const [historyId, setHistoryId] = useState<number | null>(null);
   const [resolveError, setResolveError] = useState<string | null>(null);
   const [bulkMessage, setBulkMessage] = useState<string | null>(null);
+  /** why the active cell cannot be edited, shown while it stays active */
+  const [hint, setHint] = useState<(Cell & { text: string }) | null>(null);
   const lastChecked = useRef<number | null>(null);
   const scroller = useRef<HTMLDivElement>(null);
 
@@ -277,6 +279,8 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
   const canEdit = (cell: Cell) => !readOnly && isEditableField(cell.col) && !!data[cell.row];
 
   const startEdit = (cell: Cell, typed?: string) => {
+    const spec = FIELD_BY_KEY.get(cell.col as FieldKey);
+    setHint(!readOnly && spec && !spec.editable ? { ...cell, text: `${spec.header} is derived from the other values; edit those instead.` } : null);
     if (!canEdit(cell)) return false;
     const row = data[cell.row];
     const next = { ...cell, text: typed ?? editText(row[cell.col as FieldKey]), selectAll: typed === undefined };
@@ -537,6 +541,12 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
           {formatCount(data.length)} of {formatCount(total)} measurements loaded{q.isFetchingNextPage ? ' · loading more…' : ''}
           {sortedBy ? ` · sorted by ${COLUMN_TITLES[sortedBy.id] ?? sortedBy.id} ${sortedBy.desc ? '(descending)' : '(ascending)'}` : ' · in file order'}
           {activeRow ? ` · line ${activeRow.line}, ${COLUMN_TITLES[active.col] ?? active.col}` : ''}
+          {hint && hint.row === active.row && hint.col === active.col && (
+            <span className="text-amber-deep" data-testid="grid-hint">
+              {' '}
+              · {hint.text}
+            </span>
+          )}
         </span>
         <span>
           {readOnly
