@@ -20,29 +20,29 @@ export function Layout() {
   return (
     <div className="min-h-screen">
       <header className="bg-night text-white">
-        <div className="mx-auto flex max-w-7xl items-center gap-6 px-6 py-3">
-          <NavLink to="/" className="flex items-center gap-2.5">
+        <div className="mx-auto flex max-w-7xl items-center gap-4 px-6 py-3">
+          <NavLink to="/" className="flex shrink-0 items-center gap-2.5">
             <Logo size={30} />
             <span className="text-lg font-semibold tracking-tight">Starveil</span>
           </NavLink>
-          <nav aria-label="Main" className="flex flex-1 gap-1">
+          <nav aria-label="Main" className="flex flex-1 flex-wrap gap-0.5">
             {items.map((n) => (
               <NavLink
                 key={n.to}
                 to={n.to}
                 end={n.to === '/'}
-                className={({ isActive }) => `rounded-md px-3 py-1.5 text-sm ${isActive ? 'bg-night-2 text-amber' : 'text-veil-soft/85 hover:bg-night-2 hover:text-white'}`}
+                className={({ isActive }) => `whitespace-nowrap rounded-md px-2.5 py-1.5 text-sm ${isActive ? 'bg-night-2 text-amber' : 'text-veil-soft/85 hover:bg-night-2 hover:text-white'}`}
               >
                 {n.label}
               </NavLink>
             ))}
           </nav>
           {me && (
-            <div className="flex items-center gap-3 text-sm">
-              <span className="text-veil-soft/90">{me.name}</span>
+            <div className="flex shrink-0 items-center gap-3 text-sm">
+              <span className="hidden whitespace-nowrap text-veil-soft/90 xl:inline">{me.name}</span>
               <span data-testid="role-badge" className={`rounded-full px-2 py-0.5 text-xs font-medium ${ROLE_BADGE[me.role]}`}>{me.role}</span>
               <button
-                className="rounded-md border border-night-2 px-2.5 py-1 text-xs text-veil-soft hover:bg-night-2"
+                className="whitespace-nowrap rounded-md border border-night-2 px-2.5 py-1 text-xs text-veil-soft hover:bg-night-2"
                 onClick={() => logout.mutate(undefined, { onSettled: () => navigate('/sign-in') })}
               >
                 Sign out
