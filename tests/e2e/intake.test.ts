@@ -4,10 +4,9 @@ import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { DIST, launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer } from '../helpers/browser.js';
+import type { Browser, Page } from 'playwright-core';
+import { DIST, launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer, signInPage } from '../helpers/browser.js';
 import { DEMO, makeTestApp } from '../helpers/app.js';
-import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 
 const run = mustRunBrowserTests();
 
@@ -27,17 +26,7 @@ interface ApiRow {
   errors: { column: string; field?: string; message: string }[];
 }
 
-async function signIn(browser: Browser, url: string, role: keyof typeof DEMO): Promise<{ ctx: BrowserContext; page: Page }> {
-  const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-  const page = await ctx.newPage();
-  await page.goto(`${url}/sign-in`);
-  await page.getByLabel('E-mail').fill(DEMO[role]);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByTestId('role-badge').waitFor();
-  expect(await page.getByTestId('role-badge').textContent()).toBe(role);
-  return { ctx, page };
-}
+const signIn = (browser: Browser, url: string, role: keyof typeof DEMO) => signInPage(browser, url, role, { width: 1280, height: 900 });
 
 const navLinks = (page: Page) => page.getByRole('navigation', { name: 'Main' }).getByRole('link').allTextContents();
 

@@ -2,9 +2,8 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer } from '../helpers/browser.js';
+import { launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer, signInPage } from '../helpers/browser.js';
 import { DEMO } from '../helpers/app.js';
-import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 
 const run = mustRunBrowserTests();
 
@@ -38,17 +37,7 @@ interface StarMeasurement {
   mjd: number;
 }
 
-async function signIn(browser: Browser, url: string, role: keyof typeof DEMO): Promise<{ ctx: BrowserContext; page: Page }> {
-  const ctx = await browser.newContext({ viewport: { width: 1400, height: 950 } });
-  const page = await ctx.newPage();
-  await page.goto(`${url}/sign-in`);
-  await page.getByLabel('E-mail').fill(DEMO[role]);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByTestId('role-badge').waitFor();
-  expect(await page.getByTestId('role-badge').textContent()).toBe(role);
-  return { ctx, page };
-}
+const signIn = (browser: Browser, url: string, role: keyof typeof DEMO) => signInPage(browser, url, role, { width: 1400, height: 950 });
 
 /** Call the API with the page's own session cookie. */
 function api<T>(page: Page, method: string, p: string, body?: unknown): Promise<{ status: number; body: T }> {

@@ -2,7 +2,10 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
-import { chromium, type Browser } from 'playwright-core';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { expect } from 'vitest';
+import { DEMO } from './app.js';
+import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 import { makeTestApp, type TestApp } from './app.js';
 
 export const CHROMIUM = process.env.STARVEIL_CHROMIUM ?? '/usr/bin/chromium';
@@ -57,3 +60,16 @@ export async function startLiveServer(opts: { tomography?: boolean } = {}): Prom
 }
 
 export const SCREENSHOTS = path.resolve('tests/e2e/screenshots');
+
+/** A fresh browser context signed in through the sign-in page as a demo role. */
+export async function signInPage(browser: Browser, url: string, role: keyof typeof DEMO, viewport = { width: 1280, height: 900 }): Promise<{ ctx: BrowserContext; page: Page }> {
+  const ctx = await browser.newContext({ viewport });
+  const page = await ctx.newPage();
+  await page.goto(`${url}/sign-in`);
+  await page.getByLabel('E-mail').fill(DEMO[role]);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByTestId('role-badge').waitFor();
+  expect(await page.getByTestId('role-badge').textContent()).toBe(role);
+  return { ctx, page };
+}
