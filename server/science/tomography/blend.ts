@@ -107,17 +107,45 @@ export function mergeBlends(
     }
     if (bestJ < 0) break;
     const a = bounds[bestJ - 1], b = bounds[bestJ + 2];
+    const lo = a + s.minSegmentLength, hi = b - s.minSegmentLength;
     let bestC = -1;
     let bestCost = Infinity;
-    for (let c = a + s.minSegmentLength; c <= b - s.minSegmentLength; c++) {
-      const v = table.cost(a, c) + table.cost(c, b);
-      if (v < bestCost) { bestCost = v; bestC = c; }
+    if (b - a >= BOUNDED_SPLIT_MIN && table.n >= BOUNDED_SPLIT_MIN_N && hi > lo) {
+      // Same argmin (first minimum in c order), pricing only splits whose lower bound
+      // LB(a..c) + LB(c..b) can still reach the best: the most promising one first.
+      const lbs = splitBounds.length > hi - lo ? splitBounds : (splitBounds = new Float64Array(2 * (hi - lo + 1)));
+      let cMin = lo;
+      for (let c = lo; c <= hi; c++) {
+        const v = table.lowerBound(a, c) + table.lowerBound(c, b);
+        lbs[c - lo] = v;
+        if (v < lbs[cMin - lo]) cMin = c;
+      }
+      bestC = cMin;
+      bestCost = table.cost(a, cMin) + table.cost(cMin, b);
+      for (let c = lo; c <= hi; c++) {
+        if (c === cMin) continue;
+        const l = lbs[c - lo];
+        if (l > bestCost || (l === bestCost && c > bestC)) continue;
+        const v = table.cost(a, c) + table.cost(c, b);
+        if (v < bestCost || (v === bestCost && c < bestC)) { bestCost = v; bestC = c; }
+      }
+    } else {
+      for (let c = lo; c <= hi; c++) {
+        const v = table.cost(a, c) + table.cost(c, b);
+        if (v < bestCost) { bestCost = v; bestC = c; }
+      }
     }
     bounds.splice(bestJ, 2, bestC);
     merges++;
   }
   return merges;
 }
+
+/** Merged spans at least this long search their split with bounds (speed only). */
+const BOUNDED_SPLIT_MIN = 32;
+/** …in cells of at least this many stars (the bounds' prefix sums cost O(n·grid) to build). */
+const BOUNDED_SPLIT_MIN_N = 48;
+let splitBounds = new Float64Array(64);
 
 const chi2Cache = new Map<number, number>();
 

@@ -25,6 +25,8 @@ export interface Partition {
 
 /** Numerical slack in the pruning test (cost units), far below any penalty. */
 const PRUNE_TOLERANCE = 1e-9;
+/** Anchored bounds pay for their prefix sums from about this many stars on (speed only). */
+const ANCHOR_MIN_N = 48;
 
 /**
  * Reusable PELT solver (no allocation per call once sized).
@@ -35,6 +37,20 @@ const PRUNE_TOLERANCE = 1e-9;
  * is not priced exactly; its bound is carried on. Pruning uses the bound too (F(τ) + bound ≥
  * F(t) implies F(τ) + C ≥ F(t)), so the result is the exact optimum, with far fewer exact costs
  * over long stretches without breaks, where PELT itself cannot prune.
+ *
+ * The singleton bound loses about 2 per star (the χ² each star adds), so it fails a few stars
+ * after each exact cost. With `lowerBound` as well, a candidate τ priced exactly at t0 keeps
+ * the anchor (t0, C(τ..t0)), and at t the bound C(τ..t) ≥ C(τ..t0) + C(t0..t) ≥ C(τ..t0) +
+ * LB(t0..t) (superadditivity), which loses only the join's O(1) gain; LB(t0..t) is shared by
+ * all candidates with that anchor.
+ *
+ * Lazy steps (with `upperBound` too): over a stretch without a break the winner at each t is
+ * the same τ, and pricing C(τ..t) exactly for every t is O(n²) work. When the most promising
+ * candidate's upper bound Fhi(τ) + UB(τ..t) + penalty is at most every other candidate's lower
+ * bound, τ is the argmin (exact ties aside) without its exact cost: F[t] then holds a lower
+ * bound, Fhi[t] an upper one, and F(t) is priced (resolve) only when t itself is priced as a
+ * candidate or lies on the final path — the same sums the eager step forms. Bounds only decide
+ * what is skipped, so the result is still the exact optimum.
  */
 export class PeltSolver {
   private F: Float64Array;
@@ -42,6 +58,14 @@ export class PeltSolver {
   private cand: Int32Array;
   private prunedFrom: Int32Array;
   private lb: Float64Array;
+  /** F[t] is F(t) when known[t], else a lower bound; Fhi[t] an upper bound; chain scratch. */
+  private Fhi: Float64Array;
+  private known: Uint8Array;
+  private stack: Int32Array;
+  private base: Float64Array;
+  private anchor: Int32Array;
+  private anchorStamp: Int32Array;
+  private anchorBound: Float64Array;
   private capacity: number;
   /** Exact segment costs requested in the last solve (for benchmarks). */
   evaluations = 0;
@@ -53,6 +77,13 @@ export class PeltSolver {
     this.cand = new Int32Array(0);
     this.prunedFrom = new Int32Array(0);
     this.lb = new Float64Array(0);
+    this.Fhi = new Float64Array(0);
+    this.known = new Uint8Array(0);
+    this.stack = new Int32Array(0);
+    this.base = new Float64Array(0);
+    this.anchor = new Int32Array(0);
+    this.anchorStamp = new Int32Array(0);
+    this.anchorBound = new Float64Array(0);
     this.ensure(capacity);
   }
 
@@ -65,6 +96,13 @@ export class PeltSolver {
     this.cand = new Int32Array(c);
     this.prunedFrom = new Int32Array(c);
     this.lb = new Float64Array(c);
+    this.Fhi = new Float64Array(c);
+    this.known = new Uint8Array(c);
+    this.stack = new Int32Array(c);
+    this.base = new Float64Array(c);
+    this.anchor = new Int32Array(c);
+    this.anchorStamp = new Int32Array(c);
+    this.anchorBound = new Float64Array(c);
   }
 
   /**
@@ -80,9 +118,14 @@ export class PeltSolver {
       return coster.cost(0, n);
     }
     this.ensure(n);
-    const { F, last, cand, prunedFrom, lb } = this;
+    const { F, Fhi, known, last, cand, prunedFrom, lb, base, anchor, anchorStamp, anchorBound } = this;
     const single = coster.singletonCost;
+    const useAnchors = single !== undefined && coster.lowerBound !== undefined && n >= ANCHOR_MIN_N;
+    const useLazy = useAnchors && coster.upperBound !== undefined;
+    if (useAnchors) anchorStamp.fill(-1, 0, n + 1);
     F[0] = -penalty;
+    Fhi[0] = -penalty;
+    known[0] = 1;
     last[0] = 0;
     let nCand = 0;
     const NEVER = 0x7fffffff;
@@ -107,6 +150,8 @@ export class PeltSolver {
           for (let i = tau; i < t; i++) b += single[i];
         }
         lb[tau] = b;
+        base[tau] = 0;
+        anchor[tau] = tau;
       }
       // Drop candidates whose pruning has taken effect; price the most promising one first.
       let k = 0;
@@ -120,37 +165,100 @@ export class PeltSolver {
         if (first < 0 || v < firstBound) { firstBound = v; first = c; }
       }
       nCand = k;
-      let best = Infinity;
-      let arg = -1;
-      if (first >= 0) {
-        const exact = coster.cost(first, t);
-        this.evaluations++;
-        lb[first] = exact;
-        best = F[first] + exact + penalty;
-        arg = first;
+      let lazy = false;
+      if (useLazy && first >= 0) {
+        // Lazy step: if every other candidate's lower bound is at least the first's upper
+        // bound, the first is the argmin; F(t) is then priced only if ever needed.
+        const an0 = anchor[first];
+        if (an0 < t) {
+          if (anchorStamp[an0] !== t) {
+            anchorStamp[an0] = t;
+            anchorBound[an0] = coster.lowerBound!(an0, t);
+          }
+          const a = base[first] + anchorBound[an0];
+          if (a > lb[first]) lb[first] = a;
+        }
+        const hi = Fhi[first] + coster.upperBound!(first, t) + penalty;
+        lazy = true;
+        for (let j = 0; j < nCand; j++) {
+          const c = cand[j];
+          if (c === first || F[c] + lb[c] + penalty >= hi) continue;
+          if (anchor[c] < t) {
+            const an = anchor[c];
+            if (anchorStamp[an] !== t) {
+              anchorStamp[an] = t;
+              anchorBound[an] = coster.lowerBound!(an, t);
+            }
+            const a = base[c] + anchorBound[an];
+            if (a > lb[c]) {
+              lb[c] = a;
+              if (F[c] + a + penalty >= hi) continue;
+            }
+          }
+          lazy = false;
+          break;
+        }
+        if (lazy) {
+          F[t] = F[first] + lb[first] + penalty;
+          Fhi[t] = hi;
+          known[t] = 0;
+          last[t] = first;
+        }
       }
-      for (let j = 0; j < nCand; j++) {
-        const c = cand[j];
-        if (c === first) continue;
-        if (F[c] + lb[c] + penalty >= best) continue; // cannot win at t (bound only)
-        const exact = coster.cost(c, t);
-        this.evaluations++;
-        lb[c] = exact;
-        const v = F[c] + exact + penalty;
-        if (v < best || (v === best && c < arg)) { best = v; arg = c; }
+      if (!lazy) {
+        let best = Infinity;
+        let arg = -1;
+        if (first >= 0) {
+          const exact = coster.cost(first, t);
+          this.evaluations++;
+          lb[first] = exact;
+          base[first] = exact;
+          anchor[first] = t;
+          best = this.resolve(first, coster, penalty) + exact + penalty;
+          arg = first;
+        }
+        for (let j = 0; j < nCand; j++) {
+          const c = cand[j];
+          if (c === first) continue;
+          if (F[c] + lb[c] + penalty >= best) continue; // cannot win at t (bound only)
+          if (useAnchors && anchor[c] < t) {
+            // C(c..t) ≥ C(c..anchor) + LB(anchor..t); LB once per anchor and t.
+            const an = anchor[c];
+            if (anchorStamp[an] !== t) {
+              anchorStamp[an] = t;
+              anchorBound[an] = coster.lowerBound!(an, t);
+            }
+            const a = base[c] + anchorBound[an];
+            if (a > lb[c]) {
+              lb[c] = a;
+              if (F[c] + a + penalty >= best) continue;
+            }
+          }
+          const exact = coster.cost(c, t);
+          this.evaluations++;
+          lb[c] = exact;
+          base[c] = exact;
+          anchor[c] = t;
+          const v = this.resolve(c, coster, penalty) + exact + penalty;
+          if (v < best || (v === best && c < arg)) { best = v; arg = c; }
+        }
+        F[t] = best;
+        Fhi[t] = best;
+        known[t] = 1;
+        last[t] = arg;
       }
-      F[t] = best;
-      last[t] = arg;
       // Mark candidates that can never beat t as a last break (effective from t + minSeg).
       if (t <= n - minSeg) {
         const effective = t + minSeg;
+        const ft = Fhi[t];
         for (let j = 0; j < nCand; j++) {
           const c = cand[j];
           if (prunedFrom[c] !== NEVER) continue;
-          if (F[c] + lb[c] >= best + PRUNE_TOLERANCE) prunedFrom[c] = effective;
+          if (F[c] + lb[c] >= ft + PRUNE_TOLERANCE) prunedFrom[c] = effective;
         }
       }
     }
+    const total = this.resolve(n, coster, penalty);
     // Backtrack.
     let t = n;
     while (t > 0) {
@@ -159,7 +267,29 @@ export class PeltSolver {
       t = c;
     }
     breaksOut.reverse();
-    return F[n];
+    return total;
+  }
+
+  /**
+   * Exact F(c), pricing the lazy steps behind it: F(y) = F(last(y)) + C(last(y)..y) + penalty
+   * down the chain to a known value (the same sum the exact step would have formed).
+   */
+  private resolve(c: number, coster: SegmentCoster, penalty: number): number {
+    const { F, Fhi, known, last, stack } = this;
+    if (known[c]) return F[c];
+    let depth = 0;
+    let x = c;
+    while (!known[x]) { stack[depth++] = x; x = last[x]; }
+    for (let i = depth - 1; i >= 0; i--) {
+      const y = stack[i];
+      const w = last[y];
+      const exact = coster.cost(w, y);
+      this.evaluations++;
+      F[y] = F[w] + exact + penalty;
+      Fhi[y] = F[y];
+      known[y] = 1;
+    }
+    return F[c];
   }
 }
 

@@ -58,6 +58,12 @@ let evMeanQ = 0;
 let evMeanU = 0;
 let evWq = 0;
 let evWu = 0;
+// Arguments and value of the last evaluate() call, so a point is not evaluated twice in a row.
+let lastQ: Float64Array | null = null;
+let lastStart = -1;
+let lastEnd = -1;
+let lastT = NaN;
+let lastF = NaN;
 
 /**
  * f(t) without the 2m ln 2π constant; with derivs, also sets evD1 = f'(t), evD2 = f''(t).
@@ -110,6 +116,7 @@ function evaluate(
   evMeanQ = mq; evMeanU = mu; evWq = wq; evWu = wu;
   const chi2 = (sqq - sq * mq) + (suu - su * mu);
   const f = logSum + m2 * Math.log(ref) + (chi2 > 0 ? chi2 : 0);
+  lastQ = q; lastStart = start; lastEnd = end; lastT = t; lastF = f;
   if (derivs) {
     const w2r2q = s2qq - 2 * mq * s2q + mq * mq * w2q;
     const w2r2u = s2uu - 2 * mu * s2u + mu * mu * w2u;
@@ -163,6 +170,7 @@ export function minimiseFromSamples(
   q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
   start: number, end: number, fT: Float64Array, fF: Float64Array, g: number, vMin: number,
 ): number {
+  lastQ = null; // only this search's evaluations may be reused
   const q0 = q[start];
   const u0 = u[start];
   let best = 0;
@@ -180,7 +188,9 @@ export function minimiseFromSamples(
     if (g === 1) tk = 0;
     else if (k === 0) tk = polish(q, u, vq, vu, start, end, q0, u0, 0, fT[1], 0, vMin);
     else tk = polish(q, u, vq, vu, start, end, q0, u0, fT[k - 1], k === g - 1 ? fT[k] : fT[k + 1], fT[k], vMin);
-    const fk2 = evaluate(q, u, vq, vu, start, end, tk, q0, u0, false);
+    // The polish often ends on its last evaluated point (e.g. the boundary t = 0).
+    const fk2 = lastQ === q && lastStart === start && lastEnd === end && lastT === tk
+      ? lastF : evaluate(q, u, vq, vu, start, end, tk, q0, u0, false);
     const better = fk2 <= fk;
     const fUse = better ? fk2 : fk;
     if (fUse < fFound) { fFound = fUse; tBest = better ? tk : fT[k]; }
@@ -231,13 +241,18 @@ function equalVarianceT(q: Float64Array, u: Float64Array, start: number, end: nu
   return t > 0 ? t : 0;
 }
 
-/** Writes the fit at scatter variance t into out[offset…]. */
+/**
+ * Writes the fit at scatter variance t into out[offset…]. Called right after the search, whose
+ * last evaluation is often at t already: then that evaluation's sums are used (same values).
+ */
 export function writeFitAt(
   q: Float64Array, u: Float64Array, vq: Float64Array, vu: Float64Array,
   start: number, end: number, t: number, out: Float64Array, offset: number,
 ): void {
   const q0 = q[start], u0 = u[start];
-  const f = evaluate(q, u, vq, vu, start, end, t, q0, u0, false);
+  const f = lastQ === q && lastStart === start && lastEnd === end && lastT === t
+    ? lastF : evaluate(q, u, vq, vu, start, end, t, q0, u0, false);
+  lastQ = null; // used once: the arrays may be refilled before the next fit
   out[offset + FIT_COST] = f + 2 * (end - start) * LN_2PI;
   out[offset + FIT_SCATTER_VAR] = t;
   out[offset + FIT_MEAN_Q] = q0 + evMeanQ;
@@ -255,6 +270,7 @@ export function fitSegmentInto(
   start: number, end: number, out: Float64Array, offset = 0,
 ): void {
   if (end - start <= 0) throw new RangeError(`segment [${start}, ${end}) is empty`);
+  lastQ = null;
   scanSegment(q, u, vq, vu, start, end);
   let t = 0;
   if (stTHi > 0) {

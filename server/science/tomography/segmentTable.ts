@@ -31,6 +31,13 @@ export interface SegmentCoster {
    * superadditive); lets PELT skip exact costs that cannot matter.
    */
   readonly singletonCost?: Float64Array;
+  /**
+   * Optional: a cheap lower bound on cost(start, end) (never above it); lets PELT keep skipping
+   * candidates over long stretches without a break.
+   */
+  lowerBound?(start: number, end: number): number;
+  /** Optional: a cheap upper bound on cost(start, end) (never below it). */
+  upperBound?(start: number, end: number): number;
 }
 
 export class SegmentTable implements SegmentCoster {
@@ -77,6 +84,13 @@ export class SegmentTable implements SegmentCoster {
   private pWu: Float64Array = new Float64Array(0);
   private pSu: Float64Array = new Float64Array(0);
   private pSuu: Float64Array = new Float64Array(0);
+  // The same for Σw², Σw²·x, Σw²·x² (slope of χ²(t), for lowerBound).
+  private p2Wq: Float64Array = new Float64Array(0);
+  private p2Sq: Float64Array = new Float64Array(0);
+  private p2Sqq: Float64Array = new Float64Array(0);
+  private p2Wu: Float64Array = new Float64Array(0);
+  private p2Su: Float64Array = new Float64Array(0);
+  private p2Suu: Float64Array = new Float64Array(0);
   private prefixReady = false;
   private directWork = 0;
   private sampleT: Float64Array = new Float64Array(SEGMENT_GRID_MAX + 2);
@@ -155,6 +169,42 @@ export class SegmentTable implements SegmentCoster {
     }
   }
 
+  /** Row index of the fit of [start, end) if already stored, else −1. */
+  private peek(start: number, end: number): number {
+    const ka = this.prefA[end] ^ this.prefA[start];
+    const kb = this.prefB[end] ^ this.prefB[start];
+    const len = end - start;
+    let slot = (ka ^ Math.imul(kb, 0x9e3779b1)) & this.mask;
+    for (;;) {
+      const l = this.tabLen[slot];
+      if (l === 0) return -1;
+      if (l === len && this.tabA[slot] === ka && this.tabB[slot] === kb) return this.tabRow[slot];
+      slot = (slot + 1) & this.mask;
+    }
+  }
+
+  /**
+   * Upper bound on cost(start, end): the stored cost if there is one; for a short segment the
+   * cost itself; otherwise f(0) from the prefix sums (plus a rounding margin). A long new
+   * segment is fitted from these prefix sums (row), whose search keeps the best of its samples,
+   * t = 0 among them, so its cost is at most f(0); the closed form for equal variances is the
+   * global minimum.
+   */
+  upperBound(start: number, end: number): number {
+    const r = this.peek(start, end);
+    if (r >= 0) return this.rows[r * FIT_SIZE + FIT_COST];
+    const len = end - start;
+    if (len < PREFIX_GRID_MIN_LENGTH) return this.cost(start, end);
+    if (!this.prefixReady) this.buildPrefix();
+    const G = this.gridG;
+    const s0 = start * G, e0 = end * G;
+    const wq = this.pWq[e0] - this.pWq[s0], sq = this.pSq[e0] - this.pSq[s0];
+    const wu = this.pWu[e0] - this.pWu[s0], su = this.pSu[e0] - this.pSu[s0];
+    const chi2 = (this.pSqq[e0] - this.pSqq[s0] - (sq * sq) / wq) + (this.pSuu[e0] - this.pSuu[s0] - (su * su) / wu);
+    const c = this.pLn[e0] - this.pLn[s0] + (chi2 > 0 ? chi2 : 0) + 2 * len * LN_2PI;
+    return c + 1e-9 * (Math.abs(c) + 2 * len) + 1e-9;
+  }
+
   /** Row index (into the fit store) of the fit of [start, end), computing it if new. */
   private row(start: number, end: number): number {
     const ka = this.prefA[end] ^ this.prefA[start];
@@ -172,7 +222,8 @@ export class SegmentTable implements SegmentCoster {
     }
     const r = this.nRows++;
     // Building the prefix sums costs about what sampling 2n stars directly does: build them
-    // once this ordering's long misses have sampled that many.
+    // once this ordering's long misses have sampled that many. (Once built, every long miss
+    // takes this path: upperBound relies on it.)
     if (len >= PREFIX_GRID_MIN_LENGTH && (this.prefixReady || this.directWork >= 2 * this.n)) {
       this.fitFromPrefix(start, end, r * FIT_SIZE);
     } else {
@@ -224,12 +275,15 @@ export class SegmentTable implements SegmentCoster {
     this.pLn = new Float64Array(size);
     this.pWq = new Float64Array(size); this.pSq = new Float64Array(size); this.pSqq = new Float64Array(size);
     this.pWu = new Float64Array(size); this.pSu = new Float64Array(size); this.pSuu = new Float64Array(size);
+    this.p2Wq = new Float64Array(size); this.p2Sq = new Float64Array(size); this.p2Sqq = new Float64Array(size);
+    this.p2Wu = new Float64Array(size); this.p2Su = new Float64Array(size); this.p2Suu = new Float64Array(size);
   }
 
   private buildPrefix(): void {
     if (this.gridG === 0) this.buildGrid();
     const G = this.gridG;
     const { pLn, pWq, pSq, pSqq, pWu, pSu, pSuu, starLn, starWq, starWu, cq, cu } = this;
+    const { p2Wq, p2Sq, p2Sqq, p2Wu, p2Su, p2Suu } = this;
     for (let pos = 0; pos < this.n; pos++) {
       const i = this.order[pos];
       const x = cq[i], y = cu[i];
@@ -243,6 +297,13 @@ export class SegmentTable implements SegmentCoster {
         pWu[cur + k] = pWu[prev + k] + b;
         pSu[cur + k] = pSu[prev + k] + b * y;
         pSuu[cur + k] = pSuu[prev + k] + b * y * y;
+        const a2 = a * a, b2 = b * b;
+        p2Wq[cur + k] = p2Wq[prev + k] + a2;
+        p2Sq[cur + k] = p2Sq[prev + k] + a2 * x;
+        p2Sqq[cur + k] = p2Sqq[prev + k] + a2 * x * x;
+        p2Wu[cur + k] = p2Wu[prev + k] + b2;
+        p2Su[cur + k] = p2Su[prev + k] + b2 * y;
+        p2Suu[cur + k] = p2Suu[prev + k] + b2 * y * y;
       }
     }
     this.prefixReady = true;
@@ -273,6 +334,91 @@ export class SegmentTable implements SegmentCoster {
     }
     const t = minimiseFromSamples(q, u, vq, vu, start, end, sampleT, sampleF, g, scannedVMin());
     writeFitAt(q, u, vq, vu, start, end, t, this.rows, offset);
+  }
+
+  /**
+   * Lower bound on cost(start, end) from the prefix sums, O(grid). With t = s², the profile is
+   * f(t) = L(t) + X(t): L(t) = Σ ln(σ² + t) is concave, X(t) = min over the means of
+   * Σ r²/(σ² + t) is convex (a minimum over the means of functions jointly convex in
+   * (mean, t)), with X'(t) = −Σ w² r² (envelope theorem). On each grid interval [a, b],
+   * f ≥ chord of L + max(tangent of X at a, tangent at b, 0), a convex piecewise-linear function
+   * whose minimum lies at an end or a crossing; beyond the last grid point f ≥ L(t_G). The
+   * minimum over intervals, less a rounding margin, bounds min f from below.
+   */
+  lowerBound(start: number, end: number): number {
+    if (!this.prefixReady) this.buildPrefix();
+    const G = this.gridG;
+    const { pLn, pWq, pSq, pSqq, pWu, pSu, pSuu, gridT } = this;
+    const s0 = start * G, e0 = end * G;
+    let best = Infinity;
+    let ta = 0, La = 0, Xa = 0, Da = 0, mqa = 0, mua = 0, ka = 0;
+    let haveDa = false;
+    for (let k = 0; k < G; k++) {
+      // g ≥ L(ta) on [ta, tb] and L increases with t: no later interval can go lower.
+      if (k > 0 && La >= best) break;
+      const i = e0 + k, j = s0 + k;
+      const wq = pWq[i] - pWq[j], sq = pSq[i] - pSq[j];
+      const wu = pWu[i] - pWu[j], su = pSu[i] - pSu[j];
+      const mq = sq / wq, mu = su / wu;
+      const X = (pSqq[i] - pSqq[j] - sq * mq) + (pSuu[i] - pSuu[j] - su * mu);
+      const tb = gridT[k], Lb = pLn[i] - pLn[j];
+      const Xb = X > 0 ? X : 0;
+      let Db = 0;
+      let haveDb = false;
+      // Cheap test first: on [ta, tb], L ≥ L(ta) and X ≥ X(tb) (X decreases).
+      if (k > 0 && La + Xb < best) {
+        if (!haveDa) Da = this.chiSlope(s0 + ka, e0 + ka, mqa, mua);
+        Db = this.chiSlope(j, i, mq, mu);
+        haveDb = true;
+        const slope = (Lb - La) / (tb - ta);
+        // g(t) = La + slope·(t − ta) + max(Xa + Da(t − ta), Xb + Db(t − tb), 0): convex,
+        // piecewise linear; its minimum is at an end or where two of the three lines cross.
+        const h = tb - ta;
+        const xb1 = Xa + Da * h; // tangent at ta, evaluated at tb
+        const xa2 = Xb - Db * h; // tangent at tb, evaluated at ta
+        let v = La + (Xa > xa2 ? Xa : xa2);
+        const vb = Lb + (xb1 > Xb ? xb1 : Xb);
+        if (vb < v) v = vb;
+        if (Da < Db) {
+          const tc = (Xb - Xa - Db * tb + Da * ta) / (Da - Db);
+          if (tc > ta && tc < tb) {
+            const x = Xa + Da * (tc - ta);
+            const gc = La + slope * (tc - ta) + (x > 0 ? x : 0);
+            if (gc < v) v = gc;
+          }
+        }
+        if (Da < 0) {
+          const tz = ta - Xa / Da;
+          if (tz > ta && tz < tb) {
+            const x = Xb + Db * (tz - tb);
+            const gz = La + slope * (tz - ta) + (x > 0 ? x : 0);
+            if (gz < v) v = gz;
+          }
+        }
+        if (Db < 0) {
+          const tz = tb - Xb / Db;
+          if (tz > ta && tz < tb) {
+            const x = Xa + Da * (tz - ta);
+            const gz = La + slope * (tz - ta) + (x > 0 ? x : 0);
+            if (gz < v) v = gz;
+          }
+        }
+        if (v < best) best = v;
+      }
+      ta = tb; La = Lb; Xa = Xb; Da = Db; haveDa = haveDb; mqa = mq; mua = mu; ka = k;
+    }
+    if (La < best) best = La; // t beyond the grid: X ≥ 0, L increasing
+    const c = best + 2 * (end - start) * LN_2PI;
+    return c - 1e-9 * (Math.abs(c) + 2 * (end - start)) - 1e-9;
+  }
+
+  /** X'(t) = −Σ w² r² at one grid point from the prefix sums (i = end, j = start index). */
+  private chiSlope(j: number, i: number, mq: number, mu: number): number {
+    const { p2Wq, p2Sq, p2Sqq, p2Wu, p2Su, p2Suu } = this;
+    const w2r2 =
+      (p2Sqq[i] - p2Sqq[j]) - 2 * mq * (p2Sq[i] - p2Sq[j]) + mq * mq * (p2Wq[i] - p2Wq[j]) +
+      (p2Suu[i] - p2Suu[j]) - 2 * mu * (p2Su[i] - p2Su[j]) + mu * mu * (p2Wu[i] - p2Wu[j]);
+    return w2r2 > 0 ? -w2r2 : 0;
   }
 
   private grow(): void {
@@ -318,6 +464,8 @@ export class SegmentTable implements SegmentCoster {
   get selVarMeanQ(): number { return this.rows[this.lastRow * FIT_SIZE + FIT_VAR_MEAN_Q]; }
   get selVarMeanU(): number { return this.rows[this.lastRow * FIT_SIZE + FIT_VAR_MEAN_U]; }
 }
+
+const LN_2PI = Math.log(2 * Math.PI);
 
 function nextPow2(x: number): number {
   let c = 1;
