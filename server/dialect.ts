@@ -17,6 +17,7 @@ export function sqliteConnectionOptions(filename: string): Knex.Config {
         conn.pragma('foreign_keys = ON');
         conn.pragma('busy_timeout = 5000');
         conn.pragma('synchronous = NORMAL');
+        conn.pragma('cache_size = -65536'); // 64 MiB: the index pages a large batch touches stay cached
         done(null, conn);
       },
     },
@@ -84,6 +85,51 @@ export async function bulkInsert(db: Knex | Knex.Transaction, table: string, row
   }
   const chunk = Math.max(1, Math.min(5000, Math.floor(MAX_BIND_PARAMS / cols.length)));
   for (let i = 0; i < rows.length; i += chunk) await db(table).insert(rows.slice(i, i + chunk));
+}
+
+/**
+ * Insert many rows given as value arrays in the order of `cols` (values: null, number or
+ * string). Same engine paths as bulkInsert, without building an object per row.
+ */
+export async function bulkInsertRows(db: Knex | Knex.Transaction, table: string, cols: readonly string[], rows: unknown[][]): Promise<void> {
+  if (!rows.length) return;
+  if (isSqlite(db as Knex)) {
+    const { stmt } = await cachedStatement(db, `INSERT INTO "${table}" (${cols.map((c) => `"${c}"`).join(',')}) VALUES (${cols.map(() => '?').join(',')})`);
+    for (const r of rows) stmt.run(r);
+    return;
+  }
+  await bulkInsert(db, table, rows.map((r) => Object.fromEntries(cols.map((c, i) => [c, r[i]]))));
+}
+
+/** selectWhereIn, answering value arrays in the order of `cols` (no object per row). */
+export async function selectRowsWhereIn(db: Knex | Knex.Transaction, table: string, column: string, values: (string | number)[], cols: string[]): Promise<unknown[][]> {
+  if (!values.length) return [];
+  if (isSqlite(db as Knex)) {
+    const { stmt } = await cachedStatement(db, `SELECT ${cols.map((c) => `"${c}"`).join(',')} FROM "${table}" WHERE "${column}" IN (SELECT value FROM json_each(?))`);
+    return stmt.raw(true).all(JSON.stringify(values)) as unknown[][];
+  }
+  return (await selectWhereIn<Record<string, unknown>>(db, table, column, values, cols)).map((r) => cols.map((c) => r[c]));
+}
+
+/**
+ * Rows whose integer `column` lies in one of the inclusive, disjoint ranges [lo, hi] (flat
+ * array lo0, hi0, lo1, hi1, …), as value arrays in the order of `cols`. One index seek per range.
+ */
+export async function selectRowsInRanges(db: Knex | Knex.Transaction, table: string, column: string, ranges: number[], cols: string[]): Promise<unknown[][]> {
+  if (!ranges.length) return [];
+  if (isSqlite(db as Knex)) {
+    const { stmt } = await cachedStatement(db, `SELECT ${cols.map((c) => `t."${c}"`).join(',')} FROM json_each(?) AS j CROSS JOIN "${table}" AS t WHERE t."${column}" BETWEEN json_extract(j.value, '$[0]') AND json_extract(j.value, '$[1]')`);
+    const pairs: number[][] = [];
+    for (let i = 0; i < ranges.length; i += 2) pairs.push([ranges[i], ranges[i + 1]]);
+    return stmt.raw(true).all(JSON.stringify(pairs)) as unknown[][];
+  }
+  const out: unknown[][] = [];
+  for (let i = 0; i < ranges.length; i += 2000) {
+    const q = db(table).select(cols);
+    for (let k = i; k < Math.min(ranges.length, i + 2000); k += 2) q.orWhereBetween(column, [ranges[k], ranges[k + 1]]);
+    for (const r of (await q) as Record<string, unknown>[]) out.push(cols.map((c) => r[c]));
+  }
+  return out;
 }
 
 /**

@@ -2,7 +2,9 @@ import type { Knex } from 'knex';
 import { queryDiscNest } from '../science/healpix.js';
 import { angularSeparationDeg } from '../science/separation.js';
 import { INDEX_NSIDE } from '../measurements/derive.js';
-import { selectWhereIn } from '../dialect.js';
+import { selectRowsInRanges, selectRowsWhereIn } from '../dialect.js';
+
+const STAR_COLS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15'];
 
 export interface StarRef {
   id: number;
@@ -19,6 +21,8 @@ export interface MatchQuery {
   sourceId?: string;
   raDeg: number;
   decDeg: number;
+  /** queryDiscNest of the position at the tolerance, when already computed */
+  pixels?: ArrayLike<number> & Iterable<number>;
 }
 
 export type MatchResult =
@@ -44,7 +48,8 @@ export class CrossMatcher {
   ) {}
 
   private pixelCache = new WeakMap<MatchQuery, number[]>();
-  private pixelsFor(q: MatchQuery): number[] {
+  private pixelsFor(q: MatchQuery): Iterable<number> {
+    if (q.pixels) return q.pixels;
     let px = this.pixelCache.get(q);
     if (!px) this.pixelCache.set(q, (px = queryDiscNest(INDEX_NSIDE, q.raDeg, q.decDeg, this.toleranceArcsec / 3600, true)));
     return px;
@@ -66,28 +71,36 @@ export class CrossMatcher {
     else this.byPixel.set(star.hpx15, [star]);
   }
 
-  /** Load every catalog star a chunk of queries could match, in a few IN (…) queries. */
+  /** Load every catalog star a chunk of queries could match, in a few queries. */
   async prefetch(queries: MatchQuery[]): Promise<void> {
-    const cols = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15'];
     const seen = new Set<number>();
-    const add = (rows: StarRef[]) => {
+    const add = (rows: unknown[][]) => {
       for (const r of rows) {
-        if (seen.has(r.id)) continue;
-        seen.add(r.id);
-        if (r.source_id && this.bySource.has(r.source_id)) continue;
-        this.remember({ ...r, hpx15: Number(r.hpx15) });
+        const id = r[0] as number;
+        if (seen.has(id)) continue;
+        seen.add(id);
+        const sourceId = r[2] as string | null;
+        if (sourceId && this.bySource.has(sourceId)) continue;
+        this.remember({ id, name: r[1] as string | null, source_id: sourceId, ra_deg: r[3] as number, dec_deg: r[4] as number, parallax_mas: r[5] as number | null, parallax_err_mas: r[6] as number | null, hpx15: Number(r[7]) });
       }
     };
     // by source_id first; only rows whose id is unknown need the positional look-up
     const sources = [...new Set(queries.map((q) => q.sourceId).filter((s): s is string => !!s && !this.loadedSources.has(s)))];
-    add(await selectWhereIn<StarRef>(this.db, 'stars', 'source_id', sources, cols));
+    add(await selectRowsWhereIn(this.db, 'stars', 'source_id', sources, STAR_COLS));
     for (const s of sources) this.loadedSources.add(s);
     const pixels = new Set<number>();
     for (const q of queries) {
       if (q.sourceId && this.bySource.has(q.sourceId)) continue;
       for (const p of this.pixelsFor(q)) if (!this.loadedPixels.has(p)) pixels.add(p);
     }
-    add(await selectWhereIn<StarRef>(this.db, 'stars', 'hpx15', [...pixels], cols));
+    // neighbouring nested pixels are often consecutive: one range per run
+    const sorted = Float64Array.from(pixels).sort();
+    const ranges: number[] = [];
+    for (let i = 0; i < sorted.length; i++) {
+      if (ranges.length && sorted[i] === ranges[ranges.length - 1] + 1) ranges[ranges.length - 1] = sorted[i];
+      else ranges.push(sorted[i], sorted[i]);
+    }
+    add(await selectRowsInRanges(this.db, 'stars', 'hpx15', ranges, STAR_COLS));
     for (const p of pixels) this.loadedPixels.add(p);
   }
 

@@ -52,6 +52,9 @@ export async function sniffCsv(filePath: string, previewRows = 10): Promise<CsvH
   return { headers, delimiter, preview: records.slice(1, previewRows + 1) };
 }
 
+/** Rows per chunk: each chunk is checked and written as a unit. */
+export const CSV_CHUNK_ROWS = 2000;
+
 export interface CsvRecord {
   line: number;
   fields: string[];
@@ -85,13 +88,23 @@ export async function* readCsvRows(filePath: string, delimiter: string, onBytes?
     }
   })();
   let batch: CsvRecord[] = [];
-  for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
-    batch.push({ line: item.info.lines, fields: item.record });
-    if (batch.length >= 2000) {
-      yield batch;
-      batch = [];
+  let done = false;
+  try {
+    for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+      batch.push({ line: item.info.lines, fields: item.record });
+      if (batch.length >= CSV_CHUNK_ROWS) {
+        yield batch;
+        batch = [];
+      }
+    }
+    await feed;
+    done = true;
+    if (batch.length) yield batch;
+  } finally {
+    // the reader stopped early: release the file
+    if (!done) {
+      input.destroy();
+      parser.destroy();
     }
   }
-  await feed;
-  if (batch.length) yield batch;
 }

@@ -2,19 +2,17 @@ import fs from 'node:fs';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import type { Config } from '../config.js';
-import { bulkInsert, maxId, selectWhereIn, syncIdSequences } from '../dialect.js';
+import { bulkInsertRows, maxId, selectWhereIn, syncIdSequences } from '../dialect.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import type { SessionUser } from '../auth/roles.js';
 import { hasRole } from '../auth/roles.js';
-import { deriveMeasurement, INDEX_NSIDE, type Derived } from '../measurements/derive.js';
-import { derivedColumns } from '../measurements/service.js';
-import { normaliseRow, type RowIssue } from '../measurements/normalise.js';
+import { deriveMeasurement } from '../measurements/derive.js';
+import type { RowIssue } from '../measurements/normalise.js';
 import { checkMapping, missingColumns, proposeMapping, type ColumnMapping, type MappingProposal } from '../measurements/mapping.js';
-import { ang2pixNest } from '../science/healpix.js';
-import { icrsToGalactic } from '../science/frames.js';
-import { designation } from '../measurements/designation.js';
-import { readCsvRows, sniffCsv } from './csv.js';
-import { CrossMatcher, type StarRef } from './crossmatch.js';
+import { sniffCsv } from './csv.js';
+import { CrossMatcher, type MatchQuery, type StarRef } from './crossmatch.js';
+import { NUM, NUM_SLOTS, warningsJsonOf, writeDerived, type PrepareContext, type PreparedChunk } from './prepare.js';
+import { preparedChunks } from './prepare-stream.js';
 import { storeUpload } from './storage.js';
 
 export type BatchState = 'received' | 'needs_mapping' | 'checking' | 'awaiting_review' | 'failed' | 'approved' | 'returned';
@@ -109,7 +107,6 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
     const mapping = parseJson<ColumnMapping>(b.mapping_json, {});
     if (!proposal) throw new Error(`batch ${batchId} has no header information`);
     const headers = proposal.headers;
-    const indexOf = new Map(Object.entries(mapping).map(([canon, header]) => [canon, headers.indexOf(header)]));
     const headerOf = (canon: string) => mapping[canon] ?? canon;
     const instruments = new Map<string, { code: string; bands: string[] }>(
       (await db('instruments').select('code', 'bands')).map((i) => [String(i.code).toLowerCase(), { code: i.code, bands: String(i.bands).split(',') }]),
@@ -131,50 +128,38 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
         // written inside this transaction, so each chunk reads them back like catalog rows.
         let known = new Map<string, { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number }[]>();
 
-        for await (const chunk of readCsvRows(b.stored_path, proposal.delimiter, (bytes) => {
+        const ctx: PrepareContext = { headers, mapping, batchInstrument: b.instrument, instruments: [...instruments], crossmatchArcsec: opts.crossmatchArcsec };
+        const onBytes = (bytes: number) => {
           const p = progress.get(batchId);
           if (p) p.bytesDone = bytes;
-        })) {
-          // 1. parse and check each row
-          const parsed = chunk.map((rec) => {
-            const text: Record<string, string | undefined> = {};
-            for (const [canon, idx] of indexOf) text[canon] = idx >= 0 ? rec.fields[idx] : undefined;
-            const errors: RowIssue[] = [];
-            if (rec.fields.length !== headers.length && !(rec.fields.length > headers.length && rec.fields.slice(headers.length).every((f) => f === ''))) {
-              errors.push({ column: '(row)', field: '(row)', message: `expected ${headers.length} fields as in the header line, found ${rec.fields.length}` });
-            }
-            const res = normaliseRow(text, headerOf, { instrument: b.instrument });
-            errors.push(...res.errors);
-            if (res.row) {
-              const inst = instruments.get(res.row.instrument.toLowerCase());
-              if (!inst) errors.push({ column: headerOf('instrument'), field: 'instrument', value: res.row.instrument, message: `unknown instrument; registered: ${[...instruments.values()].map((i) => i.code).join(', ')}` });
-              else {
-                res.row.instrument = inst.code;
-                if (!inst.bands.includes(res.row.band)) errors.push({ column: headerOf('band'), field: 'band', value: res.row.band, message: `${inst.code} observes in ${inst.bands.join(', ')} only` });
-              }
-            }
-            return { rec, row: errors.length ? null : res.row, errors, warnings: res.warnings };
-          });
-
+        };
+        for await (const c of preparedChunks(b.stored_path, proposal.delimiter, ctx, onBytes, Number(b.size_bytes) >= WORKER_MIN_BYTES)) {
+          const n = c.n;
+          const num = c.num;
           // 2. cross-match the good rows against the catalog (one prefetch per chunk)
-          const positions = parsed.map((p) => {
-            if (!p.row) return null;
-            if (p.row.ra_deg !== undefined) return { raDeg: p.row.ra_deg, decDeg: p.row.dec_deg! };
-            const { derived } = deriveMeasurement(p.row); // galactic input: convert position once
-            return { raDeg: derived.ra_deg, decDeg: derived.dec_deg };
-          });
-          const queries = parsed.map((p, i) => (p.row && positions[i] ? { sourceId: p.row.source_id, ...positions[i]! } : null));
+          const queries: (MatchQuery | null)[] = new Array(n);
+          for (let i = 0; i < n; i++) {
+            if (!c.ok[i]) {
+              queries[i] = null;
+              continue;
+            }
+            const o = i * NUM_SLOTS;
+            const q: MatchQuery = { raDeg: num[o + NUM.pos_ra], decDeg: num[o + NUM.pos_dec] };
+            if (c.sourceId[i] !== null) q.sourceId = c.sourceId[i]!;
+            else q.pixels = c.pix.subarray(c.pixStart[i], c.pixStart[i + 1]);
+            queries[i] = q;
+          }
           matcher.resetChunk();
           known = new Map();
-          await matcher.prefetch(queries.filter((q): q is NonNullable<typeof q> => q !== null));
+          await matcher.prefetch(queries.filter((q): q is MatchQuery => q !== null));
 
-          const newStars: Record<string, unknown>[] = [];
-          const rowsOut: Record<string, unknown>[] = [];
-          const measOut: Record<string, unknown>[] = [];
+          const newStars: unknown[][] = [];
+          const rowsOut: unknown[][] = [];
+          const measOut: unknown[][] = [];
           const toLoad = new Set<number>();
-          const matches = parsed.map((p, i) => {
-            if (!p.row) return null;
-            const m = matcher.match(queries[i]!);
+          const matches = queries.map((q) => {
+            if (!q) return null;
+            const m = matcher.match(q);
             if ((m.kind === 'source_id' || m.kind === 'position') && m.star.id > 0) toLoad.add(m.star.id);
             return m;
           });
@@ -187,76 +172,88 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
             else known.set(k, [r]);
           }
 
-          // 3. derive, de-duplicate, build rows
-          parsed.forEach((p, i) => {
+          // 3. de-duplicate, build rows
+          for (let i = 0; i < n; i++) {
             counts.rows++;
             const rowId = nextRowId++;
-            const base = { id: rowId, batch_id: batchId, line: p.rec.line, values_json: JSON.stringify(p.rec.fields), errors_json: null as string | null, warnings_json: null as string | null, candidates_json: null as string | null, star_match: null as string | null, star_id: null as number | null, measurement_id: null as number | null, duplicate_of: null as number | null };
+            const line = c.lines[i];
             const m = matches[i];
-            if (!p.row || !m) {
+            if (!m) {
               counts.rejected++;
-              rowsOut.push({ ...base, state: 'rejected', errors_json: JSON.stringify(p.errors), warnings_json: p.warnings.length ? JSON.stringify(p.warnings) : null });
-              return;
+              rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'rejected', c.errorsJson[i], c.warningsJson[i], null, null, null, null, null]);
+              continue;
             }
+            const o = i * NUM_SLOTS;
             let star: StarRef | null = null;
+            let starMatch: string | null = null;
             if (m.kind === 'source_id' || m.kind === 'position') {
               star = m.star;
-              base.star_match = m.kind;
+              starMatch = m.kind;
               if (!isNew(star.id)) matched.add(star.id);
             } else if (m.kind === 'none') {
-              const pos = positions[i]!;
+              const plx = num[o + NUM.star_plx];
+              const plxErr = num[o + NUM.star_plx_err];
               star = {
-                id: nextStarId++, name: p.row.name ?? designation(pos.raDeg, pos.decDeg), source_id: p.row.source_id ?? null,
-                ra_deg: pos.raDeg, dec_deg: pos.decDeg, parallax_mas: p.row.parallax_mas ?? null, parallax_err_mas: p.row.parallax_err_mas ?? null,
-                hpx15: ang2pixNest(INDEX_NSIDE, pos.raDeg, pos.decDeg),
+                id: nextStarId++, name: c.starName[i], source_id: c.sourceId[i],
+                ra_deg: num[o + NUM.pos_ra], dec_deg: num[o + NUM.pos_dec], parallax_mas: Number.isNaN(plx) ? null : plx, parallax_err_mas: Number.isNaN(plxErr) ? null : plxErr,
+                hpx15: num[o + NUM.star_hpx15],
               };
-              base.star_match = 'new';
-              const g = icrsToGalactic(pos.raDeg, pos.decDeg);
-              newStars.push({ id: star.id, name: star.name, source_id: star.source_id, ra_deg: star.ra_deg, dec_deg: star.dec_deg, glon_deg: g.lDeg, glat_deg: g.bDeg, parallax_mas: star.parallax_mas, parallax_err_mas: star.parallax_err_mas, hpx15: star.hpx15, created_at: now, created_by: b.uploaded_by });
+              starMatch = 'new';
+              newStars.push([star.id, star.name, star.source_id, star.ra_deg, star.dec_deg, num[o + NUM.star_glon], num[o + NUM.star_glat], star.parallax_mas, star.parallax_err_mas, star.hpx15, now, b.uploaded_by]);
               matcher.remember({ ...star, id: -star.id }); // negative: created in this batch
               counts.newStars++;
             }
-            const fallback = star && star.parallax_mas !== null && star.parallax_err_mas !== null ? { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas } : null;
-            const { derived, warnings } = deriveMeasurement(p.row, fallback);
-            const allWarnings = [...p.warnings, ...warnings.map((w) => ({ ...w, column: headerOf(w.field) }))];
-            if (allWarnings.length) counts.warnings++;
-            base.warnings_json = allWarnings.length ? JSON.stringify(allWarnings) : null;
+            let warningsJson = c.warningsJson[i];
+            const redo = c.redo[i];
+            if (redo && star && star.parallax_mas !== null && star.parallax_err_mas !== null) {
+              // no parallax or distance in the row: derive again with the star's catalog parallax
+              const { derived, warnings } = deriveMeasurement(redo.row, { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas });
+              writeDerived(c, i, derived);
+              warningsJson = warningsJsonOf(redo.warnings, warnings, headerOf);
+            }
+            if (warningsJson !== null) counts.warnings++;
             const measId = nextMeasId++;
             const starId = star ? Math.abs(star.id) : null;
-            base.star_id = starId;
             let state: RowState = 'accepted';
             let measState = 'pending';
+            let candidatesJson: string | null = null;
+            let duplicateOf: number | null = null;
+            const band = c.band[i]!;
+            const instrument = c.instrument[i]!;
+            const mjdRaw = num[o + NUM.mjd];
+            const mjd = Number.isNaN(mjdRaw) ? null : mjdRaw;
+            const q = num[o + NUM.q], u = num[o + NUM.u], qErr = num[o + NUM.q_err], uErr = num[o + NUM.u_err];
             if (m.kind === 'ambiguous') {
               state = 'ambiguous';
               measState = 'ambiguous';
-              base.candidates_json = JSON.stringify(m.candidates.map((c) => ({ id: Math.abs(c.star.id), name: c.star.name, sourceId: c.star.source_id, separationArcsec: Number(c.separationArcsec.toFixed(3)) })));
+              candidatesJson = JSON.stringify(m.candidates.map((x) => ({ id: Math.abs(x.star.id), name: x.star.name, sourceId: x.star.source_id, separationArcsec: Number(x.separationArcsec.toFixed(3)) })));
               counts.ambiguous++;
             } else {
-              const key = `${starId}|${derived.band}|${derived.instrument}`;
-              const list = known.get(key) ?? [];
-              const sameEpoch = list.find((k) => (k.mjd === null && derived.mjd === null) || (k.mjd !== null && derived.mjd !== null && Math.abs(k.mjd - derived.mjd) <= opts.mjdToleranceDays));
+              const key = `${starId}|${band}|${instrument}`;
+              let list = known.get(key);
+              const sameEpoch = list?.find((k) => (k.mjd === null && mjd === null) || (k.mjd !== null && mjd !== null && Math.abs(k.mjd - mjd) <= opts.mjdToleranceDays));
               if (sameEpoch) {
-                const identical = same(sameEpoch.q, derived.q) && same(sameEpoch.u, derived.u) && same(sameEpoch.q_err, derived.q_err) && same(sameEpoch.u_err, derived.u_err);
-                base.duplicate_of = sameEpoch.id;
+                const identical = same(sameEpoch.q, q) && same(sameEpoch.u, u) && same(sameEpoch.q_err, qErr) && same(sameEpoch.u_err, uErr);
+                duplicateOf = sameEpoch.id;
                 if (identical) {
                   counts.duplicates++;
-                  rowsOut.push({ ...base, state: 'duplicate' });
-                  return;
+                  rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'duplicate', null, warningsJson, null, starMatch, starId, null, duplicateOf]);
+                  continue;
                 }
                 state = 'conflict';
                 measState = 'conflict';
                 counts.conflicts++;
               } else counts.accepted++;
-              list.push({ id: measId, mjd: derived.mjd, q: derived.q, u: derived.u, q_err: derived.q_err, u_err: derived.u_err });
-              known.set(key, list);
+              const entry = { id: measId, mjd, q, u, q_err: qErr, u_err: uErr };
+              if (list) list.push(entry);
+              else known.set(key, (list = [entry]));
             }
-            base.measurement_id = measId;
-            rowsOut.push({ ...base, state });
-            measOut.push(measurementRecord(measId, starId, batchId, rowId, measState, derived, now, state === 'conflict' ? base.duplicate_of : null));
-          });
-          await bulkInsert(trx, 'stars', newStars);
-          await bulkInsert(trx, 'batch_rows', rowsOut);
-          await bulkInsert(trx, 'measurements', measOut);
+            rowsOut.push([rowId, batchId, line, c.valuesJson[i], state, null, warningsJson, candidatesJson, starMatch, starId, measId, duplicateOf]);
+            measOut.push(measurementValues(c, i, measId, starId, batchId, rowId, measState, now, state === 'conflict' ? duplicateOf : null));
+          }
+          await bulkInsertRows(trx, 'stars', STAR_COLS, newStars);
+          await bulkInsertRows(trx, 'batch_rows', ROW_COLS, rowsOut);
+          await bulkInsertRows(trx, 'measurements', MEAS_COLS, measOut);
           const p = progress.get(batchId);
           if (p) p.rowsDone = counts.rows;
         }
@@ -435,8 +432,24 @@ export type IntakeService = ReturnType<typeof intakeService>;
 
 const DERIVED_COLUMNS = ['band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'theta_gal_deg', 'glon_deg', 'glat_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'distance_method', 'state', 'flags_json'] as const;
 
-function measurementRecord(id: number, starId: number | null, batchId: number, rowId: number, state: string, d: Derived, now: string, conflictsWith: number | null) {
-  return { id, star_id: starId, batch_id: batchId, batch_row_id: rowId, state, version: 1, ...derivedColumns(d), conflicts_with: conflictsWith, created_at: now, updated_at: now };
+/** Files at least this large are parsed and prepared on a worker thread (startup costs ~0.3 s). */
+const WORKER_MIN_BYTES = 1 << 20;
+
+const STAR_COLS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15', 'created_at', 'created_by'] as const;
+const ROW_COLS = ['id', 'batch_id', 'line', 'values_json', 'state', 'errors_json', 'warnings_json', 'candidates_json', 'star_match', 'star_id', 'measurement_id', 'duplicate_of'] as const;
+/** numeric columns of a measurement, stored from the prepared chunk (NaN = null) */
+const MEAS_NUM = ['ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'hpx15', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'q_gal_err', 'u_gal_err', 'theta_gal_deg', 'parallax_mas', 'parallax_err_mas', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'ebv'] as const;
+const MEAS_COLS = ['id', 'star_id', 'batch_id', 'batch_row_id', 'state', 'version', 'band', 'instrument', 'distance_method', 'flags_json', 'conflicts_with', 'created_at', 'updated_at', ...MEAS_NUM] as const;
+const MEAS_SLOTS = MEAS_NUM.map((k) => NUM[k]);
+
+function measurementValues(c: PreparedChunk, i: number, id: number, starId: number | null, batchId: number, rowId: number, state: string, now: string, conflictsWith: number | null): unknown[] {
+  const v: unknown[] = [id, starId, batchId, rowId, state, 1, c.band[i], c.instrument[i], c.distanceMethod[i], c.flagsJson[i], conflictsWith, now, now];
+  const o = i * NUM_SLOTS;
+  for (const k of MEAS_SLOTS) {
+    const x = c.num[o + k];
+    v.push(Number.isNaN(x) ? null : x);
+  }
+  return v;
 }
 
 function presentRow(r: Record<string, any>, headers: string[]) {
