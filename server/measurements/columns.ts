@@ -22,7 +22,7 @@ const DISTANCE_RULE = 'optional: parallax_mas with parallax_err_mas, or distance
 
 export const COLUMNS: ColumnSpec[] = [
   { name: 'name', kind: 'text', unit: '', required: 'optional', description: 'Star name or designation', synonyms: ['star', 'object', 'designation', 'starname', 'target'] },
-  { name: 'source_id', kind: 'digits', unit: '', required: 'optional (preferred for matching)', description: 'Astrometric catalog source identifier (64-bit; kept as text, never rounded)', synonyms: ['sourceid', 'gaiaid', 'gaiasourceid', 'dr3sourceid', 'gaiadr3', 'source'] },
+  { name: 'source_id', kind: 'digits', unit: '', required: 'optional (preferred for matching)', description: 'Astrometric catalog source identifier (64-bit; kept as text, never rounded)', synonyms: ['sourceid', 'source', 'astrometricid', 'catalogid'] },
   { name: 'ra_deg', kind: 'ra', unit: 'deg (or h:m:s text)', required: POSITION_RULE, description: 'ICRS right ascension: decimal degrees, or sexagesimal hours such as 05:34:31.9', synonyms: ['ra', 'raj2000', 'raicrs', 'radeg', 'alpha'] },
   { name: 'dec_deg', kind: 'dec', unit: 'deg (or d:m:s text)', required: POSITION_RULE, description: 'ICRS declination: decimal degrees, or sexagesimal such as +22 00 52', synonyms: ['dec', 'de', 'dej2000', 'decj2000', 'deicrs', 'decdeg', 'dedeg', 'delta'] },
   { name: 'glon_deg', kind: 'number', unit: 'deg', required: POSITION_RULE, description: 'Galactic longitude l', synonyms: ['glon', 'l', 'lii', 'gall'] },
