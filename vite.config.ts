@@ -7,13 +7,16 @@ const apiPort = Number(process.env.API_PORT ?? 3001);
 
 export default defineConfig({
   plugins: [react(), tailwindcss()],
-  root: '.',
-  build: { outDir: 'dist', emptyOutDir: true, chunkSizeWarningLimit: 1500 },
+  // the client lives in src/ (index.html, public/); the build goes to dist/ at the top
+  root: 'src',
+  build: { outDir: '../dist', emptyOutDir: true, chunkSizeWarningLimit: 1500 },
   server: {
     port: Number(process.env.PORT ?? 5173),
     proxy: { '/api': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false } },
   },
   test: {
+    // tests live at the top, outside the client root
+    root: process.cwd(),
     include: ['tests/**/*.test.ts'],
     environment: 'node',
     testTimeout: 30_000,
