@@ -1,5 +1,6 @@
 /** Shapes of the catalog API (base /api/v1). Source identifiers stay text; positions ICRS degrees. */
 import type { MeasurementState } from '../review/types';
+import type { CombinedMeasurement } from '../../../server/science/combine';
 
 export interface Star {
   id: number;
@@ -63,23 +64,9 @@ export interface StarMeasurement {
 }
 
 /** Inverse-variance weighted q, u of the approved measurements in one band and instrument, with the χ² consistency test. */
-export interface CombinedValue {
+export interface CombinedValue extends CombinedMeasurement {
   band: string;
   instrument: string;
-  q: number;
-  u: number;
-  qErr: number;
-  uErr: number;
-  p: number;
-  pErr: number;
-  pDebiased: number;
-  thetaDeg: number;
-  thetaErrDeg: number;
-  n: number;
-  chi2: number;
-  dof: number;
-  tailProbability: number;
-  inconsistent: boolean;
 }
 
 export interface StarDetail {

@@ -1,4 +1,5 @@
 /** Shapes of the intake API (base /api/v1). Source identifiers stay text end to end. */
+import type { Derived } from '../../../server/measurements/derive';
 
 export type BatchState = 'received' | 'needs_mapping' | 'checking' | 'awaiting_review' | 'failed' | 'approved' | 'returned';
 export type RowState = 'accepted' | 'rejected' | 'duplicate' | 'conflict' | 'ambiguous';
@@ -48,29 +49,8 @@ export interface Batch {
   failure: string | null;
 }
 
-export interface DerivedValues {
-  q: number;
-  u: number;
-  q_err: number;
-  u_err: number;
-  p: number;
-  p_err: number;
-  p_debiased: number;
-  theta_deg: number;
-  theta_err_deg: number;
-  q_gal: number;
-  u_gal: number;
-  theta_gal_deg: number;
-  glon_deg: number;
-  glat_deg: number;
-  distance_pc: number | null;
-  distance_lo_pc: number | null;
-  distance_hi_pc: number | null;
-  distance_method: string | null;
-  band: string;
-  instrument: string;
-  mjd: number | null;
-}
+/** The derived values of a row: the server's own type (server/measurements/derive.ts), without its flags. */
+export type DerivedValues = Omit<Derived, 'flags' | 'ra_deg' | 'dec_deg' | 'hpx15' | 'q_gal_err' | 'u_gal_err' | 'parallax_mas' | 'parallax_err_mas' | 'ebv'>;
 
 export interface BatchRow {
   /** 1-based line in the file; the header is line 1 */
