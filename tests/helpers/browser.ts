@@ -9,7 +9,8 @@ import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 import { makeTestApp, type TestApp } from './app.js';
 
 export const CHROMIUM = process.env.STARVEIL_CHROMIUM ?? '/usr/bin/chromium';
-export const DIST = path.resolve('dist');
+/** the built client; STARVEIL_TEST_DIST lets parallel work build to a folder of its own */
+export const DIST = path.resolve(process.env.STARVEIL_TEST_DIST ?? 'dist');
 
 /** Browser tests need Debian's chromium and the built client; under CI=true their absence is a failure. */
 export function browserAvailable(): { ok: boolean; why?: string } {
