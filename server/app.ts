@@ -27,9 +27,11 @@ import { mailRoutes } from './mail/routes.js';
 import { tokenService, type TokenService } from './tokens/service.js';
 import { tokenRoutes } from './tokens/routes.js';
 import { bearerTokenAuth } from './tokens/middleware.js';
+import { sameOriginWrites } from './auth/origin.js';
 import { skyService } from './masks/service.js';
 import { maskRoutes } from './masks/routes.js';
 import { apiDocsPage, openApiRoutes } from './openapi/routes.js';
+import { calibrationRoutes, calibrationService, plausibilityService } from './calibration/index.js';
 
 export interface AppDeps {
   db: Knex;
@@ -52,7 +54,7 @@ export interface AppServices {
 export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const { db, config } = deps;
   const app = express();
-  app.set('trust proxy', 'loopback');
+  app.set('trust proxy', config.trustProxy); // TRUST_PROXY; off unless configured
   app.disable('x-powered-by');
   app.use(
     helmet({
@@ -89,6 +91,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const sky = skyService(deps.readDb ?? db, tomography);
 
   const api = express.Router();
+  api.use(sameOriginWrites(config)); // cookie writes only from this site's pages (server/auth/origin.ts)
   api.use(express.json({ limit: '2mb' }));
   api.use(
     session({
@@ -120,6 +123,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(mailRoutes({ db, mailer, config }));
   api.use(tokenRoutes({ tokens }));
   api.use(maskRoutes({ sky }));
+  api.use(calibrationRoutes({ db, calibration: calibrationService(db, deps.readDb ?? db), plausibility: plausibilityService(db, deps.readDb ?? db) }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
   app.use('/api/v1', api);

@@ -18,6 +18,13 @@ export interface Config {
   /** How long an e-mailed password-reset link works. */
   passwordResetMinutes: number;
   publicUrl: string;
+  /** Extra origins whose pages may write with the session cookie (ALLOWED_ORIGINS, comma-separated). */
+  allowedOrigins: string[];
+  /**
+   * Express `trust proxy` (TRUST_PROXY): false unless set. Only then are X-Forwarded-For/-Proto believed,
+   * so sign-in limits key on the real client address and nobody can pick their own.
+   */
+  trustProxy: boolean | number | string;
   distDir: string;
   seedDemo: boolean;
   intake: { crossmatchArcsec: number; mjdToleranceDays: number; syncBytes: number };
@@ -31,6 +38,17 @@ function intVar(env: NodeJS.ProcessEnv, name: string, fallback: number, min = 0)
   const n = Number(raw);
   if (!Number.isInteger(n) || n < min) throw new ConfigError(`${name} must be an integer ≥ ${min}, got "${raw}"`);
   return n;
+}
+
+/** TRUST_PROXY: unset/""/false/0 → false; a hop count; or addresses/subnets/names such as "loopback" or "10.0.0.0/8,uniquelocal". */
+function trustProxyVar(raw: string | undefined): boolean | number | string {
+  if (raw === undefined) return false;
+  const v = raw.trim();
+  if (v === '' || v === 'false' || v === '0') return false;
+  if (/^[1-9]\d{0,1}$/.test(v)) return Number(v);
+  if (v === 'true') throw new ConfigError('TRUST_PROXY=true would believe X-Forwarded-For from anyone; give the hop count or the proxy addresses (e.g. "loopback" or "1")');
+  if (!/^[\w.:/,\s-]+$/.test(v)) throw new ConfigError(`TRUST_PROXY must be a hop count or comma-separated addresses, subnets or names (loopback, linklocal, uniquelocal), got "${raw}"`);
+  return v;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
@@ -61,6 +79,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     mail: { transport, from: env.MAIL_FROM ?? 'Starveil <no-reply@starveil.example>', smtpUrl: env.SMTP_URL },
     passwordResetMinutes: intVar(env, 'PASSWORD_RESET_MINUTES', 60, 1),
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
+    allowedOrigins: (env.ALLOWED_ORIGINS ?? '').split(',').map((o) => o.trim()).filter(Boolean),
+    trustProxy: trustProxyVar(env.TRUST_PROXY),
     distDir: path.resolve(env.STARVEIL_DIST ?? 'dist'),
     seedDemo: env.STARVEIL_SEED !== '0',
     intake: {

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
-import { makeTestApp, signedIn, DEMO, type TestApp } from '../helpers/app.js';
+import { browserLikeAgent, makeTestApp, signedIn, DEMO, type TestApp } from '../helpers/app.js';
 import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 
 let t: TestApp;
@@ -160,7 +160,7 @@ describe('own password', () => {
   it('changes the password; the old one stops working', async () => {
     const admin = await signedIn(t.app, 'admin');
     await admin.post('/api/v1/admin/users').send({ email: 'pw@kestrel.example', name: 'Pw', role: 'modeler', password: 'first-password' });
-    const agent = request.agent(t.app);
+    const agent = browserLikeAgent(t.app);
     await agent.post('/api/v1/auth/login').send({ email: 'pw@kestrel.example', password: 'first-password' });
     const wrong = await agent.post('/api/v1/me/password').send({ currentPassword: 'not-it', newPassword: 'second-password' });
     expect(wrong.status).toBe(400);

@@ -398,7 +398,7 @@ describe('live answers match the document (drift)', () => {
     await hit(admin, 'patch', `/admin/users/${created.body.id}`, '/admin/users/:id', 200, { name: 'Drift Probe II' });
     await hit(admin, 'patch', '/admin/users/999999', '/admin/users/:id', 404, { name: 'Nobody' });
 
-    const probe = request.agent(t.app);
+    const probe = request.agent(t.app).set('Origin', t.config.publicUrl); // writes with the cookie carry this site's Origin
     await hit(probe, 'post', '/auth/login', '/auth/login', 200, { email, password: 'first-probe-password' });
     await hit(probe, 'post', '/me/password', '/me/password', 204, { currentPassword: 'first-probe-password', newPassword: 'second-probe-password' });
     await hit(probe, 'post', '/me/password', '/me/password', 400, { currentPassword: 'wrong-password', newPassword: 'third-probe-password' });

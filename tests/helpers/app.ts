@@ -17,6 +17,9 @@ export interface TestApp {
   close: () => Promise<void>;
 }
 
+/** Each test app's PUBLIC_URL, so agents can send the Origin of this site. */
+const publicUrls = new WeakMap<object, string>();
+
 /** A fresh app on its own temporary SQLite file, migrated and seeded with the demo. */
 export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?: boolean; tomography?: boolean } = {}): Promise<TestApp> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-test-'));
@@ -32,6 +35,7 @@ export async function makeTestApp(overrides: Partial<Config> = {}, opts: { seed?
   if (opts.seed !== false) await seedDemoIfEmpty(db, config, { tomography: opts.tomography ?? false });
   const readDb = openDb(config.dbFile);
   const app = createApp({ db, readDb, config });
+  publicUrls.set(app, config.publicUrl);
   return {
     app, db, config, dir,
     close: async () => {
@@ -49,9 +53,17 @@ export const DEMO = {
   admin: 'admin@kestrel.example',
 } as const;
 
-/** A supertest agent signed in as the given demo role (keeps its cookie). */
+/**
+ * A supertest agent that behaves like a page of this site: it keeps its cookie and sends
+ * `Origin: PUBLIC_URL` on every request, as a browser does on writes (server/auth/origin.ts).
+ */
+export function browserLikeAgent(app: TestApp['app'], origin = publicUrls.get(app) ?? 'http://localhost:3000') {
+  return request.agent(app).set('Origin', origin);
+}
+
+/** A supertest agent signed in as the given demo role (keeps its cookie, sends this site's Origin). */
 export async function signedIn(app: TestApp['app'], role: keyof typeof DEMO) {
-  const agent = request.agent(app);
+  const agent = browserLikeAgent(app);
   const res = await agent.post('/api/v1/auth/login').send({ email: DEMO[role], password: DEMO_PASSWORD });
   if (res.status !== 200) throw new Error(`sign-in as ${role} failed: ${res.status} ${JSON.stringify(res.body)}`);
   return agent;
