@@ -1,0 +1,398 @@
+import type { Knex } from 'knex';
+import { recordAudit } from '../audit/service.js';
+import { AppError, badRequest, notFound } from '../errors.js';
+import { deriveMeasurement, type Derived } from '../measurements/derive.js';
+import type { CanonicalRow } from '../measurements/normalise.js';
+import { angleZeroPoint, applyCalibration, instrumentalPolarization, nightOfMjd, standardNameKey, type CalibrationTerms } from '../science/calibration.js';
+import { propagateStokesErrors } from '../science/polarization.js';
+import { angularSeparationDeg } from '../science/separation.js';
+
+/** A row within this distance of a standard's recorded position is that standard (arcsec). */
+export const STANDARD_MATCH_RADIUS_ARCSEC = 5;
+
+export interface StandardStar {
+  id: number;
+  name: string;
+  band: string;
+  kind: 'polarized' | 'unpolarized';
+  p: number;
+  pErr: number | null;
+  thetaDeg: number | null;
+  thetaErrDeg: number | null;
+  raDeg: number | null;
+  decDeg: number | null;
+  source: string;
+  fromMemory: boolean;
+  note: string | null;
+  createdAt: string;
+}
+
+const toStandard = (r: any): StandardStar => ({
+  id: r.id, name: r.name, band: r.band, kind: r.kind, p: r.p, pErr: r.p_err, thetaDeg: r.theta_deg, thetaErrDeg: r.theta_err_deg,
+  raDeg: r.ra_deg, decDeg: r.dec_deg, source: r.source, fromMemory: Boolean(r.from_memory), note: r.note, createdAt: r.created_at,
+});
+
+/** One standard-star row of a batch and how it entered (or did not enter) the calibration. */
+export interface StandardResidual {
+  measurementId: number;
+  line: number;
+  name: string;
+  standardId: number;
+  standardName: string;
+  kind: 'polarized' | 'unpolarized';
+  matchedBy: 'name' | 'position';
+  used: boolean;
+  note: string | null;
+  mjd: number | null;
+  q: number;
+  u: number;
+  qErr: number;
+  uErr: number;
+  pRef: number;
+  thetaRefDeg: number | null;
+  /** after the instrumental (q, u) is subtracted */
+  pObs: number;
+  thetaObsDeg: number;
+  thetaObsErrDeg: number;
+  /** θ_obs − θ_ref (polarized standards), wrapped to (−90°, 90°] */
+  offsetDeg: number | null;
+  /** offset − zero-point (polarized) */
+  residualDeg: number | null;
+  /** p_obs − p_ref (polarized) */
+  pResidual: number | null;
+  /** q − q̄_inst, u − ū_inst (unpolarized) */
+  qResidual: number | null;
+  uResidual: number | null;
+  source: string;
+}
+
+export interface CalibrationGroup {
+  id: number | null;
+  state: 'derived' | 'applied' | 'reverted';
+  instrument: string;
+  band: string;
+  night: string | null;
+  zeroPointDeg: number | null;
+  zeroPointErrDeg: number | null;
+  instrumentalQ: number | null;
+  instrumentalU: number | null;
+  instrumentalQErr: number | null;
+  instrumentalUErr: number | null;
+  nPolarized: number;
+  nUnpolarized: number;
+  /** rows of the batch in this instrument, band and night (the rows an apply changes) */
+  rows: number;
+  instrumentalChi2: number | null;
+  instrumentalDof: number | null;
+  zeroPointScatterDeg: number | null;
+  appliedAt: string | null;
+  appliedBy: { id: number; name: string } | null;
+  revertedAt: string | null;
+  standards: StandardResidual[];
+}
+
+/** Persisted columns of a derived measurement (as the measurement service stores them). */
+function derivedColumns(d: Derived) {
+  const { flags, ...values } = d;
+  return { ...values, flags_json: flags.length ? JSON.stringify(flags) : null };
+}
+
+type Meas = Record<string, any> & { id: number; version: number };
+
+const groupKey = (instrument: string, band: string, night: string | null) => `${instrument}\u0000${band}\u0000${night ?? ''}`;
+
+/** The stored measurement as the canonical row deriveMeasurement takes, with (q, u) replaced. */
+function canonicalWithStokes(m: Meas, s: { q: number; u: number; qErr: number; uErr: number }): CanonicalRow {
+  const row: CanonicalRow = { ra_deg: m.ra_deg, dec_deg: m.dec_deg, band: m.band, instrument: m.instrument, q: s.q, u: s.u, q_err: s.qErr, u_err: s.uErr, angle_frame: 'equatorial' };
+  if (m.mjd !== null) row.mjd = m.mjd;
+  if (m.ebv !== null) row.ebv = m.ebv;
+  if (m.distance_method === 'given') {
+    row.distance_pc = m.distance_pc;
+    row.distance_err_pc = (m.distance_hi_pc - m.distance_lo_pc) / 2;
+  } else if (m.parallax_mas !== null && m.parallax_err_mas !== null) {
+    row.parallax_mas = m.parallax_mas;
+    row.parallax_err_mas = m.parallax_err_mas;
+  }
+  return row;
+}
+
+/** The columns deriveMeasurement writes, plus what identifies the version: kept to restore on revert. */
+const SNAPSHOT = ['q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'q_gal_err', 'u_gal_err', 'theta_gal_deg', 'flags_json', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'distance_method', 'parallax_mas', 'parallax_err_mas', 'version'];
+const snapshot = (m: Meas) => Object.fromEntries(SNAPSHOT.map((k) => [k, m[k] ?? null]));
+
+/**
+ * Calibration from standard stars: recognise a batch's standard rows, derive per instrument, band and
+ * night the instrumental (q, u) and the angle zero-point, apply them to every row of that group as one
+ * audited transformation (values before and after kept per row), and revert.
+ */
+export function calibrationService(db: Knex, readDb: Knex = db) {
+  async function standards(k: Knex | Knex.Transaction = readDb): Promise<StandardStar[]> {
+    return (await k('standard_stars').orderBy(['name_key', 'band'])).map(toStandard);
+  }
+
+  /** Measurements of a batch with the name given in the upload and the tied star's name. */
+  async function batchRows(k: Knex | Knex.Transaction, batchId: number) {
+    const batch = await k('batches').where({ id: batchId }).first();
+    if (!batch) throw notFound(`Batch ${batchId}`);
+    const mapping = batch.mapping_json ? (JSON.parse(batch.mapping_json) as Record<string, string>) : {};
+    const rows = await k('measurements as m')
+      .join('batch_rows as r', 'r.id', 'm.batch_row_id')
+      .leftJoin('stars as s', 's.id', 'm.star_id')
+      .where('m.batch_id', batchId)
+      .orderBy('r.line')
+      .select('m.*', 'r.line', 'r.values_json', 's.name as star_name');
+    return {
+      batch,
+      rows: rows.map((r: any) => {
+        const values = JSON.parse(r.values_json) as Record<string, string>;
+        const given = mapping.name ? values[mapping.name] : undefined;
+        const { values_json: _v, ...rest } = r;
+        return { ...rest, given_name: given && given.trim() ? given.trim() : null } as Meas & { line: number; given_name: string | null; star_name: string | null };
+      }),
+    };
+  }
+
+  /** Which rows are standards: by name (case and spacing ignored) or within 5″ of a recorded position. */
+  function recognise(rows: Awaited<ReturnType<typeof batchRows>>['rows'], stds: StandardStar[]) {
+    const byKey = new Map<string, StandardStar[]>();
+    for (const s of stds) {
+      const key = standardNameKey(s.name);
+      byKey.set(key, [...(byKey.get(key) ?? []), s]);
+    }
+    const positioned = stds.filter((s) => s.raDeg !== null && s.decDeg !== null);
+    const out = new Map<number, { entries: StandardStar[]; matchedBy: 'name' | 'position'; name: string }>();
+    for (const r of rows) {
+      for (const n of [r.given_name, r.star_name]) {
+        if (!n) continue;
+        const hit = byKey.get(standardNameKey(n));
+        if (hit) {
+          out.set(r.id, { entries: hit, matchedBy: 'name', name: n });
+          break;
+        }
+      }
+      if (out.has(r.id)) continue;
+      const near = positioned.filter((s) => angularSeparationDeg(r.ra_deg, r.dec_deg, s.raDeg!, s.decDeg!) * 3600 <= STANDARD_MATCH_RADIUS_ARCSEC);
+      if (near.length) {
+        const key = standardNameKey(near[0].name);
+        out.set(r.id, { entries: byKey.get(key) ?? near, matchedBy: 'position', name: r.given_name ?? r.star_name ?? near[0].name });
+      }
+    }
+    return out;
+  }
+
+  /** Derive the calibrations of a batch from its current (uncalibrated) values. */
+  async function derive(k: Knex | Knex.Transaction, batchId: number) {
+    const { batch, rows } = await batchRows(k, batchId);
+    const stds = await standards(k);
+    const recognised = recognise(rows, stds);
+    type Row = (typeof rows)[number];
+    const groups = new Map<string, { instrument: string; band: string; night: string | null; rows: Row[]; std: Row[] }>();
+    for (const r of rows) {
+      const night = nightOfMjd(r.mjd);
+      const key = groupKey(r.instrument, r.band, night);
+      const g = groups.get(key) ?? { instrument: r.instrument, band: r.band, night, rows: [] as Row[], std: [] as Row[] };
+      g.rows.push(r);
+      if (recognised.has(r.id) && r.state !== 'rejected') g.std.push(r);
+      groups.set(key, g);
+    }
+    const calibrations: CalibrationGroup[] = [];
+    const uncalibrated: { instrument: string; band: string; night: string | null; rows: number }[] = [];
+    for (const g of groups.values()) {
+      if (!g.std.length) {
+        uncalibrated.push({ instrument: g.instrument, band: g.band, night: g.night, rows: g.rows.length });
+        continue;
+      }
+      // the reference for this band; an unpolarized standard is unpolarized in every band (its listed p is an upper value)
+      const pick = (r: (typeof rows)[0]) => {
+        const entries = recognised.get(r.id)!.entries;
+        const same = entries.find((e) => e.band === r.band);
+        if (same) return { ref: same, note: null as string | null };
+        const unpol = entries.find((e) => e.kind === 'unpolarized');
+        if (unpol) return { ref: unpol, note: `reference from band ${unpol.band}: unpolarized standard` };
+        return { ref: entries[0], note: `no reference value in band ${r.band} (only ${entries.map((e) => e.band).join(', ')}): not used` };
+      };
+      const picked = g.std.map((r) => ({ r, ...pick(r) }));
+      const unpol = picked.filter((x) => x.ref.kind === 'unpolarized' && (x.ref.band === x.r.band || x.note?.startsWith('reference from')));
+      const pol = picked.filter((x) => x.ref.kind === 'polarized' && x.ref.band === x.r.band);
+      const inst = unpol.length ? instrumentalPolarization(unpol.map((x) => ({ q: x.r.q, u: x.r.u, qErr: x.r.q_err, uErr: x.r.u_err, refPFraction: x.ref.p }))) : null;
+      const instTerms = inst ? { q: inst.q, u: inst.u, qErr: inst.qErr, uErr: inst.uErr } : { q: 0, u: 0, qErr: 0, uErr: 0 };
+      const zp = pol.length ? angleZeroPoint(pol.map((x) => ({ q: x.r.q, u: x.r.u, qErr: x.r.q_err, uErr: x.r.u_err, thetaRefDeg: x.ref.thetaDeg!, thetaRefErrDeg: x.ref.thetaErrDeg ?? 0 })), instTerms) : null;
+      const standardsOut: StandardResidual[] = picked.map((x) => {
+        const fa = propagateStokesErrors(x.r.q - instTerms.q, x.r.u - instTerms.u, Math.hypot(x.r.q_err, instTerms.qErr), Math.hypot(x.r.u_err, instTerms.uErr));
+        const polIdx = pol.indexOf(x);
+        const used = polIdx >= 0 || unpol.includes(x);
+        const z = polIdx >= 0 && zp ? zp.standards[polIdx] : null;
+        return {
+          measurementId: x.r.id, line: x.r.line, name: recognised.get(x.r.id)!.name, standardId: x.ref.id, standardName: x.ref.name, kind: x.ref.kind,
+          matchedBy: recognised.get(x.r.id)!.matchedBy, used, note: x.note, mjd: x.r.mjd, q: x.r.q, u: x.r.u, qErr: x.r.q_err, uErr: x.r.u_err,
+          pRef: x.ref.p, thetaRefDeg: x.ref.thetaDeg, pObs: fa.p, thetaObsDeg: fa.thetaDeg, thetaObsErrDeg: fa.thetaErrDeg,
+          offsetDeg: z ? z.offsetDeg : null, residualDeg: z ? z.residualDeg : null, pResidual: z ? fa.p - x.ref.p : null,
+          qResidual: x.ref.kind === 'unpolarized' && inst ? x.r.q - inst.q : null, uResidual: x.ref.kind === 'unpolarized' && inst ? x.r.u - inst.u : null,
+          source: x.ref.source + (x.ref.fromMemory ? ' (from memory)' : ''),
+        };
+      });
+      calibrations.push({
+        id: null, state: 'derived', instrument: g.instrument, band: g.band, night: g.night,
+        zeroPointDeg: zp ? zp.zeroPointDeg : null, zeroPointErrDeg: zp ? zp.zeroPointErrDeg : null,
+        instrumentalQ: inst ? inst.q : null, instrumentalU: inst ? inst.u : null, instrumentalQErr: inst ? inst.qErr : null, instrumentalUErr: inst ? inst.uErr : null,
+        nPolarized: pol.length, nUnpolarized: unpol.length, rows: g.rows.length,
+        instrumentalChi2: inst ? inst.chi2 : null, instrumentalDof: inst ? inst.dof : null, zeroPointScatterDeg: zp?.externalErrDeg != null ? zp.externalErrDeg * Math.sqrt(pol.length) : null,
+        appliedAt: null, appliedBy: null, revertedAt: null, standards: standardsOut,
+      });
+    }
+    calibrations.sort((a, b) => groupKey(a.instrument, a.band, a.night).localeCompare(groupKey(b.instrument, b.band, b.night)));
+    return { batch, rows, groups, calibrations, uncalibrated };
+  }
+
+  const fromStored = (c: any, users: Map<number, string>): CalibrationGroup => {
+    const extra = JSON.parse(c.standards_json) as { standards: StandardResidual[]; nPolarized: number; nUnpolarized: number; rows: number; instrumentalChi2: number | null; instrumentalDof: number | null; zeroPointScatterDeg: number | null };
+    return {
+      id: c.id, state: c.state, instrument: c.instrument, band: c.band, night: c.night,
+      zeroPointDeg: c.zero_point_deg, zeroPointErrDeg: c.zero_point_err_deg, instrumentalQ: c.instrumental_q, instrumentalU: c.instrumental_u, instrumentalQErr: c.instrumental_q_err, instrumentalUErr: c.instrumental_u_err,
+      nPolarized: extra.nPolarized, nUnpolarized: extra.nUnpolarized, rows: c.rows_calibrated, instrumentalChi2: extra.instrumentalChi2, instrumentalDof: extra.instrumentalDof, zeroPointScatterDeg: extra.zeroPointScatterDeg,
+      appliedAt: c.applied_at, appliedBy: { id: c.applied_by, name: users.get(c.applied_by) ?? '' }, revertedAt: c.reverted_at, standards: extra.standards,
+    };
+  };
+
+  async function userNames(k: Knex | Knex.Transaction, ids: number[]) {
+    const rows = ids.length ? await k('users').whereIn('id', [...new Set(ids)]).select('id', 'name') : [];
+    return new Map<number, string>(rows.map((u: any) => [u.id, u.name]));
+  }
+
+  return {
+    standards: () => standards(),
+
+    async addStandard(actorId: number, body: { name: string; band: string; p?: number; pPct?: number; pErr?: number; thetaDeg?: number | null; thetaErrDeg?: number; raDeg?: number; decDeg?: number; source: string; fromMemory?: boolean; note?: string }) {
+      const p = body.p ?? (body.pPct !== undefined ? body.pPct / 100 : undefined);
+      if (p === undefined) throw badRequest('p (fraction) or pPct (percent) is required', { fields: [{ field: 'p', message: 'expected p or pPct' }] });
+      if ((body.raDeg === undefined) !== (body.decDeg === undefined)) throw badRequest('raDeg and decDeg go together', { fields: [{ field: body.raDeg === undefined ? 'raDeg' : 'decDeg', message: 'expected both or neither' }] });
+      const kind = body.thetaDeg === undefined || body.thetaDeg === null ? 'unpolarized' : 'polarized';
+      const name_key = standardNameKey(body.name);
+      if (!name_key) throw badRequest('name must contain more than spaces', { fields: [{ field: 'name', message: 'expected a star name' }] });
+      return db.transaction(async (trx) => {
+        const dupe = await trx('standard_stars').where({ name_key, band: body.band }).first();
+        if (dupe) throw new AppError(409, 'duplicate_standard', `${dupe.name} already has a ${body.band}-band reference (entry ${dupe.id}).`, { id: dupe.id });
+        const row = {
+          name: body.name.trim(), name_key, band: body.band, kind, p, p_err: body.pErr ?? null, theta_deg: kind === 'polarized' ? body.thetaDeg : null, theta_err_deg: body.thetaErrDeg ?? null,
+          ra_deg: body.raDeg ?? null, dec_deg: body.decDeg ?? null, source: body.source.trim(), from_memory: body.fromMemory ?? false, note: body.note ?? null, created_by: actorId, created_at: new Date().toISOString(),
+        };
+        const [id] = await trx('standard_stars').insert(row);
+        const saved = await trx('standard_stars').where({ id: typeof id === 'object' ? (id as any).id : id }).first();
+        await recordAudit(trx, { actorId, action: 'standard.create', entityType: 'standard_star', entityId: saved.id, after: toStandard(saved) });
+        return toStandard(saved);
+      });
+    },
+
+    /** GET …/calibration: the applied calibration if there is one, else what the standards give now. */
+    async forBatch(batchId: number) {
+      const applied = await readDb('calibrations').where({ batch_id: batchId, state: 'applied' }).orderBy('id');
+      if (applied.length) {
+        const users = await userNames(readDb, applied.map((c: any) => c.applied_by));
+        const b = await readDb('batches').where({ id: batchId }).first('id');
+        if (!b) throw notFound(`Batch ${batchId}`);
+        const total = await readDb('measurements').where({ batch_id: batchId }).count({ n: '*' }).first();
+        const calibrated = applied.reduce((s: number, c: any) => s + c.rows_calibrated, 0);
+        return { batchId, applied: true, calibrations: applied.map((c: any) => fromStored(c, users)), uncalibratedRows: Number(total?.n ?? 0) - calibrated };
+      }
+      const { calibrations, uncalibrated } = await derive(readDb, batchId);
+      return { batchId, applied: false, calibrations, uncalibratedRows: uncalibrated.reduce((s, u) => s + u.rows, 0) };
+    },
+
+    /** Apply every derived calibration of the batch once, as one audited transaction. */
+    async apply(actorId: number, batchId: number, reason: string | null) {
+      return db.transaction(async (trx) => {
+        const already = await trx('calibrations').where({ batch_id: batchId, state: 'applied' }).first();
+        if (already) throw new AppError(409, 'already_calibrated', `Batch ${batchId} is already calibrated (calibration ${already.id}, applied ${already.applied_at}); revert it first to apply again.`, { calibrationId: already.id });
+        const { groups, calibrations } = await derive(trx, batchId);
+        const usable = calibrations.filter((c) => c.zeroPointDeg !== null || c.instrumentalQ !== null);
+        if (!usable.length) throw new AppError(409, 'no_standards', `Batch ${batchId} has no usable standard-star rows: nothing to calibrate with (recognised standards: ${calibrations.reduce((s, c) => s + c.standards.length, 0)}).`);
+        const now = new Date().toISOString();
+        const audits: Parameters<typeof recordAudit>[1] = [];
+        const out: { id: number; instrument: string; band: string; night: string | null; rowsCalibrated: number }[] = [];
+        for (const c of usable) {
+          const g = groups.get(groupKey(c.instrument, c.band, c.night))!;
+          const terms: CalibrationTerms = {
+            instrumentalQ: c.instrumentalQ ?? 0, instrumentalU: c.instrumentalU ?? 0, instrumentalQErr: c.instrumentalQErr ?? 0, instrumentalUErr: c.instrumentalUErr ?? 0,
+            zeroPointDeg: c.zeroPointDeg ?? 0, zeroPointErrDeg: c.zeroPointErrDeg ?? 0,
+          };
+          const [insId] = await trx('calibrations').insert({
+            batch_id: batchId, instrument: c.instrument, band: c.band, night: c.night, zero_point_deg: c.zeroPointDeg, zero_point_err_deg: c.zeroPointErrDeg,
+            instrumental_q: c.instrumentalQ, instrumental_u: c.instrumentalU, instrumental_q_err: c.instrumentalQErr, instrumental_u_err: c.instrumentalUErr,
+            standards_json: JSON.stringify({ standards: c.standards, nPolarized: c.nPolarized, nUnpolarized: c.nUnpolarized, rows: c.rows, instrumentalChi2: c.instrumentalChi2, instrumentalDof: c.instrumentalDof, zeroPointScatterDeg: c.zeroPointScatterDeg }),
+            state: 'applied', rows_calibrated: g.rows.length, applied_by: actorId, applied_at: now,
+          });
+          const calId = typeof insId === 'object' ? (insId as any).id : (insId as number);
+          const starIds = [...new Set(g.rows.map((r) => r.star_id).filter((x): x is number => x !== null))];
+          const stars = new Map<number, any>();
+          for (let i = 0; i < starIds.length; i += 900) for (const s of await trx('stars').whereIn('id', starIds.slice(i, i + 900)).select('id', 'parallax_mas', 'parallax_err_mas')) stars.set(s.id, s);
+          const links: Record<string, unknown>[] = [];
+          for (const m of g.rows) {
+            const cal = applyCalibration({ q: m.q, u: m.u, qErr: m.q_err, uErr: m.u_err }, terms);
+            const star = m.star_id ? stars.get(m.star_id) : null;
+            const fallback = star && star.parallax_mas !== null && star.parallax_err_mas !== null ? { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas } : null;
+            const { derived } = deriveMeasurement(canonicalWithStokes(m, cal), fallback);
+            const cols = derivedColumns(derived);
+            const before = snapshot(m);
+            const afterRow = { ...m, ...cols, version: m.version + 1 };
+            const after = snapshot(afterRow);
+            await trx('measurements').where({ id: m.id }).update({ ...cols, calibration_id: calId, version: m.version + 1, updated_at: now, updated_by: actorId });
+            links.push({ calibration_id: calId, measurement_id: m.id, before_json: JSON.stringify(before), after_json: JSON.stringify(after) });
+            audits.push({ actorId, action: 'measurement.calibrate', entityType: 'measurement', entityId: m.id, before, after: { ...after, calibrationId: calId }, reason: reason ?? `calibration ${calId} of batch ${batchId} (${c.instrument} ${c.band} ${c.night ?? 'no epoch'})` });
+          }
+          await trx.batchInsert('calibration_rows', links as any[], 300);
+          audits.push({ actorId, action: 'calibration.apply', entityType: 'calibration', entityId: calId, after: { batchId, instrument: c.instrument, band: c.band, night: c.night, zeroPointDeg: c.zeroPointDeg, zeroPointErrDeg: c.zeroPointErrDeg, instrumentalQ: c.instrumentalQ, instrumentalU: c.instrumentalU, rows: g.rows.length }, reason });
+          out.push({ id: calId, instrument: c.instrument, band: c.band, night: c.night, rowsCalibrated: g.rows.length });
+        }
+        audits.push({ actorId, action: 'batch.calibrate', entityType: 'batch', entityId: batchId, after: { calibrations: out.map((o) => o.id), rows: out.reduce((s, o) => s + o.rowsCalibrated, 0) }, reason });
+        await recordAudit(trx, audits);
+        return { batchId, applied: out, rowsCalibrated: out.reduce((s, o) => s + o.rowsCalibrated, 0) };
+      });
+    },
+
+    /** Restore every row of the batch's applied calibrations to its values before; refused if a row changed since. */
+    async revert(actorId: number, batchId: number, reason: string | null) {
+      return db.transaction(async (trx) => {
+        const b = await trx('batches').where({ id: batchId }).first('id');
+        if (!b) throw notFound(`Batch ${batchId}`);
+        const cals = await trx('calibrations').where({ batch_id: batchId, state: 'applied' });
+        if (!cals.length) throw new AppError(409, 'not_calibrated', `Batch ${batchId} has no applied calibration to revert.`);
+        const links = await trx('calibration_rows').whereIn('calibration_id', cals.map((c: any) => c.id));
+        const ms = new Map<number, Meas>();
+        const ids = links.map((l: any) => l.measurement_id);
+        for (let i = 0; i < ids.length; i += 900) for (const m of await trx('measurements').whereIn('id', ids.slice(i, i + 900))) ms.set(m.id, m);
+        const moved = links.filter((l: any) => ms.get(l.measurement_id)?.version !== JSON.parse(l.after_json).version);
+        if (moved.length) throw new AppError(409, 'edited_since', `${moved.length} calibrated measurement(s) were changed after the calibration (e.g. ${moved.slice(0, 5).map((l: any) => l.measurement_id).join(', ')}); revert those edits first.`, { ids: moved.map((l: any) => l.measurement_id) });
+        const now = new Date().toISOString();
+        const audits: Parameters<typeof recordAudit>[1] = [];
+        for (const l of links) {
+          const m = ms.get(l.measurement_id)!;
+          const before = JSON.parse(l.before_json) as Record<string, unknown>;
+          const { version: _v, ...values } = before;
+          await trx('measurements').where({ id: m.id }).update({ ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId });
+          audits.push({ actorId, action: 'measurement.calibration_revert', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: reason ?? `revert of calibration ${l.calibration_id}` });
+        }
+        await trx('calibrations').whereIn('id', cals.map((c: any) => c.id)).update({ state: 'reverted', reverted_by: actorId, reverted_at: now });
+        for (const c of cals) audits.push({ actorId, action: 'calibration.revert', entityType: 'calibration', entityId: c.id, before: { state: 'applied' }, after: { state: 'reverted' }, reason });
+        audits.push({ actorId, action: 'batch.calibration_revert', entityType: 'batch', entityId: batchId, after: { calibrations: cals.map((c: any) => c.id), rows: links.length }, reason });
+        await recordAudit(trx, audits);
+        return { batchId, reverted: cals.map((c: any) => c.id), rowsRestored: links.length };
+      });
+    },
+
+    /** Every calibration of an instrument, newest first (the instrument's history). */
+    async history(code: string) {
+      const inst = await readDb('instruments').whereRaw('lower(code) = ?', [code.toLowerCase()]).first();
+      if (!inst) throw notFound(`Instrument ${code}`);
+      const rows = await readDb('calibrations as c').join('batches as b', 'b.id', 'c.batch_id').where('c.instrument', inst.code).orderBy('c.id', 'desc').select('c.*', 'b.filename');
+      const users = await userNames(readDb, rows.flatMap((c: any) => [c.applied_by, c.reverted_by].filter(Boolean)));
+      return {
+        instrument: inst.code,
+        calibrations: rows.map((c: any) => {
+          const { standards: _s, ...rest } = fromStored(c, users);
+          return { ...rest, batchId: c.batch_id, filename: c.filename, revertedBy: c.reverted_by ? { id: c.reverted_by, name: users.get(c.reverted_by) ?? '' } : null };
+        }),
+      };
+    },
+  };
+}
+export type CalibrationService = ReturnType<typeof calibrationService>;

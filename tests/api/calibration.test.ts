@@ -1,0 +1,197 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type request from 'supertest';
+import { makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
+
+/**
+ * Calibration from standard stars, end to end: a night of KR-HAWK V-band rows containing the
+ * standards of METHODS.md (Schmidt, Elston & Lupie 1992, AJ 104, 1563 — values from memory) observed
+ * through an instrument with a known angle zero-point and instrumental polarization, plus science stars.
+ * The batch is synthesised from those reference values, so the derived terms must come back.
+ */
+const ZP_DEG = 3.0; // the instrument's angle offset built into the synthetic night
+const INST = { q: 0.002, u: -0.001 }; // instrumental polarization built in (fractions)
+const DEG = Math.PI / 180;
+
+/** θ = ½ atan2(u, q) in [0, 180) (METHODS.md). */
+const angle = (q: number, u: number) => ((((0.5 * Math.atan2(u, q)) / DEG) % 180) + 180) % 180;
+
+/** What the instrument records for a star of true (p, θ): rotate by +ZP, add the instrumental (q, u). */
+function observed(p: number, thetaDeg: number) {
+  const q = p * Math.cos(2 * (thetaDeg + ZP_DEG) * DEG) + INST.q;
+  const u = p * Math.sin(2 * (thetaDeg + ZP_DEG) * DEG) + INST.u;
+  return { q: Number(q.toFixed(7)), u: Number(u.toFixed(7)) }; // as written in the CSV
+}
+
+const HEADER = 'name,ra_deg,dec_deg,band,q,u,q_err,u_err,parallax_mas,parallax_err_mas,mjd,instrument';
+const row = (name: string, ra: number, dec: number, p: number, theta: number, mjd = 61020.2, err = 0.0004) => {
+  const o = observed(p, theta);
+  return [name, ra, dec, 'V', o.q.toFixed(7), o.u.toFixed(7), err, err, 2.0, 0.05, mjd, 'KR-HAWK'].join(',');
+};
+
+// names spelt as observers do: spacing and case vary (recognised by name, METHODS.md values)
+const CSV = [
+  HEADER,
+  row('hd204827', 322.24, 58.74, 0.0532, 58.7), // HD 204827 V: 5.32 %, 58.7° (from memory)
+  row('BD+59 389', 30.68, 60.26, 0.067, 98.1), // BD+59 389 V: 6.70 %, 98.1° (from memory)
+  row('HD 212311', 335.49, 56.53, 0, 0), // unpolarized
+  row('HD21447', 52.5, 55.45, 0, 0), // unpolarized
+  row('KRS SCIENCE A', 100.1, -30.2, 0.02, 30.0),
+  row('KRS SCIENCE B', 100.3, -30.4, 0.015, 150.0),
+  row('KRS OTHER NIGHT', 100.5, -30.6, 0.015, 120.0, 61025.2), // a night without standards: left as is
+].join('\n');
+
+let t: TestApp;
+let curator: request.Agent;
+let observer: request.Agent;
+let batchId: number;
+const idsByLine = new Map<number, number>();
+
+beforeAll(async () => {
+  t = await makeTestApp();
+  curator = await signedIn(t.app, 'curator');
+  observer = await signedIn(t.app, 'observer');
+  const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(CSV), 'standards-night.csv');
+  expect(up.status).toBeLessThan(300);
+  batchId = up.body.id ?? up.body.batch?.id;
+  const ms = await curator.get(`/api/v1/batches/${batchId}/measurements?limit=50`);
+  expect(ms.status).toBe(200);
+  for (const m of ms.body.rows) idsByLine.set(m.line, m.id);
+}, 240_000); // seeding the demo takes a while on a loaded 2-core machine
+afterAll(async () => t.close());
+
+describe('standard stars', () => {
+  it('are seeded from METHODS.md with their source, marked from memory', async () => {
+    const res = await observer.get('/api/v1/standard-stars');
+    expect(res.status).toBe(200);
+    const hd = res.body.standards.find((s: any) => s.name === 'HD 204827' && s.band === 'V');
+    expect(hd).toMatchObject({ kind: 'polarized', fromMemory: true, source: expect.stringMatching(/Schmidt, Elston & Lupie 1992/) });
+    expect(hd.p).toBeCloseTo(0.0532, 10); // 5.32 % (METHODS.md, from memory)
+    expect(hd.thetaDeg).toBeCloseTo(58.7, 10);
+    expect(res.body.standards.find((s: any) => s.name === 'HD 212311').kind).toBe('unpolarized');
+  });
+
+  it('curators add one with a source; a duplicate band is a 409; observers may not', async () => {
+    const body = { name: 'HD 204827', band: 'B', pPct: 5.6, thetaDeg: 58.2, source: 'test entry for the API', fromMemory: true };
+    expect((await observer.post('/api/v1/standard-stars').send(body)).status).toBe(403);
+    const res = await curator.post('/api/v1/standard-stars').send(body);
+    expect(res.status).toBe(201);
+    expect(res.body).toMatchObject({ name: 'HD 204827', band: 'B', kind: 'polarized', source: 'test entry for the API' });
+    expect(res.body.p).toBeCloseTo(0.056, 12);
+    const again = await curator.post('/api/v1/standard-stars').send({ ...body, name: 'hd204827' });
+    expect(again.status).toBe(409);
+    const bad = await curator.post('/api/v1/standard-stars').send({ name: 'X', band: 'V', p: 0.01 });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.details.fields.map((f: any) => f.field)).toContain('source');
+  });
+});
+
+describe('a batch with standard-star rows', () => {
+  it('shows its zero-point and instrumental polarization per instrument, band and night', async () => {
+    const res = await observer.get(`/api/v1/batches/${batchId}/calibration`);
+    expect(res.status).toBe(200);
+    expect(res.body.applied).toBe(false);
+    expect(res.body.calibrations).toHaveLength(1);
+    const c = res.body.calibrations[0];
+    // MJD 61020.2 = 2025-12-11 04:48 UTC (astropy Time): the night that began on the evening of 2025-12-10
+    expect(c).toMatchObject({ instrument: 'KR-HAWK', band: 'V', night: '2025-12-10', nPolarized: 2, nUnpolarized: 2, rows: 6 });
+    // the terms built into the synthetic night come back (inputs rounded to 1e-7)
+    expect(c.zeroPointDeg).toBeCloseTo(ZP_DEG, 3);
+    expect(c.instrumentalQ).toBeCloseTo(INST.q, 6);
+    expect(c.instrumentalU).toBeCloseTo(INST.u, 6);
+    // two unpolarized standards, σ² = 0.0004² + p_ref²/2 each (p_ref 0.03 % and 0.05 %), inverse-variance mean (common practice)
+    expect(c.instrumentalQErr).toBeCloseTo(1 / Math.sqrt(1 / (0.0004 ** 2 + 0.0003 ** 2 / 2) + 1 / (0.0004 ** 2 + 0.0005 ** 2 / 2)), 12);
+    expect(c.zeroPointErrDeg).toBeGreaterThan(0);
+    expect(c.zeroPointErrDeg).toBeLessThan(0.5);
+    expect(c.standards.map((s: any) => s.line).sort()).toEqual([2, 3, 4, 5]);
+    for (const s of c.standards.filter((x: any) => x.kind === 'polarized')) expect(Math.abs(s.residualDeg)).toBeLessThan(0.01);
+    expect(res.body.uncalibratedRows).toBe(1);
+  });
+
+  it('observers cannot apply; a curator applies once, a second time is refused', async () => {
+    expect((await observer.post(`/api/v1/batches/${batchId}/calibration/apply`).send({})).status).toBe(403);
+    const res = await curator.post(`/api/v1/batches/${batchId}/calibration/apply`).send({ reason: 'night calibration' });
+    expect(res.status).toBe(200);
+    expect(res.body.rowsCalibrated).toBe(6);
+    const again = await curator.post(`/api/v1/batches/${batchId}/calibration/apply`).send({});
+    expect(again.status).toBe(409);
+    expect(again.body.error.code).toBe('already_calibrated');
+    const shown = await curator.get(`/api/v1/batches/${batchId}/calibration`);
+    expect(shown.body.applied).toBe(true);
+    expect(shown.body.calibrations[0]).toMatchObject({ state: 'applied', appliedBy: { name: expect.any(String) } });
+  });
+
+  it('a science star’s angle moves by −zero-point and the standards land on their reference values', async () => {
+    const ms = (await curator.get(`/api/v1/batches/${batchId}/measurements?limit=50`)).body.rows as any[];
+    const at = (line: number) => ms.find((m) => m.line === line);
+    // after subtracting the instrumental (q, u) the science star reads 33°; the zero-point of 3° takes it to 30°
+    const o = observed(0.02, 30);
+    expect(angle(o.q - INST.q, o.u - INST.u)).toBeCloseTo(33.0, 4);
+    expect(at(6).theta_deg).toBeCloseTo(30.0, 3);
+    expect(at(7).theta_deg).toBeCloseTo(150.0, 3);
+    expect(at(6).p).toBeCloseTo(0.02, 6);
+    expect(at(2).theta_deg).toBeCloseTo(58.7, 3); // HD 204827 V reference (from memory)
+    expect(at(3).theta_deg).toBeCloseTo(98.1, 3); // BD+59 389 V reference (from memory)
+    expect(at(4).p).toBeLessThan(1e-6);
+    // errors grow: instrumental error and zero-point error added
+    expect(at(6).q_err).toBeGreaterThan(0.0004);
+    // the other night is untouched: still the observed angle
+    const other = observed(0.015, 120);
+    expect(at(8).theta_deg).toBeCloseTo(angle(other.q, other.u), 6);
+  });
+
+  it('the audit shows every calibrated row before and after; raw values are kept', async () => {
+    const id = idsByLine.get(6)!;
+    const h = await curator.get(`/api/v1/measurements/${id}/history`);
+    const e = h.body.history.find((x: any) => x.action === 'measurement.calibrate');
+    const o = observed(0.02, 30);
+    expect(e.before.theta_deg).toBeCloseTo(angle(o.q, o.u), 6); // as uploaded (instrumental (q, u) included)
+    expect(e.after.theta_deg).toBeCloseTo(30.0, 3);
+    expect(e.reason).toBe('night calibration');
+    const raw = await curator.get(`/api/v1/batches/${batchId}/rows?limit=50`);
+    expect(raw.status).toBe(200);
+    expect(JSON.stringify(raw.body)).toContain(observed(0.02, 30).q.toFixed(7));
+  });
+
+  it('the instrument keeps the history of its calibrations', async () => {
+    const res = await observer.get('/api/v1/instruments/KR-HAWK/calibrations');
+    expect(res.status).toBe(200);
+    expect(res.body.calibrations[0]).toMatchObject({ batchId, band: 'V', state: 'applied', filename: 'standards-night.csv' });
+    expect((await observer.get('/api/v1/instruments/KR-NONE/calibrations')).status).toBe(404);
+  });
+
+  it('revert restores the values before; then it may be applied again', async () => {
+    const res = await curator.post(`/api/v1/batches/${batchId}/calibration/revert`).send({});
+    expect(res.status).toBe(200);
+    expect(res.body.rowsRestored).toBe(6);
+    const ms = (await curator.get(`/api/v1/batches/${batchId}/measurements?limit=50`)).body.rows as any[];
+    const sci = ms.find((m) => m.line === 6);
+    const o = observed(0.02, 30);
+    expect(sci.theta_deg).toBeCloseTo(angle(o.q, o.u), 9);
+    expect(sci.q).toBe(Number(observed(0.02, 30).q.toFixed(7)));
+    expect((await curator.post(`/api/v1/batches/${batchId}/calibration/revert`).send({})).status).toBe(409);
+    const hist = await curator.get('/api/v1/instruments/KR-HAWK/calibrations');
+    expect(hist.body.calibrations[0].state).toBe('reverted');
+    expect((await curator.post(`/api/v1/batches/${batchId}/calibration/apply`).send({})).status).toBe(200);
+  });
+
+  it('a batch without standards has nothing to apply (409), an unknown batch is a 404', async () => {
+    const first = (await t.db('batches').orderBy('id').first()).id;
+    const res = await curator.post(`/api/v1/batches/${first}/calibration/apply`).send({});
+    expect(res.status).toBe(409);
+    expect(res.body.error.code).toBe('no_standards');
+    expect((await curator.get('/api/v1/batches/99999/calibration')).status).toBe(404);
+    expect((await curator.get('/api/v1/batches/abc/calibration')).status).toBe(400);
+  });
+});
+
+describe('plausibility settings', () => {
+  it('expose the flags and a ceiling a curator can change', async () => {
+    const res = await observer.get('/api/v1/plausibility');
+    expect(res.body).toMatchObject({ pCeiling: 0.15, efficiencyMaxPctPerMag: 9, minPSnr: 5, inconsistentTailProbability: 0.001 });
+    expect((await observer.put('/api/v1/plausibility').send({ pCeiling: 0.1 })).status).toBe(403);
+    expect((await curator.put('/api/v1/plausibility').send({ pCeiling: 2 })).status).toBe(400);
+    const put = await curator.put('/api/v1/plausibility').send({ pCeiling: 0.1 });
+    expect(put.status).toBe(200);
+    expect(put.body.pCeiling).toBe(0.1);
+  });
+});
