@@ -96,7 +96,7 @@ export function parseRaDeg(input: string | number): ParseResult {
     const v = typeof input === 'number' ? input : Number(text);
     if (!Number.isFinite(v)) return fail('RA', text, 'is not a finite number', RA_EXPECTED);
     if (v < 0 || v >= 360) return fail('RA', text, 'is outside 0 to below 360 degrees', RA_EXPECTED);
-    return { ok: true, value: v };
+    return { ok: true, value: v + 0 }; // "-0" → +0: a zero has no sign (IEEE 754: −0 + 0 = +0)
   }
   if (!isSexagesimal(text)) return fail('RA', text, 'is not a number', RA_EXPECTED);
   const split = splitSexagesimal(text, 'h');
@@ -118,7 +118,7 @@ export function parseDecDeg(input: string | number): ParseResult {
     const v = typeof input === 'number' ? input : Number(text.replace(/^−/, '-'));
     if (!Number.isFinite(v)) return fail('Dec', text, 'is not a finite number', DEC_EXPECTED);
     if (v < -90 || v > 90) return fail('Dec', text, 'is outside −90 to 90 degrees', DEC_EXPECTED);
-    return { ok: true, value: v };
+    return { ok: true, value: v + 0 }; // "-0" → +0: a zero has no sign (IEEE 754: −0 + 0 = +0)
   }
   if (!isSexagesimal(text)) return fail('Dec', text, 'is not a number', DEC_EXPECTED);
   if (/h/i.test(text)) return fail('Dec', text, 'uses an hour marker; declination is in degrees', DEC_EXPECTED);
@@ -127,5 +127,6 @@ export function parseDecDeg(input: string | number): ParseResult {
   const deg = combineFields(split, 'degrees');
   if (typeof deg === 'string') return fail('Dec', text, deg, DEC_EXPECTED);
   if (deg > 90) return fail('Dec', text, 'is beyond ±90 degrees', DEC_EXPECTED);
-  return { ok: true, value: split.negative ? -deg : deg };
+  // "-00:30:00" is −0.5° (the sign belongs to the whole value); "-00:00:00" is +0, not −0.
+  return { ok: true, value: (split.negative ? -deg : deg) + 0 };
 }

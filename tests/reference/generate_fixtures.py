@@ -10,6 +10,7 @@ no timestamps. Positions and values are random draws, not real objects.
 """
 
 import json
+import math
 import os
 import sys
 
@@ -299,6 +300,48 @@ def healpix_fixture(rng):
     })
 
 
+def healpix_edges_fixture():
+    """ang2pix on the places where a position -> pixel routine can slip: longitudes exactly 0, 90,
+    180 and 270 deg at latitudes across both polar caps, the cap/belt transition (|z| = 2/3) and the
+    equator; and points lying on pixel boundaries (healpy.boundaries corners and edge midpoints) at
+    every order 0..15, each with its pixel at every order. Own seed, so other fixtures are unchanged."""
+    rng = np.random.default_rng(SEED + 10)
+    orders = list(range(0, 16))
+    z23 = float(np.degrees(np.arcsin(2.0 / 3.0)))
+    lats = [89.9999, 89.99, 89.5, 88.0, 85.0, 75.0, 60.0, 50.0, 45.0, 42.0, z23, 41.81, 41.8, 30.0,
+            10.0, 1e-6, 0.0]
+    lats = sorted(set(lats + [-x for x in lats]))
+    axis = []
+    for lon in [0.0, 90.0, 180.0, 270.0]:
+        for lat in lats:
+            axis.append({"lonDeg": lon, "latDeg": lat,
+                         "pix": [int(hp.ang2pix(2 ** o, lon, lat, nest=True, lonlat=True)) for o in orders]})
+    boundary = []
+    for o in orders:
+        ns = 2 ** o
+        for p in rng.choice(12 * ns * ns, size=min(5, 12 * ns * ns), replace=False):
+            b = hp.boundaries(ns, int(p), step=2, nest=True)  # corners and edge midpoints
+            lon, lat = hp.vec2ang(b.T, lonlat=True)
+            for k in range(len(lon)):
+                lo, la = float(lon[k]) % 360.0, float(lat[k])
+                # healpy's own theta, phi and z = cos(theta) (C library cos, as its C++ core uses).
+                theta, phi = np.pi / 2.0 - np.radians(la), np.radians(lo)
+                boundary.append({"order": o, "ofPixel": int(p), "lonDeg": lo, "latDeg": la,
+                                 "theta": float(theta), "phi": float(phi), "z": math.cos(theta),
+                                 "sinTheta": math.sin(theta),
+                                 "pix": [int(hp.ang2pix(2 ** q, lo, la, nest=True, lonlat=True)) for q in orders]})
+    write("healpix_edges.json", {
+        "description": "healpy ang2pix(nest=True, lonlat=True) at orders 0..15 for positions at "
+                       "longitudes exactly 0/90/180/270 deg across both caps, the |z| = 2/3 transition "
+                       "and the equator, and for points on pixel boundaries (healpy.boundaries(step=2) "
+                       "of random pixels at every order, read back with vec2ang(lonlat=True)).",
+        "orders": orders,
+        "axis": axis,
+        "boundary": boundary,
+        "capLatitudeDeg": z23,
+    })
+
+
 L_KPC = 1.35
 
 
@@ -371,6 +414,7 @@ def main():
     axial_fixture(rng)
     healpix_fixture(rng)
     edsd_fixture()
+    healpix_edges_fixture()
 
 
 if __name__ == "__main__":

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   ang2pixNest,
+  loc2pixNest,
   maxPixelRadiusDeg,
   nestToRing,
   npixForNside,
@@ -13,6 +14,7 @@ import {
 } from '../../server/science/healpix.js';
 import { angularSeparationDeg } from '../../server/science/separation.js';
 import healpix from '../reference/fixtures/healpix.json';
+import edges from '../reference/fixtures/healpix_edges.json';
 
 describe('orders and NSIDE', () => {
   it('maps order ↔ NSIDE = 2^order for orders 0..15', () => {
@@ -138,5 +140,96 @@ describe('pixelCornersNest and NESTED ↔ RING vs healpy', () => {
       expect(nestToRing(nside, nest)).toBe(ring);
       expect(ringToNest(nside, ring)).toBe(nest);
     }
+  });
+});
+
+describe('ang2pixNest on the places a pixel routine can slip, vs healpy 1.16', () => {
+  // healpy fixture tests/reference/fixtures/healpix_edges.json (generate_fixtures.py).
+  it('puts longitudes exactly 0/90/180/270° in both caps, at |z| = 2/3 and the equator in healpy\'s pixel at every order 0..15', () => {
+    expect(edges.axis.length).toBeGreaterThan(100);
+    for (const pos of edges.axis) {
+      edges.orders.forEach((order, k) => {
+        expect([order, pos.lonDeg, pos.latDeg, ang2pixNest(2 ** order, pos.lonDeg, pos.latDeg)]).toEqual([order, pos.lonDeg, pos.latDeg, pos.pix[k]]);
+      });
+    }
+  });
+
+  it('the north-cap case of issue 10: (180°, +60°) at NSIDE 32 is 2799 (healpy), not NSIDE²−1', () => {
+    // healpy 1.16: ang2pix(32, 180, 60, nest=True, lonlat=True) = 2799.
+    expect(ang2pixNest(32, 180, 60)).toBe(2799);
+    for (const order of [0, 4, 10, 15]) {
+      const nside = 2 ** order;
+      for (const lon of [0, 90, 180, 270]) {
+        // The pixel found must contain the point: its centre lies within the max pixel radius.
+        const p = ang2pixNest(nside, lon, 60);
+        const c = pix2angNest(nside, p);
+        expect(angularSeparationDeg(c.lonDeg, c.latDeg, lon, 60)).toBeLessThanOrEqual(maxPixelRadiusDeg(nside) * (1 + 1e-9));
+      }
+    }
+  });
+
+  it('puts points on pixel boundaries (corners and edge midpoints) in healpy\'s pixel at every order 0..15, given healpy\'s z = cos θ', () => {
+    expect(edges.boundary.length).toBeGreaterThan(500);
+    let checked = 0;
+    for (const pos of edges.boundary) {
+      const haveSth = pos.theta < 0.01 || pos.theta > 3.14159 - 0.01; // HEALPix C++ ang2pix
+      edges.orders.forEach((order, k) => {
+        const got = loc2pixNest(2 ** order, order, pos.z, pos.phi, pos.sinTheta, haveSth);
+        expect([order, pos.lonDeg, pos.latDeg, got]).toEqual([order, pos.lonDeg, pos.latDeg, pos.pix[k]]);
+        checked++;
+      });
+    }
+    expect(checked).toBe(edges.boundary.length * 16);
+  });
+
+  it('from (lon, lat), matches healpy on boundary points wherever V8\'s cos θ equals the C library\'s, and otherwise returns a pixel touching the point', () => {
+    let sameCos = 0;
+    for (const pos of edges.boundary) {
+      const cosHere = Math.cos(Math.PI / 2 - pos.latDeg * (Math.PI / 180));
+      if (cosHere === pos.z) sameCos++;
+      edges.orders.forEach((order, k) => {
+        const nside = 2 ** order;
+        const got = ang2pixNest(nside, pos.lonDeg, pos.latDeg);
+        if (cosHere === pos.z) {
+          expect([order, pos.lonDeg, pos.latDeg, got]).toEqual([order, pos.lonDeg, pos.latDeg, pos.pix[k]]);
+        } else {
+          const c = pix2angNest(nside, got);
+          expect(angularSeparationDeg(c.lonDeg, c.latDeg, pos.lonDeg, pos.latDeg)).toBeLessThanOrEqual(maxPixelRadiusDeg(nside) * (1 + 1e-9));
+        }
+      });
+    }
+    // One-ulp differences between the two cos implementations are rare.
+    expect(sameCos / edges.boundary.length).toBeGreaterThan(0.9);
+  });
+});
+
+describe('queryDiscNest against testing every pixel', () => {
+  // Reference: the definition itself (common practice) — inclusive keeps every pixel whose centre
+  // lies within radius + max pixel radius, non-inclusive within the radius — evaluated on every
+  // pixel at orders 0..6, for discs centred on the cap meridians 0/90/180/270° and at random.
+  it('returns exactly the pixels a full scan returns', () => {
+    let seed = 12345;
+    const rand = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    for (let order = 0; order <= 6; order++) {
+      const nside = 2 ** order;
+      const centres = Array.from({ length: 12 * nside * nside }, (_, p) => pix2angNest(nside, p));
+      const pixrad = maxPixelRadiusDeg(nside);
+      for (let k = 0; k < 40; k++) {
+        const lon = k < 16 ? [0, 90, 180, 270][k % 4] : rand() * 360;
+        const lat = k < 16 ? [60, -60, 85, -41.9][k >> 2] : (Math.asin(2 * rand() - 1) * 180) / Math.PI;
+        const radius = rand() ** 2 * 30;
+        for (const inclusive of [true, false]) {
+          const limit = radius + (inclusive ? pixrad : 0);
+          const want = centres.flatMap((c, p) => (angularSeparationDeg(lon, lat, c.lonDeg, c.latDeg) <= limit ? [p] : []));
+          expect(queryDiscNest(nside, lon, lat, radius, inclusive)).toEqual(want);
+        }
+      }
+    }
+  });
+
+  it('finds the order-15 pixel of a star at 12:00:00 +60:00:00 in a 1″ disc around it', () => {
+    const p = ang2pixNest(32768, 180, 60);
+    expect(queryDiscNest(32768, 180, 60, 1 / 3600)).toContain(p);
+    expect(queryDiscNest(32768, 180.0001, 60.0001, 1 / 3600)).toContain(p);
   });
 });

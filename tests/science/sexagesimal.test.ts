@@ -70,6 +70,21 @@ describe('parseDecDeg', () => {
     expect(value(parseDecDeg('+00 30 00'))).toBe(0.5);
   });
 
+  it('returns +0, never −0, where the sign of a zero means nothing', () => {
+    // IEEE 754 keeps a signed zero (Number("-0") is −0); a position of zero has no sign, and a
+    // −0 would print as "-0" or sort oddly downstream (common practice). Object.is tells ±0 apart.
+    expect(Object.is(value(parseDecDeg('-0')), 0)).toBe(true);
+    expect(Object.is(value(parseDecDeg('-00:00:00')), 0)).toBe(true);
+    expect(Object.is(value(parseDecDeg('−00 00 00.0')), 0)).toBe(true);
+    expect(Object.is(value(parseDecDeg(-0)), 0)).toBe(true);
+    expect(Object.is(value(parseRaDeg('-0')), 0)).toBe(true);
+    expect(Object.is(value(parseRaDeg('-0.0')), 0)).toBe(true);
+    expect(Object.is(value(parseRaDeg(-0)), 0)).toBe(true);
+    expect(Object.is(value(parseRaDeg('00:00:00')), 0)).toBe(true);
+    // the sign of a non-zero value still counts: −00:30:00 is −0.5°
+    expect(value(parseDecDeg('-00:30:00'))).toBe(-0.5);
+  });
+
   it('reads decimal degrees and accepts the poles', () => {
     expect(value(parseDecDeg('-5.391'))).toBe(-5.391);
     expect(value(parseDecDeg(-5.391))).toBe(-5.391);
