@@ -4,7 +4,7 @@ import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
 import { AppError } from '../errors.js';
 import { validateBody } from '../lib/validate.js';
 import { guard, open, type SessionUser } from './roles.js';
-import type { AuthService } from './service.js';
+import { normaliseEmail, type AuthService } from './service.js';
 import type { Config } from '../config.js';
 
 export function authRoutes(deps: { auth: AuthService; passport: passport.PassportStatic; config: Config }): Router {
@@ -18,7 +18,9 @@ export function authRoutes(deps: { auth: AuthService; passport: passport.Passpor
     skipSuccessfulRequests: true,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
-    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').toLowerCase()}`,
+    // the address as the service looks it up (trimmed, lowercased), so padding cannot dodge a lockout;
+    // req.ip is the socket's address unless TRUST_PROXY names the proxy in front
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${typeof req.body?.email === 'string' ? normaliseEmail(req.body.email) : ''}`,
     handler: (_req, res, _next, options) => {
       res.status(options.statusCode).json({ error: { code: 'rate_limited', message: 'Too many failed sign-ins; wait a few minutes and try again.' } });
     },
@@ -54,7 +56,7 @@ export function authRoutes(deps: { auth: AuthService; passport: passport.Passpor
   });
 
   r.post('/me/password', guard('signed-in'), validateBody('api/password-change'), async (req, res) => {
-    await auth.changePassword(req.user!.id, req.body.currentPassword, req.body.newPassword);
+    await auth.changePassword(req.user!.id, req.body.currentPassword, req.body.newPassword, req.sessionID);
     res.status(204).end();
   });
 

@@ -2,7 +2,7 @@ import type { Knex } from 'knex';
 import bcrypt from 'bcryptjs';
 import { recordAudit } from '../audit/service.js';
 import { AppError, badRequest, conflict, notFound } from '../errors.js';
-import { DEMO_PASSWORD, hashPassword, verifyPassword } from './passwords.js';
+import { COST, DEMO_PASSWORD, hashPassword, verifyPassword } from './passwords.js';
 import type { Role, SessionUser } from './roles.js';
 
 export interface UserRow {
@@ -29,9 +29,27 @@ export const publicUser = (u: UserRow) => ({
 
 export const sessionUser = (u: UserRow): SessionUser => ({ id: u.id, email: u.email, name: u.name, role: u.role });
 
-// Compared against when the e-mail is unknown, so both failures take about as long.
-const DUMMY_HASH = bcrypt.hashSync('not-a-real-password', 4);
-const normaliseEmail = (e: string) => e.trim().toLowerCase();
+// Compared against when the e-mail is unknown, so both refusals take as long: the same bcrypt
+// cost as real accounts (a cheaper dummy made unknown e-mails answer ~20× faster).
+const DUMMY_HASH = bcrypt.hashSync('not-a-real-password', COST);
+export const normaliseEmail = (e: string) => e.trim().toLowerCase();
+
+/**
+ * End every session of an account except `keepSid` (connect-session-knex stores the session as
+ * JSON with passport's `"user":<id>`), revoke all its API tokens, and spend its open password-reset
+ * links. Called inside the transaction that changes the password.
+ */
+export async function endAccountAccess(trx: Knex | Knex.Transaction, userId: number, opts: { keepSid?: string; actorId: number | null; reason: string }) {
+  const at = new Date().toISOString();
+  let sessions = trx('sessions').where('sess', 'like', `%"user":${userId}}%`);
+  if (opts.keepSid) sessions = sessions.whereNot('sid', opts.keepSid);
+  const endedSessions = await sessions.delete();
+  const tokenIds: number[] = await trx('api_tokens').where({ user_id: userId }).whereNull('revoked_at').pluck('id');
+  if (tokenIds.length) await trx('api_tokens').whereIn('id', tokenIds).update({ revoked_at: at });
+  const spentResets = await trx('password_resets').where({ user_id: userId }).whereNull('used_at').update({ used_at: at });
+  await recordAudit(trx, tokenIds.map((id) => ({ actorId: opts.actorId, action: 'token.revoke', entityType: 'api_token', entityId: id, before: { revokedAt: null }, after: { revokedAt: at }, reason: opts.reason })));
+  return { endedSessions, revokedTokens: tokenIds.length, spentResets };
+}
 
 export function authService(db: Knex, opts: { allowDemoPassword: boolean }) {
   return {
@@ -92,7 +110,8 @@ export function authService(db: Knex, opts: { allowDemoPassword: boolean }) {
       });
     },
 
-    async changePassword(userId: number, current: string, next: string) {
+    /** Change one's own password: every other session of the account ends, its API tokens are revoked and its open reset links die. */
+    async changePassword(userId: number, current: string, next: string, currentSid?: string) {
       return db.transaction(async (trx) => {
         const u = await trx<UserRow>('users').where({ id: userId }).first();
         if (!u || !(await verifyPassword(current, u.password_hash))) {
@@ -100,7 +119,8 @@ export function authService(db: Knex, opts: { allowDemoPassword: boolean }) {
         }
         if (next === DEMO_PASSWORD) throw badRequest('Choose a password other than the published demo password.', { fields: [{ field: 'newPassword', message: 'must differ from the demo password' }] });
         await trx('users').where({ id: userId }).update({ password_hash: await hashPassword(next), updated_at: new Date().toISOString() });
-        await recordAudit(trx, { actorId: userId, action: 'user.password_change', entityType: 'user', entityId: userId });
+        const ended = await endAccountAccess(trx, userId, { keepSid: currentSid, actorId: userId, reason: 'password changed' });
+        await recordAudit(trx, { actorId: userId, action: 'user.password_change', entityType: 'user', entityId: userId, after: ended });
       });
     },
   };

@@ -2,14 +2,16 @@ import { Router } from 'express';
 import type { Knex } from 'knex';
 import { guard } from '../auth/roles.js';
 import { badRequest } from '../errors.js';
-import { catalogService } from './service.js';
+import { singleValuedQuery } from '../lib/query.js';
+import { catalogService, visibleStarCount } from './service.js';
 
 export function catalogRoutes(deps: { db: Knex }): Router {
   const { db } = deps;
   const r = Router();
 
-  r.get('/overview', guard('signed-in'), async (_req, res) => {
-    const [{ n: stars }] = await db('stars').count({ n: '*' });
+  r.get('/overview', guard('signed-in'), async (req, res) => {
+    // only the stars this person may know exist (server/catalog/service.ts whereStarVisible)
+    const stars = await visibleStarCount(db, req.user!);
     const instruments = await db('instruments').orderBy('code').select('code', 'name', 'bands');
     res.json({
       survey: 'Kestrel Ridge Polarimetric Survey',
@@ -31,7 +33,7 @@ export function catalogRoutes(deps: { db: Knex }): Router {
     return n;
   };
 
-  r.get('/stars', guard('signed-in'), async (req, res) => {
+  r.get('/stars', guard('signed-in'), singleValuedQuery, async (req, res) => {
     const q = req.query as Record<string, string | undefined>;
     const ra = num(q.ra, 'ra'), dec = num(q.dec, 'dec'), radius = num(q.radius, 'radius');
     const given = [ra, dec, radius].filter((x) => x !== undefined).length;

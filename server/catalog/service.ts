@@ -26,13 +26,39 @@ export function visibleMeasurements(db: Knex, user: SessionUser) {
   return q.where('measurements.state', 'approved');
 }
 
+/**
+ * Restrict a query over `stars` (or the alias `table`) to the stars a person may know exist.
+ * Curators (and admins) see every star. Anyone else sees a star with an approved measurement.
+ * An observer also sees the stars they created and the stars their own measurements are tied to,
+ * except a star another observer's batch created that has no approved measurement yet: its
+ * name, source_id and very existence stay with that observer and the curators until approval.
+ */
+export function whereStarVisible<T extends Knex.QueryBuilder>(q: T, db: Knex, user: SessionUser, table = 'stars'): T {
+  if (hasRole(user, ['curator'])) return q;
+  const approved = () => db('measurements').select(db.raw('1')).whereRaw('measurements.star_id = ??.id', [table]).where('measurements.state', 'approved');
+  if (user.role !== 'observer') return q.whereExists(approved()) as T;
+  const own = db('measurements').select(db.raw('1')).whereRaw('measurements.star_id = ??.id', [table]).whereIn('measurements.batch_id', db('batches').where('uploaded_by', user.id).select('id'));
+  const otherObservers = db('users').where('role', 'observer').whereNot('id', user.id).select('id');
+  return q.where((w) =>
+    w.whereExists(approved())
+      .orWhere(`${table}.created_by`, user.id)
+      .orWhere((o) => o.whereExists(own).where((c) => c.whereNull(`${table}.created_by`).orWhereNotIn(`${table}.created_by`, otherObservers))),
+  ) as T;
+}
+
+/** Count of the stars a person may know exist (the overview). */
+export async function visibleStarCount(db: Knex, user: SessionUser): Promise<number> {
+  const [{ n }] = await whereStarVisible(db('stars'), db, user).count({ n: '*' });
+  return Number(n);
+}
+
 export function catalogService(db: Knex) {
   return {
     async stars(user: SessionUser, query: StarQuery) {
       if (!(STAR_SORTS as readonly string[]).includes(query.sort)) throw badRequest(`sort must be one of ${STAR_SORTS.join(', ')}`, { fields: [{ field: 'sort', message: 'unknown column' }] });
       let base = db('stars');
       // stars known only from batches a person may not see stay hidden (an indexed EXISTS per star)
-      if (!hasRole(user, ['curator'])) base = base.whereExists(visibleMeasurements(db, user).select(db.raw('1')).whereRaw('measurements.star_id = stars.id'));
+      base = whereStarVisible(base, db, user);
       if (query.q) {
         const like = `%${query.q.replace(/[%_]/g, (c) => `\\${c}`)}%`;
         base = base.where((w) => w.whereRaw("stars.name LIKE ? ESCAPE '\\'", [like]).orWhere('stars.source_id', query.q!));
@@ -69,10 +95,10 @@ export function catalogService(db: Knex) {
     },
 
     async star(user: SessionUser, id: number) {
-      const star = await db('stars').where({ id }).first();
+      // a star a person may not know of is "not found", exactly like a star that does not exist
+      const star = await whereStarVisible(db('stars').where({ id }), db, user).first();
       if (!star) throw notFound(`Star ${id}`);
       const measurements = await visibleMeasurements(db, user).where('measurements.star_id', id).orderBy(['band', 'mjd', 'id']).select();
-      if (!hasRole(user, ['curator']) && measurements.length === 0) throw notFound(`Star ${id}`);
       // combined value per band and instrument from approved measurements (METHODS.md: inverse-variance weighted q, u)
       const groups = new Map<string, typeof measurements>();
       for (const m of measurements) {

@@ -3,6 +3,7 @@ import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { AppError, badRequest } from '../errors.js';
 import { DEMO_PASSWORD, hashPassword } from '../auth/passwords.js';
+import { endAccountAccess } from '../auth/service.js';
 import type { Mailer } from './transport.js';
 
 /** sha256 (hex) of a reset token: what the database keeps instead of the token. */
@@ -67,8 +68,9 @@ export function passwordResetService(db: Knex, mailer: Mailer, opts: { passwordR
         await trx('password_resets').where({ user_id: user.id }).whereNull('used_at').update({ used_at: now.toISOString() });
 
         await trx('users').where({ id: user.id }).update({ password_hash: await hashPassword(newPassword), updated_at: now.toISOString() });
-        await recordAudit(trx, { actorId: user.id, action: 'user.password_reset', entityType: 'user', entityId: user.id, after: { resetId: reset.id } });
-        await trx('sessions').where('sess', 'like', `%"user":${user.id}}%`).delete();
+        // every session ends and every API token of the account is revoked
+        const ended = await endAccountAccess(trx, user.id, { actorId: user.id, reason: 'password reset by e-mailed link' });
+        await recordAudit(trx, { actorId: user.id, action: 'user.password_reset', entityType: 'user', entityId: user.id, after: { resetId: reset.id, ...ended } });
         return user.id as number;
       });
 
@@ -78,8 +80,8 @@ export function passwordResetService(db: Knex, mailer: Mailer, opts: { passwordR
         subject: 'Your Starveil password was changed',
         text:
           `Hello ${user.name},\n\n` +
-          `The password of the Starveil account ${user.email} was just changed with an e-mailed reset link, ` +
-          `and every signed-in session of the account was ended.\n\n` +
+          `The password of the Starveil account ${user.email} was just changed with an e-mailed reset link; ` +
+          `every signed-in session of the account was ended and its API tokens were revoked.\n\n` +
           `If you did not do this, ask an admin to disable the account at once.\n\n` +
           `-- \nStarveil · sent automatically, replies are not read.`,
       });

@@ -251,7 +251,7 @@ export const OPERATIONS: Operation[] = [
       offsetQuery('measurements'),
       query('sort', 'column to sort by (default line)', { enum: [...MEASUREMENT_SORTS], default: 'line' }),
       orderQuery('asc', '; any value but desc is asc'),
-      query('filter.state', 'only measurements in this state', { enum: ['pending', 'conflict', 'ambiguous', 'approved', 'rejected'] }),
+      query('filter.state', 'only measurements in this state', { enum: ['pending', 'conflict', 'ambiguous', 'approved', 'rejected', 'withdrawn'] }),
       query('filter.band', 'only this band', { enum: ['U', 'B', 'V', 'R', 'I'] }),
       query('filter.instrument', 'only this instrument code', { type: 'string' }),
       query('filter.distance_method', 'only this distance method', { enum: ['inverse_parallax', 'edsd_mode', 'given'] }),

@@ -3,6 +3,7 @@ import type { Knex } from 'knex';
 import { guard, hasRole } from '../auth/roles.js';
 import { badRequest, notFound } from '../errors.js';
 import { validateBody } from '../lib/validate.js';
+import { singleValuedQuery } from '../lib/query.js';
 import type { MeasurementService } from '../measurements/service.js';
 import type { ReviewService } from './service.js';
 
@@ -17,7 +18,7 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
   const r = Router();
   const curator = guard(['curator']);
 
-  r.get('/review/queue', curator, async (req, res) => {
+  r.get('/review/queue', curator, singleValuedQuery, async (req, res) => {
     const state = String(req.query.state ?? 'awaiting_review');
     if (!['awaiting_review', 'approved', 'returned', 'needs_mapping', 'failed', 'checking'].includes(state)) throw badRequest('state must be awaiting_review, approved, returned, needs_mapping, checking or failed', { fields: [{ field: 'state', message: 'unknown state' }] });
     const sort = (['age', 'rows', 'uploader'].includes(String(req.query.sort)) ? req.query.sort : 'age') as 'age' | 'rows' | 'uploader';
@@ -25,7 +26,7 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
   });
 
   // the review table: observers may read their own batch's measurements, curators every batch's
-  r.get('/batches/:id/measurements', guard(['observer', 'curator']), async (req, res) => {
+  r.get('/batches/:id/measurements', guard(['observer', 'curator']), singleValuedQuery, async (req, res) => {
     const id = positiveId(req.params.id, 'batch');
     if (!hasRole(req.user, ['curator'])) {
       const b = await db('batches').where({ id }).first('uploaded_by');
@@ -42,7 +43,7 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
       if (m && typeof v === 'string' && v !== '') filters[m[1]] = v;
     }
     if (q.filter && typeof q.filter === 'object') for (const [k, v] of Object.entries(q.filter)) if (typeof v === 'string' && v !== '') filters[k] = v;
-    res.json(await review.measurements(id, { sort: String(q.sort ?? 'line'), order: q.order === 'desc' ? 'desc' : 'asc', limit, offset, filters, search: q.search ? String(q.search) : undefined }));
+    res.json(await review.measurements(id, { sort: String(q.sort ?? 'line'), order: q.order === 'desc' ? 'desc' : 'asc', limit, offset, filters, search: q.search ? String(q.search) : undefined }, req.user!));
   });
 
   r.patch('/measurements/:id', curator, validateBody('api/measurement-patch'), async (req, res) => {
@@ -61,11 +62,11 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
   });
 
   r.post('/measurements/approve', curator, validateBody('api/measurement-ids'), async (req, res) => {
-    res.json(await measurements.setState(req.user!.id, req.body.ids, 'approved', req.body.reason ?? null));
+    res.json(await measurements.setState(req.user!.id, req.body.ids, 'approved', req.body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'withdrawn'] }));
   });
 
   r.post('/measurements/reject', curator, validateBody('api/measurement-ids'), async (req, res) => {
-    res.json(await measurements.setState(req.user!.id, req.body.ids, 'rejected', req.body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'conflict', 'ambiguous'] }));
+    res.json(await measurements.setState(req.user!.id, req.body.ids, 'rejected', req.body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'withdrawn', 'conflict', 'ambiguous'] }));
   });
 
   r.post('/measurements/:id/resolve', curator, validateBody('api/measurement-resolve'), async (req, res) => {
@@ -82,11 +83,11 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
   });
 
   r.post('/batches/:id/approve', curator, validateBody('api/batch-decision'), async (req, res) => {
-    res.json(await review.decide(req.user!.id, positiveId(req.params.id, 'batch'), 'approved', req.body.note ?? null));
+    res.json(await review.decide(req.user!.id, positiveId(req.params.id, 'batch'), 'approved', req.body?.note ?? null));
   });
 
   r.post('/batches/:id/reject', curator, validateBody('api/batch-decision'), async (req, res) => {
-    res.json(await review.decide(req.user!.id, positiveId(req.params.id, 'batch'), 'returned', req.body.note ?? null));
+    res.json(await review.decide(req.user!.id, positiveId(req.params.id, 'batch'), 'returned', req.body?.note ?? null));
   });
 
   return r;

@@ -1,6 +1,8 @@
 import type { Knex } from 'knex';
 import { recordAudit, auditFor } from '../audit/service.js';
 import { AppError, badRequest, notFound } from '../errors.js';
+import { hasRole, type SessionUser } from '../auth/roles.js';
+import { visibleMeasurements, whereStarVisible } from '../catalog/service.js';
 
 export const MEASUREMENT_SORTS = ['line', 'state', 'band', 'instrument', 'mjd', 'q', 'u', 'p', 'p_debiased', 'theta_deg', 'theta_err_deg', 'distance_pc', 'star_name'] as const;
 const FILTERABLE = ['state', 'band', 'instrument', 'distance_method'] as const;
@@ -29,7 +31,10 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
     },
 
     /** One page of a batch's measurements (server-side sort and filters), for the review table. */
-    async measurements(batchId: number, q: { sort: string; order: 'asc' | 'desc'; limit: number; offset: number; filters: Record<string, string>; search?: string }) {
+    async measurements(batchId: number, q: { sort: string; order: 'asc' | 'desc'; limit: number; offset: number; filters: Record<string, string>; search?: string }, user?: SessionUser) {
+      // curators see everything; an observer reading their own batch sees only the stars and competing
+      // values they may know of (another observer's unapproved star or value stays hidden)
+      const restricted = user !== undefined && !hasRole(user, ['curator']);
       if (!(MEASUREMENT_SORTS as readonly string[]).includes(q.sort)) throw badRequest(`sort must be one of ${MEASUREMENT_SORTS.join(', ')}`, { fields: [{ field: 'sort', message: 'unknown column' }] });
       const batch = await readDb('batches').where({ id: batchId }).first();
       if (!batch) throw notFound(`Batch ${batchId}`);
@@ -38,7 +43,10 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
         if (!(FILTERABLE as readonly string[]).includes(k)) throw badRequest(`filter.${k} is not filterable; use one of ${FILTERABLE.join(', ')}`, { fields: [{ field: `filter.${k}`, message: 'not filterable' }] });
         base = base.where(`measurements.${k}`, v);
       }
-      if (q.search) base = base.where((w) => w.where('stars.name', 'like', `%${q.search}%`).orWhere('stars.source_id', q.search!));
+      if (q.search) {
+        base = base.where((w) => w.where('stars.name', 'like', `%${q.search}%`).orWhere('stars.source_id', q.search!));
+        if (restricted) base = base.whereExists(whereStarVisible(readDb('stars as vs').select(readDb.raw('1')).whereRaw('vs.id = stars.id'), readDb, user!, 'vs'));
+      }
       const [{ n }] = await base.clone().count({ n: '*' });
       const sortCol = q.sort === 'line' ? 'batch_rows.line' : q.sort === 'star_name' ? 'stars.name' : `measurements.${q.sort}`;
       const rows = await base.clone().orderBy(sortCol, q.order).orderBy('measurements.id').limit(q.limit).offset(q.offset).select(
@@ -49,22 +57,47 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       );
       // conflicts and ambiguous matches carry what competes with them
       const otherIds = rows.filter((r) => r.conflicts_with).map((r) => r.conflicts_with);
-      const others = otherIds.length ? await readDb('measurements').whereIn('id', otherIds).select('id', 'state', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'theta_deg', 'batch_id') : [];
+      const othersQuery = restricted ? visibleMeasurements(readDb, user!) : readDb('measurements');
+      const others = otherIds.length ? await othersQuery.whereIn('measurements.id', otherIds).select('measurements.id', 'measurements.state', 'measurements.mjd', 'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err', 'measurements.p', 'measurements.theta_deg', 'measurements.batch_id') : [];
       const byId = new Map(others.map((o) => [o.id, o]));
+      let visibleStar = (_id: number | null | undefined) => true;
+      if (restricted) {
+        const starIds = new Set<number>();
+        for (const r of rows) {
+          if (r.star_id) starIds.add(r.star_id);
+          for (const c of r.candidates_json ? (JSON.parse(r.candidates_json) as { id?: number }[]) : []) if (typeof c.id === 'number') starIds.add(c.id);
+        }
+        const seen = new Set<number>(starIds.size ? await whereStarVisible(readDb('stars').whereIn('stars.id', [...starIds]), readDb, user!).pluck('stars.id') : []);
+        visibleStar = (id) => id !== null && id !== undefined && seen.has(id);
+      }
       return {
         total: Number(n),
-        rows: rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, ...r }) => ({
-          ...r,
-          star_source_id,
-          flags: flags_json ? JSON.parse(flags_json) : [],
-          warnings: warnings_json ? JSON.parse(warnings_json) : [],
-          candidates: candidates_json ? JSON.parse(candidates_json) : [],
-          competing: r.conflicts_with ? byId.get(r.conflicts_with) ?? null : null,
-        })),
+        rows: rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, ...r }) => {
+          const starShown = r.star_id === null || visibleStar(r.star_id);
+          const competing = r.conflicts_with ? byId.get(r.conflicts_with) ?? null : null;
+          return {
+            ...r,
+            star_id: starShown ? r.star_id : null,
+            star_name: starShown ? r.star_name : null,
+            star_source_id: starShown ? star_source_id : null,
+            conflicts_with: competing || !restricted ? r.conflicts_with : null,
+            flags: flags_json ? JSON.parse(flags_json) : [],
+            warnings: warnings_json ? JSON.parse(warnings_json) : [],
+            candidates: (candidates_json ? (JSON.parse(candidates_json) as { id?: number }[]) : []).filter((c) => !restricted || visibleStar(c.id)),
+            competing,
+          };
+        }),
       };
     },
 
-    /** Approve (or return) a whole batch: every pending measurement changes state; held rows stay held. */
+    /**
+     * Approve (or return) a whole batch; held rows (conflict, ambiguous) stay held.
+     * Approving: every pending measurement, and every one a return withdrew, becomes approved.
+     * Returning: every pending measurement becomes rejected, and every approved one is withdrawn
+     * (state `withdrawn`): out of the approved catalog, so catalog reads, new tomography runs,
+     * masks and new releases stop using it. Approving the batch again restores exactly those.
+     * Allowed: awaiting_review → approved | returned; approved → returned; returned → approved.
+     */
     async decide(actorId: number, batchId: number, decision: 'approved' | 'returned', note: string | null) {
       const result = await db.transaction(async (trx) => {
         const b = await trx('batches').where({ id: batchId }).first();
@@ -74,14 +107,23 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
         const target = decision === 'approved' ? 'approved' : 'rejected';
         const pending = await trx('measurements').where({ batch_id: batchId, state: 'pending' }).pluck('id');
         const now = new Date().toISOString();
-        for (let i = 0; i < pending.length; i += 900) await trx('measurements').whereIn('id', pending.slice(i, i + 900)).update({ state: target, version: trx.raw('version + 1'), updated_at: now, updated_by: actorId });
+        const setState = async (ids: number[], state: string) => {
+          for (let i = 0; i < ids.length; i += 900) await trx('measurements').whereIn('id', ids.slice(i, i + 900)).update({ state, version: trx.raw('version + 1'), updated_at: now, updated_by: actorId });
+        };
+        await setState(pending, target);
+        // approving restores what a return withdrew; returning withdraws what is approved
+        const moved = await trx('measurements').where({ batch_id: batchId, state: decision === 'approved' ? 'withdrawn' : 'approved' }).pluck('id');
+        await setState(moved, decision === 'approved' ? 'approved' : 'withdrawn');
         const held = await trx('measurements').where({ batch_id: batchId }).whereIn('state', ['conflict', 'ambiguous']).select('state').count({ n: '*' }).groupBy('state');
-        const counts = { changed: pending.length, conflicts: 0, ambiguous: 0 } as Record<string, number>;
+        const counts = { changed: pending.length, conflicts: 0, ambiguous: 0, [decision === 'approved' ? 'restored' : 'withdrawn']: moved.length } as Record<string, number>;
         for (const h of held as { state: string; n: number }[]) counts[h.state === 'conflict' ? 'conflicts' : 'ambiguous'] = Number(h.n);
         await trx('batches').where({ id: batchId }).update({ state: decision, reviewed_by: actorId, reviewed_at: now, review_note: note, updated_at: now });
         await recordAudit(trx, [
           { actorId, action: `batch.${decision === 'approved' ? 'approve' : 'return'}`, entityType: 'batch', entityId: batchId, before: { state: b.state }, after: { state: decision, ...counts }, reason: note },
           ...pending.map((id: number) => ({ actorId, action: `measurement.${decision === 'approved' ? 'approve' : 'reject'}`, entityType: 'measurement', entityId: id, before: { state: 'pending' }, after: { state: target }, reason: `batch ${batchId} ${decision}` })),
+          ...moved.map((id: number) => decision === 'approved'
+            ? { actorId, action: 'measurement.restore', entityType: 'measurement', entityId: id, before: { state: 'withdrawn' }, after: { state: 'approved' }, reason: `batch ${batchId} approved again` }
+            : { actorId, action: 'measurement.withdraw', entityType: 'measurement', entityId: id, before: { state: 'approved' }, after: { state: 'withdrawn' }, reason: `batch ${batchId} returned` }),
         ]);
         return { batch: b, counts };
       });

@@ -2,8 +2,8 @@
 import type { DistanceMethod } from '../../../server/science/distance';
 import type { BatchCounts, BatchState } from '../intake/types';
 
-export type MeasurementState = 'pending' | 'conflict' | 'ambiguous' | 'approved' | 'rejected';
-export const MEASUREMENT_STATES: readonly MeasurementState[] = ['pending', 'conflict', 'ambiguous', 'approved', 'rejected'];
+export type MeasurementState = 'pending' | 'conflict' | 'ambiguous' | 'approved' | 'rejected' | 'withdrawn';
+export const MEASUREMENT_STATES: readonly MeasurementState[] = ['pending', 'conflict', 'ambiguous', 'approved', 'rejected', 'withdrawn'];
 
 export const DISTANCE_METHODS = ['inverse_parallax', 'edsd_mode', 'given'] as const satisfies readonly DistanceMethod[];
 

@@ -57,7 +57,7 @@ export function DecisionDialog({ batchId, uploader, decision, totals, onClose, o
           ) : (
             <>Every pending measurement will become {decision === 'return' ? 'rejected' : 'approved'}.</>
           )}{' '}
-          Rows already approved or rejected keep their state.
+          {decision === 'return' ? 'Approved rows are withdrawn from the catalog until the batch is approved again; rejected rows stay rejected.' : 'Rows withdrawn by an earlier return are approved again; rejected rows stay rejected.'}
         </p>
         {held !== null && held > 0 && (
           <Notice>

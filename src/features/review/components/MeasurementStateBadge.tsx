@@ -6,6 +6,7 @@ const STATE: Record<MeasurementState, { label: string; tone: string; hint: strin
   ambiguous: { label: 'ambiguous', tone: 'text-night bg-amber/25 ring-1 ring-amber/60', hint: 'more than one known star lies within the match radius' },
   approved: { label: 'approved', tone: 'text-ok bg-ok/10 ring-1 ring-ok/40', hint: 'in the catalog' },
   rejected: { label: 'rejected', tone: 'text-bad bg-bad/10 ring-1 ring-bad/40', hint: 'kept, but out of the catalog' },
+  withdrawn: { label: 'withdrawn', tone: 'text-ink bg-line ring-1 ring-line', hint: 'was approved; its batch was returned, so it is out of the catalog until the batch is approved again' },
 };
 
 export const measurementStateLabel = (s: MeasurementState) => STATE[s]?.label ?? s;
