@@ -76,7 +76,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const pp = createPassport(auth);
   const mailer = createMailer(db, config);
   // e-mail is sent after the change has committed and never holds up the request
-  const intake = intakeService(db, config, config.intake, deps.readDb ?? db, (batch) => void notifyCuratorsOfNewBatch(mailer, db, batch));
+  const intake = intakeService(db, config, config.intake, deps.readDb ?? db, (batch) => notifyCuratorsOfNewBatch(mailer, db, batch));
   const measurements = measurementService(db);
   const review = reviewService(db, deps.readDb ?? db, (batch, decision, note, counts) => {
     void (async () => {

@@ -1,4 +1,16 @@
+import { createRequire } from 'node:module';
 import type { Knex } from 'knex';
+
+// Write transactions begin IMMEDIATE: with a background check committing short transactions on
+// its own connection, a deferred transaction that reads and then writes could find its snapshot
+// stale and fail at once (SQLITE_BUSY, no retry). IMMEDIATE takes the write lock up front and
+// waits for it (busy_timeout) instead.
+{
+  const SqliteTransaction = createRequire(import.meta.url)('knex/lib/dialects/sqlite3/execution/sqlite-transaction.js') as { prototype: { begin(conn: unknown): unknown; query(conn: unknown, sql: string): unknown } };
+  SqliteTransaction.prototype.begin = function begin(conn: unknown) {
+    return this.query(conn, 'BEGIN IMMEDIATE;');
+  };
+}
 
 /**
  * The one place that knows which SQL engine is underneath. Everything else uses portable Knex
@@ -15,7 +27,7 @@ export function sqliteConnectionOptions(filename: string): Knex.Config {
       afterCreate(conn: { pragma: (s: string) => unknown }, done: (err: Error | null, conn: unknown) => void) {
         conn.pragma('journal_mode = WAL');
         conn.pragma('foreign_keys = ON');
-        conn.pragma('busy_timeout = 5000');
+        conn.pragma('busy_timeout = 10000');
         conn.pragma('synchronous = NORMAL');
         conn.pragma('cache_size = -65536'); // 64 MiB: the index pages a large batch touches stay cached
         done(null, conn);
@@ -52,7 +64,12 @@ const statementCache = new WeakMap<object, Map<string, Statement>>();
 
 /** The better-sqlite3 handle under a Knex instance or transaction (SQLite only). */
 async function sqliteHandle(db: Knex | Knex.Transaction): Promise<Sqlite> {
-  return (await (db as unknown as { client: { acquireConnection(): Promise<Sqlite> } }).client.acquireConnection()) as Sqlite;
+  const client = (db as unknown as { client: { acquireConnection(): Promise<Sqlite>; releaseConnection(c: Sqlite): Promise<void> } }).client;
+  const conn = await client.acquireConnection();
+  // outside a transaction: give the connection back to the pool at once; callers use the
+  // handle synchronously (better-sqlite3), so no other query can run on it meanwhile
+  if (!(db as Knex.Transaction).isTransaction) await client.releaseConnection(conn);
+  return conn;
 }
 
 async function cachedStatement(db: Knex | Knex.Transaction, sql: string): Promise<{ conn: Sqlite; stmt: Statement }> {
@@ -145,4 +162,104 @@ export async function selectWhereIn<T = Record<string, unknown>>(db: Knex | Knex
   const out: T[] = [];
   for (let i = 0; i < values.length; i += 5000) out.push(...((await db(table).whereIn(column, values.slice(i, i + 5000)).select(cols)) as T[]));
   return out;
+}
+
+export interface WriteStep {
+  table: string;
+  cols: readonly string[];
+  rows: unknown[][];
+}
+
+const sleepSync = (ms: number) => Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
+
+/**
+ * Write rows (steps in order, e.g. stars before the rows that point at them) in short
+ * transactions: each commits after about `budgetMs` of work, so the single SQLite writer is free
+ * in between for everyone else (sign-ins, session writes, curator edits). For a background
+ * check on its own connection: a reader never sees a half-written step only because the rows
+ * belong to a batch that is not visible yet. `extra` runs inside the last transaction (progress).
+ */
+export async function writeInShortTransactions(db: Knex, steps: WriteStep[], budgetMs = 25, extra: { sql: string; params: unknown[] }[] = []): Promise<void> {
+  if (!isSqlite(db)) {
+    await db.transaction(async (trx) => {
+      for (const s of steps) await bulkInsertRows(trx, s.table, s.cols, s.rows);
+      for (const e of extra) await trx.raw(e.sql, e.params as Knex.RawBinding[]);
+    });
+    return;
+  }
+  const client = (db as unknown as { client: { acquireConnection(): Promise<Sqlite>; releaseConnection(c: Sqlite): Promise<void> } }).client;
+  const conn = await client.acquireConnection();
+  try {
+    writeSync(conn, steps, budgetMs, extra);
+  } finally {
+    await client.releaseConnection(conn);
+  }
+}
+
+function writeSync(conn: Sqlite, steps: WriteStep[], budgetMs: number, extra: { sql: string; params: unknown[] }[]): void {
+  let cache = statementCache.get(conn);
+  if (!cache) statementCache.set(conn, (cache = new Map()));
+  const stmtFor = (s: WriteStep) => {
+    const sql = `INSERT INTO "${s.table}" (${s.cols.map((c) => `"${c}"`).join(',')}) VALUES (${s.cols.map(() => '?').join(',')})`;
+    let st = cache!.get(sql);
+    if (!st) cache!.set(sql, (st = conn.prepare(sql)));
+    return st;
+  };
+  let open = false;
+  let t0 = 0;
+  const begin = () => {
+    conn.exec('BEGIN IMMEDIATE');
+    open = true;
+    t0 = performance.now();
+  };
+  try {
+    begin();
+    for (const s of steps) {
+      const st = stmtFor(s);
+      for (let i = 0; i < s.rows.length; i++) {
+        st.run(s.rows[i]);
+        if ((i & 127) === 127 && performance.now() - t0 > budgetMs) {
+          conn.exec('COMMIT');
+          open = false;
+          sleepSync(2); // let a waiting writer in
+          begin();
+        }
+      }
+    }
+    for (const e of extra) conn.prepare(e.sql).run(e.params.map(sqliteValue));
+    conn.exec('COMMIT');
+    open = false;
+  } finally {
+    if (open) conn.exec('ROLLBACK');
+  }
+}
+
+/** Delete rows matching `where` (with its bindings) in short transactions of at most `chunk` rows. */
+export async function deleteInShortTransactions(db: Knex, table: string, where: string, bindings: unknown[], chunk = 5000): Promise<number> {
+  let total = 0;
+  for (;;) {
+    const r = await db.raw(`DELETE FROM "${table}" WHERE id IN (SELECT id FROM "${table}" WHERE ${where} LIMIT ${chunk})`, bindings as Knex.RawBinding[]);
+    const n = isSqlite(db) ? Number((r as { changes?: number }).changes ?? 0) : Number((r as { rowCount?: number }).rowCount ?? 0);
+    total += n;
+    if (n < chunk) return total;
+  }
+}
+
+/**
+ * Reserve `n` consecutive ids of an AUTOINCREMENT table (a short write of its own), so a long
+ * job can assign ids ahead of writing while other connections keep inserting. Returns the first.
+ */
+export async function reserveIds(db: Knex, table: string, n: number): Promise<number> {
+  if (!isSqlite(db)) {
+    const r = await db.raw(`SELECT nextval(pg_get_serial_sequence(?, 'id')) AS first, setval(pg_get_serial_sequence(?, 'id'), currval(pg_get_serial_sequence(?, 'id')) + ? - 1) AS last`, [table, table, table, n]);
+    return Number((r as { rows: { first: number }[] }).rows[0].first);
+  }
+  return db.transaction(async (trx) => {
+    const seq = await trx('sqlite_sequence').where({ name: table }).first('seq');
+    const [{ m }] = await trx(table).max({ m: 'id' });
+    const last = Math.max(Number(seq?.seq ?? 0), Number(m ?? 0));
+    if (seq) await trx('sqlite_sequence').where({ name: table }).update({ seq: last + n });
+    else await trx('sqlite_sequence').insert({ name: table, seq: last + n });
+    return last + 1;
+  });
 }

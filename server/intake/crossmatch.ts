@@ -4,7 +4,7 @@ import { angularSeparationDeg } from '../science/separation.js';
 import { INDEX_NSIDE } from '../measurements/derive.js';
 import { selectRowsInRanges, selectRowsWhereIn } from '../dialect.js';
 
-const STAR_COLS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15'];
+const STAR_COLS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15', 'batch_id'];
 
 export interface StarRef {
   id: number;
@@ -15,6 +15,8 @@ export interface StarRef {
   parallax_mas: number | null;
   parallax_err_mas: number | null;
   hpx15: number;
+  /** the batch that created the star (null: catalog seed or curator) */
+  batch_id?: number | null;
 }
 
 export interface MatchQuery {
@@ -25,26 +27,37 @@ export interface MatchQuery {
   pixels?: ArrayLike<number> & Iterable<number>;
 }
 
-export type MatchResult =
+export type MatchResult = (
   | { kind: 'source_id' | 'position'; star: StarRef }
   | { kind: 'ambiguous'; candidates: { star: StarRef; separationArcsec: number }[] }
-  | { kind: 'none' };
+  | { kind: 'none' }
+  /** the row's source_id belongs to a star the uploader may not see yet: held for curators */
+  | { kind: 'held'; star: StarRef }
+) & {
+  /** stars the uploader may not see (another observer's batch awaiting review) within the tolerance */
+  hidden?: StarRef[];
+};
 
 
 /**
  * Ties rows to known stars: by source_id first, else by position within the tolerance. Two or
  * more stars within the tolerance are reported as ambiguous for the curator — never guessed.
- * Stars created earlier in the same batch are found too (`remember`).
+ * Stars created earlier in the same batch are found too (`remember`). Only stars the uploader
+ * may see take part (`visible(batch_id)`: the catalog, approved batches, the uploader's own);
+ * others are reported as `hidden`, for a note that only curators read.
  */
 export class CrossMatcher {
   private bySource = new Map<string, StarRef>();
   private byPixel = new Map<number, StarRef[]>();
+  private hiddenBySource = new Map<string, StarRef>();
+  private hiddenByPixel = new Map<number, StarRef[]>();
   private loadedPixels = new Set<number>();
   private loadedSources = new Set<string>();
 
   constructor(
     private readonly db: Knex | Knex.Transaction,
     private readonly toleranceArcsec: number,
+    private readonly visible: (batchId: number | null) => boolean = () => true,
   ) {}
 
   private pixelCache = new WeakMap<MatchQuery, number[]>();
@@ -59,6 +72,8 @@ export class CrossMatcher {
   resetChunk(): void {
     this.bySource.clear();
     this.byPixel.clear();
+    this.hiddenBySource.clear();
+    this.hiddenByPixel.clear();
     this.loadedPixels.clear();
     this.loadedSources.clear();
     this.pixelCache = new WeakMap();
@@ -81,7 +96,15 @@ export class CrossMatcher {
         seen.add(id);
         const sourceId = r[2] as string | null;
         if (sourceId && this.bySource.has(sourceId)) continue;
-        this.remember({ id, name: r[1] as string | null, source_id: sourceId, ra_deg: r[3] as number, dec_deg: r[4] as number, parallax_mas: r[5] as number | null, parallax_err_mas: r[6] as number | null, hpx15: Number(r[7]) });
+        const batchId = r[8] === null || r[8] === undefined ? null : Number(r[8]);
+        const star: StarRef = { id, name: r[1] as string | null, source_id: sourceId, ra_deg: r[3] as number, dec_deg: r[4] as number, parallax_mas: r[5] as number | null, parallax_err_mas: r[6] as number | null, hpx15: Number(r[7]), batch_id: batchId };
+        if (this.visible(batchId)) this.remember(star);
+        else {
+          if (sourceId) this.hiddenBySource.set(sourceId, star);
+          const list = this.hiddenByPixel.get(star.hpx15);
+          if (list) list.push(star);
+          else this.hiddenByPixel.set(star.hpx15, [star]);
+        }
       }
     };
     // by source_id first; only rows whose id is unknown need the positional look-up
@@ -110,6 +133,22 @@ export class CrossMatcher {
       const s = this.bySource.get(q.sourceId);
       if (s) return { kind: 'source_id', star: s };
     }
+    const r = this.matchVisible(q);
+    if (!this.hiddenByPixel.size && !this.hiddenBySource.size) return r;
+    const hidden: StarRef[] = [];
+    const held = q.sourceId ? this.hiddenBySource.get(q.sourceId) : undefined;
+    if (held) hidden.push(held);
+    for (const p of this.pixelsFor(q)) {
+      for (const star of this.hiddenByPixel.get(p) ?? []) {
+        if (star === held) continue;
+        if (angularSeparationDeg(q.raDeg, q.decDeg, star.ra_deg, star.dec_deg) * 3600 <= this.toleranceArcsec) hidden.push(star);
+      }
+    }
+    if (held && r.kind === 'none') return { kind: 'held', star: held, hidden };
+    return hidden.length ? { ...r, hidden } : r;
+  }
+
+  private matchVisible(q: MatchQuery): MatchResult {
     const near: { star: StarRef; separationArcsec: number }[] = [];
     const seen = new Set<number>();
     for (const p of this.pixelsFor(q)) {

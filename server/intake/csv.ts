@@ -1,5 +1,7 @@
 import fs from 'node:fs';
-import { parse } from 'csv-parse';
+import { isUtf8 } from 'node:buffer';
+import { parse, type CsvError } from 'csv-parse';
+import { stringify } from 'csv-stringify/sync';
 import { AppError, badRequest } from '../errors.js';
 
 export interface CsvHead {
@@ -9,47 +11,205 @@ export interface CsvHead {
 }
 
 const SNIFF_BYTES = 256 * 1024;
+/** Longest record (one line, or several when a quoted field spans lines), in characters. */
+export const MAX_RECORD_CHARS = 1024 * 1024;
+/** Most columns a header line may name. */
+export const MAX_COLUMNS = 1000;
+
+const fmt = (n: number) => n.toLocaleString('en-US');
+const fileField = (message: string) => ({ fields: [{ field: 'file', message }] });
+
+/** 415: the bytes are not UTF-8 text; names the byte offset (0-based) and the line (1-based). */
+function notText(kind: 'nul' | 'utf8', byteOffset: number, line: number): AppError {
+  if (kind === 'nul') {
+    return new AppError(415, 'not_csv', `The file is not a CSV text file: it contains a NUL byte (binary data) at byte ${fmt(byteOffset)}, line ${fmt(line)}. Export the table as comma-separated text (UTF-8).`, fileField(`binary content at byte ${byteOffset}, line ${line}`));
+  }
+  return new AppError(415, 'not_utf8', `The file is not valid UTF-8 text: the bytes at byte ${fmt(byteOffset)}, line ${fmt(line)} cannot be decoded. Save it as UTF-8 (with or without BOM) and upload again.`, fileField(`undecodable bytes at byte ${byteOffset}, line ${line}`));
+}
+
+/** 400: a record longer than MAX_RECORD_CHARS. */
+export function recordTooLong(line: number): AppError {
+  return badRequest(`Line ${fmt(line)} holds a field or record longer than the limit of ${fmt(MAX_RECORD_CHARS)} characters (an unclosed quote makes the rest of the file one field). Check the quoting of that line.`, {
+    fields: [{ field: 'file', message: `line ${line}: record over ${MAX_RECORD_CHARS} characters` }],
+  });
+}
 
 /**
- * Look at the start of an uploaded file: reject what is not a UTF-8 CSV with a data row, find
- * the delimiter (comma, semicolon or tab), read the header and a preview of the first rows.
+ * Offset of the first byte of `buf` that breaks UTF-8 (RFC 3629: no overlongs, no surrogates,
+ * at most U+10FFFF), or -1. A sequence cut by the end of the buffer counts as valid when
+ * `partialOk` (the next chunk continues it); its start is then returned in `tail`.
+ */
+export function firstInvalidUtf8(buf: Uint8Array, partialOk: boolean): { bad: number; tail: number } {
+  const n = buf.length;
+  let i = 0;
+  while (i < n) {
+    const b = buf[i];
+    if (b < 0x80) {
+      i++;
+      continue;
+    }
+    let need: number;
+    let lo = 0x80;
+    let hi = 0xbf;
+    if (b >= 0xc2 && b <= 0xdf) need = 1;
+    else if (b >= 0xe0 && b <= 0xef) {
+      need = 2;
+      if (b === 0xe0) lo = 0xa0;
+      if (b === 0xed) hi = 0x9f;
+    } else if (b >= 0xf0 && b <= 0xf4) {
+      need = 3;
+      if (b === 0xf0) lo = 0x90;
+      if (b === 0xf4) hi = 0x8f;
+    } else return { bad: i, tail: n };
+    for (let k = 1; k <= need; k++) {
+      if (i + k >= n) return partialOk ? { bad: -1, tail: i } : { bad: i, tail: n };
+      const c = buf[i + k];
+      if (c < (k === 1 ? lo : 0x80) || c > (k === 1 ? hi : 0xbf)) return { bad: i, tail: n };
+    }
+    i += need + 1;
+  }
+  return { bad: -1, tail: n };
+}
+
+/**
+ * Where the valid UTF-8 of a chunk ends: `tail` is the start of a sequence cut by the chunk end
+ * (carried into the next chunk), `bad` the first invalid byte or -1. Native isUtf8 first; the
+ * byte-by-byte scan runs only on a chunk that fails.
+ */
+function scanChunk(chunk: Buffer): { bad: number; tail: number } {
+  let cut = chunk.length;
+  for (let i = chunk.length - 1; i >= Math.max(0, chunk.length - 4); i--) {
+    if ((chunk[i] & 0xc0) !== 0x80) {
+      if (chunk[i] >= 0xc0) cut = i;
+      break;
+    }
+  }
+  if (isUtf8(chunk.subarray(0, cut))) return { bad: -1, tail: cut };
+  return firstInvalidUtf8(chunk, true);
+}
+
+const countNewlines = (buf: Uint8Array, end: number) => {
+  let n = 0;
+  for (let i = buf.indexOf(0x0a); i !== -1 && i < end; i = buf.indexOf(0x0a, i + 1)) n++;
+  return n;
+};
+
+/**
+ * Check every byte of a stored upload, streaming (memory stays at one chunk): no NUL byte, and
+ * valid UTF-8 throughout. The error names the exact byte offset and line. Time is linear
+ * (Buffer.indexOf and the native isUtf8; the byte-by-byte scan runs only on a chunk that fails).
+ */
+export async function checkTextBytes(filePath: string): Promise<{ bytes: number; lines: number }> {
+  let offset = 0;
+  let line = 1;
+  let carry: Buffer = Buffer.alloc(0);
+  for await (const raw of fs.createReadStream(filePath, { highWaterMark: 1 << 20 })) {
+    const chunk = carry.length ? Buffer.concat([carry, raw as Buffer]) : (raw as Buffer);
+    const base = offset - carry.length;
+    const nul = chunk.indexOf(0);
+    if (nul !== -1) throw notText('nul', base + nul, line + countNewlines(chunk, nul));
+    const r = scanChunk(chunk);
+    if (r.bad !== -1) throw notText('utf8', base + r.bad, line + countNewlines(chunk, r.bad));
+    const tail = r.tail;
+    line += countNewlines(chunk, tail);
+    carry = Buffer.from(chunk.subarray(tail));
+    offset += (raw as Buffer).length;
+  }
+  if (carry.length) {
+    const r = firstInvalidUtf8(carry, false);
+    if (r.bad !== -1) throw notText('utf8', offset - carry.length + r.bad, line);
+  }
+  return { bytes: offset, lines: line };
+}
+
+/** Read up to `length` bytes at `position`. */
+function readAt(fd: number, position: number, length: number): Buffer {
+  const buf = Buffer.alloc(length);
+  const n = fs.readSync(fd, buf, 0, length, position);
+  return buf.subarray(0, n);
+}
+
+/**
+ * Look at the start of an uploaded file: reject what is not a UTF-8 CSV with a data row (the
+ * whole file is checked for NUL bytes and UTF-8), find the delimiter (comma, semicolon or tab)
+ * from the first non-blank line, read the header and a preview of the first rows.
  */
 export async function sniffCsv(filePath: string, previewRows = 10): Promise<CsvHead> {
+  const size = fs.statSync(filePath).size;
+  if (size === 0) throw badRequest('The file is empty: expected a CSV file with a header line and at least one data row.', fileField('empty file'));
+  await checkTextBytes(filePath);
+
+  // the header line: the first line that is not blank, found within SNIFF_BYTES + MAX_RECORD_CHARS·4 bytes
   const fd = fs.openSync(filePath, 'r');
-  const buf = Buffer.alloc(SNIFF_BYTES);
-  const n = fs.readSync(fd, buf, 0, SNIFF_BYTES, 0);
-  fs.closeSync(fd);
-  let bytes = buf.subarray(0, n);
-  if (n === 0) throw badRequest('The file is empty: expected a CSV file with a header line and at least one data row.', { fields: [{ field: 'file', message: 'empty file' }] });
-  if (bytes.includes(0)) throw new AppError(415, 'not_csv', 'The file is not a CSV text file (it contains binary data). Export the table as comma-separated text (UTF-8).', { fields: [{ field: 'file', message: 'binary content' }] });
-  if (bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) bytes = bytes.subarray(3);
-  // cut at the last full line so a multi-byte character split at the sniff boundary is not an error
-  const cut = n === SNIFF_BYTES ? bytes.lastIndexOf(0x0a) : bytes.length;
-  let text: string;
+  let head: Buffer;
+  let delimiter = ',';
   try {
-    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes.subarray(0, cut > 0 ? cut : bytes.length));
-  } catch {
-    throw new AppError(415, 'not_utf8', 'The file is not valid UTF-8 text. Save it as UTF-8 (with or without BOM) and upload again.', { fields: [{ field: 'file', message: 'undecodable bytes' }] });
+    head = readAt(fd, 0, Math.min(size, SNIFF_BYTES));
+    let headerText: string | null = null;
+    let headerLine = 0;
+    let pos = head[0] === 0xef && head[1] === 0xbb && head[2] === 0xbf ? 3 : 0;
+    let lineNo = 1;
+    for (;;) {
+      let nl = head.indexOf(0x0a, pos);
+      if (nl === -1 && head.length < size) {
+        // the line continues past what was read: read on, up to the record limit (≤ 4 bytes a character)
+        head = Buffer.concat([head, readAt(fd, head.length, Math.max(0, Math.min(size - head.length, pos + MAX_RECORD_CHARS * 4 + 4 - head.length)))]);
+        nl = head.indexOf(0x0a, pos);
+        if (nl === -1 && head.length < size) throw recordTooLong(lineNo);
+      }
+      const end = nl === -1 ? head.length : nl;
+      const text = head.subarray(pos, end).toString('utf8').replace(/\r$/, '');
+      if (text.trim() !== '') {
+        if (text.length > MAX_RECORD_CHARS) throw recordTooLong(lineNo);
+        headerText = text;
+        headerLine = lineNo;
+        break;
+      }
+      if (nl === -1) break;
+      pos = nl + 1;
+      lineNo++;
+    }
+    if (headerText === null) throw badRequest('The file has no text lines: expected a header line and at least one data row.', fileField('no lines'));
+    const counts = { ',': 0, ';': 0, '\t': 0 };
+    for (const ch of headerText) if (ch === ',' || ch === ';' || ch === '\t') counts[ch]++;
+    if (counts[','] === 0 && counts[';'] === 0 && counts['\t'] === 0) {
+      throw new AppError(415, 'not_csv', `The first line (line ${headerLine}) has no comma, semicolon or tab: expected a CSV header line naming the columns.`, fileField('no delimiter in the header line'));
+    }
+    delimiter = (Object.entries(counts) as [string, number][]).sort((a, b) => b[1] - a[1])[0][0];
+    if (counts[delimiter as ',' | ';' | '\t'] + 1 > MAX_COLUMNS) {
+      throw badRequest(`The header line (line ${headerLine}) names ${fmt(counts[delimiter as ',' | ';' | '\t'] + 1)} columns; at most ${fmt(MAX_COLUMNS)} are accepted. Remove the columns Starveil does not need (see GET /api/v1/intake/columns).`, fileField(`over ${MAX_COLUMNS} columns`));
+    }
+  } finally {
+    fs.closeSync(fd);
   }
-  const lines = text.split(/\r?\n/).filter((l) => l.trim() !== '');
-  if (lines.length === 0) throw badRequest('The file has no text lines: expected a header line and at least one data row.', { fields: [{ field: 'file', message: 'no lines' }] });
-  const first = lines[0];
-  const counts = { ',': (first.match(/,/g) ?? []).length, ';': (first.match(/;/g) ?? []).length, '\t': (first.match(/\t/g) ?? []).length };
-  const delimiter = (Object.entries(counts).sort((a, b) => b[1] - a[1])[0][1] > 0 ? Object.entries(counts).sort((a, b) => b[1] - a[1])[0][0] : ',') as string;
-  if (counts[','] === 0 && counts[';'] === 0 && counts['\t'] === 0) {
-    throw new AppError(415, 'not_csv', 'The first line has no comma, semicolon or tab: expected a CSV header line naming the columns.', { fields: [{ field: 'file', message: 'no delimiter in the header line' }] });
+
+  // the header and the first rows, parsed as the full check will parse them
+  const records = await readHead(filePath, delimiter, previewRows + 1);
+  const headers = records[0].fields.map((h) => h.trim());
+  const empty = headers.findIndex((h) => h === '');
+  if (empty !== -1) throw badRequest(`The header line (line ${records[0].line}) has an empty column name (column ${empty + 1}). Every column needs a name.`, fileField('empty header name'));
+  const seen = new Map<string, number>();
+  for (let i = 0; i < headers.length; i++) {
+    const k = headers[i].toLowerCase();
+    const first = seen.get(k);
+    if (first !== undefined) {
+      const same = headers[first] === headers[i] ? `"${headers[i]}"` : `"${headers[first]}" / "${headers[i]}" (names differing only in case count as one)`;
+      throw badRequest(`The header line names the column ${same} twice: columns ${first + 1} and ${i + 1}.`, fileField(`duplicate header ${headers[i]}`));
+    }
+    seen.set(k, i);
   }
-  const records: string[][] = await new Promise((resolve, reject) => {
-    parse(lines.slice(0, previewRows + 1).join('\n'), { delimiter, relax_column_count: true, relax_quotes: true, trim: true, skip_empty_lines: true }, (err, out: string[][]) => (err ? reject(err) : resolve(out)));
-  }).catch((e: Error) => {
-    throw badRequest(`The start of the file cannot be read as CSV: ${e.message}`, { fields: [{ field: 'file', message: e.message }] });
-  }) as string[][];
-  const headers = records[0].map((h) => h.trim());
-  if (headers.some((h) => h === '')) throw badRequest(`The header line has an empty column name (column ${headers.findIndex((h) => h === '') + 1}). Every column needs a name.`, { fields: [{ field: 'file', message: 'empty header name' }] });
-  const dup = headers.find((h, i) => headers.findIndex((x) => x.toLowerCase() === h.toLowerCase()) !== i);
-  if (dup) throw badRequest(`The header line names the column "${dup}" twice.`, { fields: [{ field: 'file', message: `duplicate header ${dup}` }] });
-  if (records.length < 2) throw badRequest('The file has a header line but no data rows.', { fields: [{ field: 'file', message: 'header only' }] });
-  return { headers, delimiter, preview: records.slice(1, previewRows + 1) };
+  if (records.length < 2) throw badRequest(`The file has a header line (line ${records[0].line}) but no data rows.`, fileField('header only'));
+  return { headers, delimiter, preview: records.slice(1, previewRows + 1).map((r) => r.fields) };
+}
+
+/** The first `count` records (header first), with their line numbers; blank leading lines skipped. */
+async function readHead(filePath: string, delimiter: string, count: number): Promise<CsvRecord[]> {
+  const out: CsvRecord[] = [];
+  for await (const batch of readCsvRecords(filePath, delimiter, { includeHeader: true, limit: count })) {
+    out.push(...batch);
+    if (out.length >= count) break;
+  }
+  return out.slice(0, count);
 }
 
 /** Rows per chunk: each chunk is checked and written as a unit. */
@@ -60,28 +220,43 @@ export interface CsvRecord {
   fields: string[];
 }
 
+/** A record of empty fields only (a blank or whitespace-only line). */
+const blank = (fields: string[]) => fields.every((f) => f === '');
+
 /**
- * Stream the data rows of a stored upload, with their line numbers (the header is line 1).
- * Invalid UTF-8 anywhere fails the read with the byte offset; `onBytes` reports progress.
+ * Stream the data rows of a stored upload, with their line numbers (blank lines before the header
+ * are skipped and counted). Invalid UTF-8 or a NUL byte anywhere fails the read naming the byte
+ * offset and line; a record over MAX_RECORD_CHARS fails naming its line. `onBytes` reports progress.
  */
 export async function* readCsvRows(filePath: string, delimiter: string, onBytes?: (bytes: number) => void): AsyncGenerator<CsvRecord[]> {
-  const decoder = new TextDecoder('utf-8', { fatal: true });
+  yield* readCsvRecords(filePath, delimiter, { includeHeader: false, onBytes });
+}
+
+async function* readCsvRecords(filePath: string, delimiter: string, opts: { includeHeader: boolean; limit?: number; onBytes?: (bytes: number) => void }): AsyncGenerator<CsvRecord[]> {
   let offset = 0;
-  const parser = parse({ delimiter, bom: true, relax_column_count: true, relax_quotes: true, trim: true, skip_empty_lines: true, info: true, from_line: 2 });
-  const input = fs.createReadStream(filePath, { highWaterMark: 1 << 20 });
+  let line = 1;
+  let carry: Buffer = Buffer.alloc(0);
+  const decoder = new TextDecoder('utf-8');
+  const parser = parse({ delimiter, bom: true, relax_column_count: true, relax_quotes: true, trim: true, skip_empty_lines: true, info: true, max_record_size: MAX_RECORD_CHARS, record_delimiter: ['\r\n', '\n', '\r'] });
+  // the head needs a few records: read it in small chunks so the parser does not run through megabytes
+  const input = fs.createReadStream(filePath, { highWaterMark: opts.limit ? 1 << 14 : 1 << 20 });
+  let lastLine = 0;
   const feed = (async () => {
     try {
-      for await (const chunk of input) {
-        let text: string;
-        try {
-          text = decoder.decode(chunk as Buffer, { stream: true });
-        } catch {
-          throw badRequest(`The file is not valid UTF-8 near byte ${offset}.`);
-        }
-        offset += (chunk as Buffer).length;
-        onBytes?.(offset);
-        if (!parser.write(text)) await new Promise((r) => parser.once('drain', r));
+      for await (const raw of input) {
+        const chunk = carry.length ? Buffer.concat([carry, raw as Buffer]) : (raw as Buffer);
+        const base = offset - carry.length;
+        const nul = chunk.indexOf(0);
+        if (nul !== -1) throw notText('nul', base + nul, line + countNewlines(chunk, nul));
+        const r = scanChunk(chunk);
+        if (r.bad !== -1) throw notText('utf8', base + r.bad, line + countNewlines(chunk, r.bad));
+        line += countNewlines(chunk, r.tail);
+        carry = Buffer.from(chunk.subarray(r.tail));
+        offset += (raw as Buffer).length;
+        opts.onBytes?.(offset);
+        if (!parser.write(decoder.decode(chunk.subarray(0, r.tail), { stream: true }))) await new Promise((res) => parser.once('drain', res));
       }
+      if (carry.length) throw notText('utf8', offset - carry.length, line);
       parser.end();
     } catch (e) {
       parser.destroy(e as Error);
@@ -89,13 +264,38 @@ export async function* readCsvRows(filePath: string, delimiter: string, onBytes?
   })();
   let batch: CsvRecord[] = [];
   let done = false;
+  let headerSeen = false;
+  let n = 0;
   try {
-    for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
-      batch.push({ line: item.info.lines, fields: item.record });
-      if (batch.length >= CSV_CHUNK_ROWS) {
-        yield batch;
-        batch = [];
+    try {
+      for await (const item of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+        if (!headerSeen) {
+          // blank lines before the header (whitespace only, or empty fields) are not the header
+          if (blank(item.record)) continue;
+          headerSeen = true;
+          if (!opts.includeHeader) {
+            lastLine = item.info.lines;
+            continue;
+          }
+        }
+        lastLine = item.info.lines;
+        batch.push({ line: item.info.lines, fields: item.record });
+        n++;
+        if (batch.length >= CSV_CHUNK_ROWS || (opts.limit && n >= opts.limit)) {
+          yield batch;
+          batch = [];
+          if (opts.limit && n >= opts.limit) return;
+        }
       }
+    } catch (e) {
+      if (e instanceof AppError) throw e;
+      const ce = e as CsvError;
+      if (ce?.code === 'CSV_MAX_RECORD_SIZE') throw recordTooLong(lastLine + 1);
+      if (ce?.code && typeof ce.code === 'string' && ce.code.startsWith('CSV_')) {
+        const at = (ce as unknown as { lines?: number }).lines ?? lastLine + 1;
+        throw badRequest(`Line ${fmt(at)} cannot be read as CSV: ${ce.message}`, { fields: [{ field: 'file', message: `line ${at}: ${ce.code}` }] });
+      }
+      throw e;
     }
     await feed;
     done = true;
@@ -107,4 +307,56 @@ export async function* readCsvRows(filePath: string, delimiter: string, onBytes?
       parser.destroy();
     }
   }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Writing CSV that people open in spreadsheets
+
+/** True when the text is a plain decimal number (written as is: a spreadsheet reads it as a number). */
+function plainNumber(s: string): boolean {
+  if (s.length === 0 || s.length > 64) return false;
+  let i = 0;
+  const n = s.length;
+  const digit = (k: number) => s.charCodeAt(k) >= 48 && s.charCodeAt(k) <= 57;
+  if (s[i] === '+' || s[i] === '-') i++;
+  let d = 0;
+  while (i < n && digit(i)) (i++, d++);
+  if (i < n && s[i] === '.') {
+    i++;
+    while (i < n && digit(i)) (i++, d++);
+  }
+  if (d === 0) return false;
+  if (i < n && (s[i] === 'e' || s[i] === 'E')) {
+    i++;
+    if (i < n && (s[i] === '+' || s[i] === '-')) i++;
+    let e = 0;
+    while (i < n && digit(i)) (i++, e++);
+    if (e === 0) return false;
+  }
+  return i === n;
+}
+
+/**
+ * A text cell made safe to open in a spreadsheet (OWASP, "CSV Injection"): a cell starting with
+ * =, +, -, @, tab or carriage return would be read as a formula, so it gets a leading single
+ * quote. Plain numbers (−0.5, +1e3) are left alone so they stay numbers.
+ */
+export function neutraliseCell(s: string): string {
+  if (s.length === 0) return s;
+  const c = s[0];
+  if ((c === '=' || c === '+' || c === '-' || c === '@' || c === '\t' || c === '\r') && !(c !== '=' && c !== '@' && plainNumber(s))) return `'${s}`;
+  return s;
+}
+
+/** csv-stringify options shared by every CSV a person may open: formula cells neutralised, numbers as numbers. */
+export const SAFE_CSV_CAST = {
+  string: (v: string) => neutraliseCell(v),
+  number: (v: number) => (Number.isNaN(v) ? '' : String(v)),
+  boolean: (v: boolean) => (v ? '1' : '0'),
+  date: (v: Date) => v.toISOString(),
+};
+
+/** Rows as CSV text (CRLF line ends by default), every text cell neutralised. */
+export function safeCsv(rows: unknown[][], opts: { eol?: string } = {}): string {
+  return stringify(rows, { cast: SAFE_CSV_CAST, record_delimiter: opts.eol === '\n' ? 'unix' : 'windows' });
 }

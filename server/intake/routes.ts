@@ -26,18 +26,34 @@ function idParam(v: unknown): number {
   return id;
 }
 
+/** A repeated text field or an unusable file name in an upload (multer turns a repeated field into an array). */
+function uploadFieldProblem(body: Record<string, unknown> | undefined, filename: string): { field: string; message: string } | null {
+  for (const field of ['instrument', 'mapping']) {
+    const v = body?.[field];
+    if (v !== undefined && typeof v !== 'string') return { field, message: `The multipart field "${field}" was sent ${Array.isArray(v) ? v.length : 'more than one'} times; send it once.` };
+  }
+  // eslint-disable-next-line no-control-regex
+  if (/[\u0000-\u001f\u007f]/.test(filename)) return { field: 'file', message: 'The file name contains a control character (such as a NUL byte); rename the file and upload again.' };
+  return null;
+}
+
 export function intakeRoutes(deps: { intake: IntakeService; config: Config }): Router {
   const { intake, config } = deps;
   const r = Router();
   const tmpDir = path.join(config.dataDir, 'uploads', 'tmp');
   fs.mkdirSync(tmpDir, { recursive: true });
-  const upload = multer({ dest: tmpDir, limits: { fileSize: config.uploadMaxBytes, files: 1, fields: 10 } });
+  // file names arrive as UTF-8 bytes (browsers, curl): decode them as such, not as latin1
+  const upload = multer({ dest: tmpDir, limits: { fileSize: config.uploadMaxBytes, files: 1, fields: 10 }, defParamCharset: 'utf8' } as multer.Options);
   const uploadOne: RequestHandler = (req, res, next) => {
     upload.single('file')(req, res, (err: unknown) => {
       if (!err) return next();
       if (err instanceof multer.MulterError) {
         if (err.code === 'LIMIT_FILE_SIZE') return next(new AppError(413, 'too_large', `The file is larger than the limit of ${(config.uploadMaxBytes / 1048576).toFixed(0)} MB.`, { fields: [{ field: 'file', message: `over ${config.uploadMaxBytes} bytes` }] }));
         return next(badRequest(`Upload problem: ${err.message}${err.field ? ` (field ${err.field})` : ''}. Send one file in the multipart field "file".`, { fields: [{ field: err.field ?? 'file', message: err.message }] }));
+      }
+      // busboy refuses a part header it cannot read (e.g. a NUL byte in the file name) or a cut-off form
+      if (err instanceof Error && !('status' in err) && /malformed|unexpected end of form|multipart/i.test(err.message)) {
+        return next(badRequest(`The upload form cannot be read (${err.message}): a part header holds a control character such as a NUL byte in the file name, or the form is cut off. Rename the file and send it again in the multipart field "file".`, { fields: [{ field: 'file', message: err.message }] }));
       }
       next(err);
     });
@@ -47,6 +63,11 @@ export function intakeRoutes(deps: { intake: IntakeService; config: Config }): R
 
   r.post('/batches', uploaders, uploadOne, async (req, res) => {
     if (!req.file) throw badRequest('No file: send the CSV in the multipart form field "file".', { fields: [{ field: 'file', message: 'required' }] });
+    const problem = uploadFieldProblem(req.body, req.file.originalname);
+    if (problem) {
+      fs.rmSync(req.file.path, { force: true });
+      throw badRequest(problem.message, { fields: [problem] });
+    }
     const { created, batch } = await intake.upload(req.user!, req.file, { instrument: req.body?.instrument, mapping: req.body?.mapping });
     res.status(created ? 201 : 200).json(batch);
   });

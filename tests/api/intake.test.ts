@@ -28,7 +28,7 @@ async function upload(agent: request.Agent, body: Buffer | string, name = 'night
 describe('bad input is refused with a clear message and changes nothing', () => {
   const cases: [string, Buffer | string, number, RegExp][] = [
     ['an empty file', '', 400, /empty/i],
-    ['a header-only file', `${HEADER}\r\n`, 400, /header line but no data rows/],
+    ['a header-only file', `${HEADER}\r\n`, 400, /header line.* but no data rows/],
     ['a binary file', Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0x0d]), 415, /not a CSV text file/],
     ['a Latin-1 file', Buffer.from(`${HEADER}\nStern \xe9toile,1,10,20,V,0.01,0.01,0.001,0.001,1,0.1,61000,KR-HAWK\n`, 'latin1'), 415, /not valid UTF-8/],
     ['text with no delimiter', 'just some words\nand more words\n', 415, /no comma, semicolon or tab/],

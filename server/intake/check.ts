@@ -1,0 +1,305 @@
+import fs from 'node:fs';
+import type { Knex } from 'knex';
+import { recordAudit } from '../audit/service.js';
+import { deleteInShortTransactions, reserveIds, selectWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
+import { AppError } from '../errors.js';
+import { deriveMeasurement } from '../measurements/derive.js';
+import type { ColumnMapping } from '../measurements/mapping.js';
+import { MEAS_COLS, measurementValues, ROW_COLS, STAR_COLS } from '../measurements/stored.js';
+import { CrossMatcher, type MatchQuery, type MatchResult, type StarRef } from './crossmatch.js';
+import { NUM, NUM_SLOTS, warningsJsonOf, writeDerived, type PrepareContext } from './prepare.js';
+import { preparedChunks } from './prepare-stream.js';
+import { VISIBLE_BATCH_STATES } from './visibility.js';
+
+export type RowState = 'accepted' | 'rejected' | 'duplicate' | 'conflict' | 'ambiguous';
+
+export interface BatchCounts {
+  rows: number;
+  accepted: number;
+  rejected: number;
+  duplicates: number;
+  conflicts: number;
+  ambiguous: number;
+  newStars: number;
+  matchedStars: number;
+  warnings: number;
+}
+
+export const ZERO_COUNTS: BatchCounts = { rows: 0, accepted: 0, rejected: 0, duplicates: 0, conflicts: 0, ambiguous: 0, newStars: 0, matchedStars: 0, warnings: 0 };
+
+export interface CheckOptions {
+  crossmatchArcsec: number;
+  /** two epochs closer than this (days) are the same observation */
+  mjdToleranceDays: number;
+}
+
+export interface CheckProgress {
+  batchId: number;
+  rowsDone: number;
+  bytesDone: number;
+  rowsTotal: number | null;
+}
+
+/** Files at least this large are parsed on a second worker thread, overlapping the matching and writing. */
+export const PARSE_WORKER_MIN_BYTES = 1 << 20;
+
+/** Values equal to within floating-point noise of a CSV round trip. */
+const same = (a: number | null, b: number | null) => (a === null || b === null ? a === b : Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(a), Math.abs(b)));
+
+const parseJson = <T>(s: string | null | undefined, fallback: T): T => (s ? (JSON.parse(s) as T) : fallback);
+
+/** Data rows of a CSV file: its line breaks, less the header (quoted line breaks make it an estimate). */
+export async function countDataRows(path: string): Promise<number> {
+  let n = 0;
+  let last = 10;
+  for await (const chunk of fs.createReadStream(path, { highWaterMark: 1 << 20 }) as AsyncIterable<Buffer>) {
+    let i = -1;
+    while ((i = chunk.indexOf(10, i + 1)) !== -1) n++;
+    if (chunk.length) last = chunk[chunk.length - 1];
+  }
+  if (last !== 10) n++;
+  return Math.max(0, n - 1);
+}
+
+/** Remove whatever an interrupted or failed check of this batch had written (short transactions). */
+export async function clearBatchRows(db: Knex, batchId: number): Promise<void> {
+  await deleteInShortTransactions(db, 'measurements', 'batch_id = ?', [batchId]);
+  await deleteInShortTransactions(db, 'batch_rows', 'batch_id = ?', [batchId]);
+  await deleteInShortTransactions(db, 'stars', 'batch_id = ? AND NOT EXISTS (SELECT 1 FROM measurements m WHERE m.star_id = stars.id)', [batchId]);
+}
+
+/** Grants of ids, reserved in blocks so other connections can insert meanwhile. */
+class IdBlock {
+  private next = 0;
+  private end = 0;
+  constructor(
+    private readonly db: Knex,
+    private readonly table: string,
+  ) {}
+  async ensure(n: number): Promise<void> {
+    if (this.end - this.next >= n) return;
+    const size = Math.max(n, 20_000);
+    this.next = await reserveIds(this.db, this.table, size);
+    this.end = this.next + size;
+  }
+  take(): number {
+    return this.next++;
+  }
+}
+
+/**
+ * The whole check of one batch, on the caller's own connection (a worker thread's): parse,
+ * validate, derive, cross-match, de-duplicate and write. Rows are written in short transactions
+ * and stay invisible (the batch is `checking`) until one last short transaction makes the batch
+ * `awaiting_review`. A failure marks the batch `failed` with a reason in words and clears its rows.
+ */
+export async function checkBatch(db: Knex, batchId: number, opts: CheckOptions, report: (p: CheckProgress) => void): Promise<void> {
+  const b = await db('batches').where({ id: batchId }).first();
+  if (!b || b.state !== 'checking') return;
+  let lines: [number, number] = [0, 0];
+  try {
+    await clearBatchRows(db, batchId);
+    const rowsTotal = await countDataRows(b.stored_path);
+    await db('batches').where({ id: batchId }).update({ rows_done: 0, bytes_done: 0, rows_total: rowsTotal });
+    report({ batchId, rowsDone: 0, bytesDone: 0, rowsTotal });
+    const counts = await run(db, b, opts, rowsTotal, report, (l) => (lines = l));
+    // the flip: one short transaction makes the whole batch visible
+    await db.transaction(async (trx) => {
+      const n = await trx('batches').where({ id: batchId, state: 'checking' }).update({
+        state: 'awaiting_review', counts_json: JSON.stringify(counts), bytes_done: Number(b.size_bytes), rows_done: counts.rows, rows_total: counts.rows, updated_at: new Date().toISOString(), failure: null,
+      });
+      if (!n) throw new AppError(409, 'conflict', 'The batch was changed while it was checked.');
+      await recordAudit(trx, { actorId: b.uploaded_by, action: 'batch.checked', entityType: 'batch', entityId: batchId, after: counts });
+    });
+  } catch (e) {
+    let message: string;
+    if (e instanceof AppError) message = e.message;
+    else {
+      console.error(`intake: batch ${batchId} failed near lines ${lines[0]}–${lines[1]}`, e);
+      message = lines[0]
+        ? `The batch could not be stored: an unexpected problem while writing lines ${lines[0]}–${lines[1]}. Nothing of it was kept; the problem has been logged for the administrators. Uploading the same file again retries it.`
+        : 'The batch could not be checked: an unexpected problem before its first line was read. Nothing of it was kept; the problem has been logged for the administrators. Uploading the same file again retries it.';
+    }
+    await db.transaction(async (trx) => {
+      await trx('batches').where({ id: batchId }).update({ state: 'failed', failure: message, updated_at: new Date().toISOString() });
+      await recordAudit(trx, { actorId: b.uploaded_by, action: 'batch.failed', entityType: 'batch', entityId: batchId, after: { failure: message } });
+    });
+    await clearBatchRows(db, batchId);
+  }
+}
+
+async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTotal: number, report: (p: CheckProgress) => void, onLines: (l: [number, number]) => void): Promise<BatchCounts> {
+  const batchId = b.id as number;
+  const me = b.uploaded_by as number;
+  const proposal = parseJson<{ headers: string[]; delimiter: string } | null>(b.proposal_json, null);
+  const mapping = parseJson<ColumnMapping>(b.mapping_json, {});
+  if (!proposal) throw new AppError(400, 'bad_request', 'The batch has no header information; upload the file again.');
+  const headers = proposal.headers;
+  const headerOf = (canon: string) => mapping[canon] ?? canon;
+  const instruments = new Map<string, { code: string; bands: string[] }>(
+    (await db('instruments').select('code', 'bands')).map((i) => [String(i.code).toLowerCase(), { code: i.code, bands: String(i.bands).split(',') }]),
+  );
+  // whose stars and measurements this uploader's rows may meet: approved batches, the uploader's own, the catalog
+  const approvedOrOwn = new Set<number>([batchId]);
+  const own = new Set<number>([batchId]);
+  // curators (and admins) see every batch awaiting review, so their uploads meet all of them
+  const seesAll = ['curator', 'admin'].includes((await db('users').where({ id: me }).first('role'))?.role);
+  const visibleStates = VISIBLE_BATCH_STATES as unknown as string[];
+  for (const r of await db('batches').where('state', 'approved').orWhere((w) => (seesAll ? w.whereIn('state', visibleStates) : w.where('uploaded_by', me).whereIn('state', visibleStates))).select('id', 'uploaded_by')) {
+    approvedOrOwn.add(r.id);
+    if (r.uploaded_by === me || seesAll) own.add(r.id);
+  }
+  const starVisible = (bid: number | null) => bid === null || approvedOrOwn.has(bid);
+  const now = new Date().toISOString();
+  const matcher = new CrossMatcher(db, opts.crossmatchArcsec, starVisible);
+  const starIds = new IdBlock(db, 'stars');
+  const rowIds = new IdBlock(db, 'batch_rows');
+  const measIds = new IdBlock(db, 'measurements');
+  const counts: BatchCounts = { ...ZERO_COUNTS };
+  const matched = new Set<number>();
+  let bytesDone = 0;
+  let lastReport = 0;
+
+  const ctx: PrepareContext = { headers, mapping, batchInstrument: b.instrument, instruments: [...instruments], crossmatchArcsec: opts.crossmatchArcsec };
+  for await (const c of preparedChunks(b.stored_path, proposal.delimiter, ctx, (x) => (bytesDone = x), Number(b.size_bytes) >= PARSE_WORKER_MIN_BYTES)) {
+    const n = c.n;
+    const num = c.num;
+    onLines([c.lines[0], c.lines[n - 1]]);
+    await Promise.all([starIds.ensure(n), rowIds.ensure(n), measIds.ensure(n)]);
+    const queries: (MatchQuery | null)[] = new Array(n);
+    for (let i = 0; i < n; i++) {
+      if (!c.ok[i]) {
+        queries[i] = null;
+        continue;
+      }
+      const o = i * NUM_SLOTS;
+      const q: MatchQuery = { raDeg: num[o + NUM.pos_ra], decDeg: num[o + NUM.pos_dec] };
+      if (c.sourceId[i] !== null) q.sourceId = c.sourceId[i]!;
+      else q.pixels = c.pix.subarray(c.pixStart[i], c.pixStart[i + 1]);
+      queries[i] = q;
+    }
+    matcher.resetChunk();
+    await matcher.prefetch(queries.filter((q): q is MatchQuery => q !== null));
+    const toLoad = new Set<number>();
+    const matches: (MatchResult | null)[] = queries.map((q) => {
+      if (!q) return null;
+      const m = matcher.match(q);
+      if (m.kind === 'source_id' || m.kind === 'position') toLoad.add(m.star.id);
+      return m;
+    });
+    // measurements the uploader may see of the matched stars, for de-duplication
+    type Known = { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number; line?: number };
+    const known = new Map<string, Known[]>();
+    for (const r of await selectWhereIn<Known & { star_id: number; band: string; instrument: string; state: string; batch_id: number }>(db, 'measurements', 'star_id', [...toLoad], ['id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'state', 'batch_id'])) {
+      if (r.state !== 'approved' && !own.has(r.batch_id)) continue;
+      const k = `${r.star_id}|${r.band}|${r.instrument}`;
+      const list = known.get(k);
+      if (list) list.push(r);
+      else known.set(k, [r]);
+    }
+
+    const newStars: unknown[][] = [];
+    const rowsOut: unknown[][] = [];
+    const measOut: unknown[][] = [];
+    for (let i = 0; i < n; i++) {
+      counts.rows++;
+      const rowId = rowIds.take();
+      const line = c.lines[i];
+      const m = matches[i];
+      if (!m) {
+        counts.rejected++;
+        rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'rejected', c.errorsJson[i], c.warningsJson[i], null, null, null, null, null, null]);
+        continue;
+      }
+      const o = i * NUM_SLOTS;
+      let star: StarRef | null = null;
+      let starMatch: string | null = null;
+      const notes: string[] = [];
+      if (m.hidden?.length) {
+        for (const h of m.hidden) notes.push(`star ${h.id}${h.name ? ` (${h.name})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
+      }
+      if (m.kind === 'source_id' || m.kind === 'position') {
+        star = m.star;
+        starMatch = m.kind;
+        if (star.batch_id !== batchId) matched.add(star.id);
+      } else if (m.kind === 'none') {
+        const plx = num[o + NUM.star_plx];
+        const plxErr = num[o + NUM.star_plx_err];
+        star = {
+          id: starIds.take(), name: c.starName[i], source_id: c.sourceId[i],
+          ra_deg: num[o + NUM.pos_ra], dec_deg: num[o + NUM.pos_dec], parallax_mas: Number.isNaN(plx) ? null : plx, parallax_err_mas: Number.isNaN(plxErr) ? null : plxErr,
+          hpx15: num[o + NUM.star_hpx15], batch_id: batchId,
+        };
+        starMatch = 'new';
+        newStars.push([star.id, star.name, star.source_id, star.ra_deg, star.dec_deg, num[o + NUM.star_glon], num[o + NUM.star_glat], star.parallax_mas, star.parallax_err_mas, star.hpx15, now, me, batchId]);
+        matcher.remember(star);
+        counts.newStars++;
+      }
+      let warningsJson = c.warningsJson[i];
+      const redo = c.redo[i];
+      if (redo && star && star.parallax_mas !== null && star.parallax_err_mas !== null) {
+        // no parallax or distance in the row: derive again with the star's catalog parallax
+        const { derived, warnings } = deriveMeasurement(redo.row, { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas });
+        writeDerived(c, i, derived);
+        warningsJson = warningsJsonOf(redo.warnings, warnings, headerOf);
+      }
+      const measId = measIds.take();
+      const starId = star ? star.id : null;
+      let state: RowState = 'accepted';
+      let measState = 'pending';
+      let candidatesJson: string | null = null;
+      let duplicateOf: number | null = null;
+      const band = c.band[i]!;
+      const instrument = c.instrument[i]!;
+      const mjdRaw = num[o + NUM.mjd];
+      const mjd = Number.isNaN(mjdRaw) ? null : mjdRaw;
+      const q = num[o + NUM.q], u = num[o + NUM.u], qErr = num[o + NUM.q_err], uErr = num[o + NUM.u_err];
+      if (m.kind === 'ambiguous' || m.kind === 'held') {
+        state = 'ambiguous';
+        measState = 'ambiguous';
+        candidatesJson = JSON.stringify(m.kind === 'held' ? [] : m.candidates.map((x) => ({ id: x.star.id, name: x.star.name, sourceId: x.star.source_id, separationArcsec: Number(x.separationArcsec.toFixed(3)) })));
+        counts.ambiguous++;
+      } else {
+        const key = `${starId}|${band}|${instrument}`;
+        let list = known.get(key);
+        const sameEpoch = list?.find((k) => (k.mjd === null && mjd === null) || (k.mjd !== null && mjd !== null && Math.abs(k.mjd - mjd) <= opts.mjdToleranceDays));
+        if (sameEpoch) {
+          const identical = same(sameEpoch.q, q) && same(sameEpoch.u, u) && same(sameEpoch.q_err, qErr) && same(sameEpoch.u_err, uErr);
+          duplicateOf = sameEpoch.id;
+          if (identical) {
+            counts.duplicates++;
+            if (warningsJson !== null) counts.warnings++;
+            rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'duplicate', null, warningsJson, null, starMatch, starId, null, duplicateOf, notes.length ? notes.join('; ') : null]);
+            continue;
+          }
+          state = 'conflict';
+          measState = 'conflict';
+          counts.conflicts++;
+        } else counts.accepted++;
+        const entry = { id: measId, mjd, q, u, q_err: qErr, u_err: uErr, line };
+        if (list) list.push(entry);
+        else known.set(key, (list = [entry]));
+      }
+      if (warningsJson !== null) counts.warnings++;
+      rowsOut.push([rowId, batchId, line, c.valuesJson[i], state, null, warningsJson, candidatesJson, starMatch, starId, measId, duplicateOf, notes.length ? notes.join('; ') : null]);
+      measOut.push(measurementValues(c, i, measId, starId, batchId, rowId, measState, now, state === 'conflict' ? duplicateOf : null));
+    }
+    await writeInShortTransactions(
+      db,
+      [
+        { table: 'stars', cols: STAR_COLS, rows: newStars },
+        { table: 'batch_rows', cols: ROW_COLS, rows: rowsOut },
+        { table: 'measurements', cols: MEAS_COLS, rows: measOut },
+      ],
+      25,
+      [{ sql: 'UPDATE batches SET rows_done = ?, bytes_done = ? WHERE id = ?', params: [counts.rows, bytesDone, batchId] }],
+    );
+    if (Date.now() - lastReport > 250) {
+      lastReport = Date.now();
+      report({ batchId, rowsDone: counts.rows, bytesDone, rowsTotal: Math.max(rowsTotal, counts.rows) });
+    }
+  }
+  counts.matchedStars = matched.size;
+  await syncIdSequences(db, ['stars', 'batch_rows', 'measurements']);
+  return counts;
+}
