@@ -48,13 +48,44 @@ function doubledSums(anglesDeg: number[], weights?: number[]): DoubledSums {
 }
 
 /**
- * Mean axial direction θ̄ = ½·atan2(Σ w sin 2θ, Σ w cos 2θ), in degrees in [0, 180)
- * (Mardia & Jupp 2000). NaN when the doubled-angle resultant is exactly zero (no mean direction).
+ * Below this mean resultant length of the doubled angles the mean direction is taken as undefined:
+ * cos/sin of the doubled angles carry rounding of order 1e-16 each, so exactly opposed
+ * orientations (e.g. 0° and 90°) leave a resultant of ~1e-16 whose atan2 is a meaningless
+ * direction (45° for 0° and 90°). 1e-10 is far above that rounding and far below any resultant
+ * real data would give (common practice: treat a zero resultant as "no mean direction").
  */
+export const AXIAL_RESULTANT_UNDEFINED_BELOW = 1e-10;
+
+export interface AxialMean {
+  /** mean axial direction in [0, 180), NaN when undefined */
+  meanDeg: number;
+  /** mean resultant length R of the doubled angles */
+  resultantLength: number;
+  /** why the mean is undefined, when it is */
+  undefinedReason?: string;
+}
+
+/**
+ * Mean axial direction θ̄ = ½·atan2(Σ w sin 2θ, Σ w cos 2θ), degrees in [0, 180), with its
+ * resultant length (Mardia & Jupp 2000, §9.3). Undefined (NaN, with the reason) when the doubled
+ * angles cancel: the data have no mean orientation, e.g. exactly opposed angles 0° and 90°.
+ */
+export function axialMean(anglesDeg: number[], weights?: number[]): AxialMean {
+  const { c, s, wSum } = doubledSums(anglesDeg, weights);
+  const resultantLength = Math.min(1, Math.hypot(c, s) / wSum);
+  if (resultantLength < AXIAL_RESULTANT_UNDEFINED_BELOW) {
+    return {
+      meanDeg: NaN,
+      resultantLength,
+      undefinedReason: 'the doubled angles cancel (mean resultant length 0, e.g. exactly opposed orientations 90° apart): there is no mean orientation',
+    };
+  }
+  return { meanDeg: wrapAngle180(0.5 * Math.atan2(s, c) * RAD_TO_DEG), resultantLength };
+}
+
+/** Mean axial direction in degrees in [0, 180); NaN when undefined (see axialMean for the reason). */
 export function axialMeanDeg(anglesDeg: number[], weights?: number[]): number {
-  const { c, s } = doubledSums(anglesDeg, weights);
-  if (c === 0 && s === 0) return NaN;
-  return wrapAngle180(0.5 * Math.atan2(s, c) * RAD_TO_DEG);
+  return axialMean(anglesDeg, weights).meanDeg;
 }
 
 /**

@@ -133,9 +133,12 @@ export function mocToJson(moc: Moc): Record<string, number[]> {
 }
 
 /**
- * ASCII serialisation: "order/ipix,ipix-ipix … order/…", orders ascending and separated by a
- * space, consecutive indices written as a range "a-b". The depth is stated as a last, empty
- * "maxOrder/" when it holds no cell.
+ * ASCII serialisation per MOC 2.0 (IVOA Recommendation 2022-07-27, §4.3.2, from memory):
+ * "order/ipix ipix-ipix order/…", every token separated by one space — indices and ranges as
+ * well as orders (`3/3 10 4/16-18 22 5/19-20 17/222 28/123456789 29/`); orders ascending,
+ * consecutive indices written as a range "a-b". The depth is stated as a last, empty
+ * "maxOrder/" when it holds no cell. (MOC 1.1 wrote commas between indices; parseMocAscii still
+ * reads them.)
  */
 export function mocToAscii(moc: Moc): string {
   const parts: string[] = [];
@@ -147,13 +150,13 @@ export function mocToAscii(moc: Moc): string {
       items.push(j > i ? `${list[i]}-${list[j]}` : String(list[i]));
       i = j + 1;
     }
-    parts.push(`${o}/${items.join(',')}`);
+    parts.push(`${o}/${items.join(' ')}`);
   }
   if (!moc.cells.has(moc.maxOrder)) parts.push(`${moc.maxOrder}/`);
   return parts.join(' ');
 }
 
-/** Read the ASCII serialisation (commas or white space between items); the result is normalised. */
+/** Read the ASCII serialisation (MOC 2.0 white space, or MOC 1.1 commas, between items); the result is normalised. */
 export function parseMocAscii(text: string): Moc {
   const cells: { order: number; ipix: number }[] = [];
   let order: number | null = null;

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import {
   angleDifferenceDeg,
   axialCircularStdDeg,
+  axialMean,
   axialMeanDeg,
   axialResultantLength,
   wrapAngle180,
@@ -81,6 +82,22 @@ describe('axial statistics: structure', () => {
     const r = Math.cos((2 * d * Math.PI) / 180);
     expect(axialResultantLength([50 - d, 50 + d])).toBeCloseTo(r, 14);
     expect(axialCircularStdDeg([50 - d, 50 + d])).toBeCloseTo((0.5 * Math.sqrt(-2 * Math.log(r)) * 180) / Math.PI, 12);
+  });
+
+  it('has no mean for exactly opposed orientations: NaN with a reason, not 45°', () => {
+    // Mardia & Jupp 2000 §9.3: the mean direction is undefined when the resultant is zero;
+    // 0° and 90° are opposite as doubled angles (0° and 180°), so they cancel exactly.
+    for (const angles of [[0, 90], [30, 120], [10, 100, 55, 145], [0, 60, 120]]) {
+      const m = axialMean(angles);
+      expect(Number.isNaN(m.meanDeg)).toBe(true);
+      expect(m.undefinedReason).toMatch(/no mean orientation/);
+      expect(Number.isNaN(axialMeanDeg(angles))).toBe(true);
+    }
+    expect(Number.isNaN(axialMeanDeg([0, 90], [2, 2]))).toBe(true);
+    // Nearly opposed is still defined: 0° and 89.9° have R = sin(0.2°)/... ≈ 1.7e-3.
+    const near = axialMean([0, 89.9]);
+    expect(near.undefinedReason).toBeUndefined();
+    expect(near.meanDeg).toBeCloseTo(44.95, 9);
   });
 
   it('rejects empty input and mismatched or negative weights', () => {

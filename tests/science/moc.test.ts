@@ -37,10 +37,59 @@ function assertNormalised(moc: Moc) {
   }
 }
 
+/**
+ * The MOC 2.0 ASCII grammar for a space MOC (IVOA MOC 2.0, 2022-07-27, §4.3.2, from memory):
+ *   moc      ::= [ "s" ] orderset { " " orderset }
+ *   orderset ::= order "/" [ item { " " item } ]
+ *   item     ::= ipix | ipix "-" ipix
+ * tokens separated by spaces, never commas; written here with one space and orders ascending.
+ */
+const MOC2_ASCII = /^s?\d+\/(\d+(-\d+)?( \d+(-\d+)?)*)?( \d+\/(\d+(-\d+)?( \d+(-\d+)?)*)?)*$/;
+function assertMoc2Ascii(text: string) {
+  expect(text).toMatch(MOC2_ASCII);
+  expect(text).not.toContain(',');
+  const orders = [...text.matchAll(/(\d+)\//g)].map((m) => Number(m[1]));
+  expect(orders).toEqual([...orders].sort((a, b) => a - b));
+  expect(new Set(orders).size).toBe(orders.length);
+}
+
+describe('MOC 2.0 ASCII grammar', () => {
+  it('the recommendation\'s example matches the grammar and reads back to itself', () => {
+    // MOC 2.0 §4.3.2 example (from memory): "3/3 10 4/16-18 22 5/19-20 17/222 28/123456789 29/".
+    const example = '3/3 10 4/16-18 22 5/19-20 17/222 28/123456789 29/';
+    assertMoc2Ascii(example);
+    // Starveil stops at order 24 (exact JS integers), so the part up to order 17 is read back.
+    const upTo17 = '3/3 10 4/16-18 22 5/19-20 17/222';
+    const moc = parseMocAscii(upTo17);
+    expect(moc.maxOrder).toBe(17);
+    expect(mocToAscii(moc)).toBe(upTo17);
+    expect(() => parseMocAscii(example)).toThrow(/MOC order 28: expected an integer from 0 to 24/);
+  });
+
+  it('every MOC written follows the grammar (random MOCs)', () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 0, max: 8 }), fc.array(fc.nat(), { maxLength: 200 }), (order, raw) => {
+        const npix = 12 * 4 ** order;
+        const moc = mocFromPixels(order, raw.map((x) => x % npix));
+        const text = mocToAscii(moc);
+        assertMoc2Ascii(text);
+        expect(parseMocAscii(text)).toEqual(moc);
+      }),
+      { numRuns: 200, seed: 20240521 },
+    );
+  });
+
+  it('the grammar check itself refuses comma-separated and out-of-order text', () => {
+    expect('1/1-2,4 8/').not.toMatch(MOC2_ASCII);
+    expect('1/1  2/3').not.toMatch(MOC2_ASCII);
+    expect('1/1 2/').toMatch(MOC2_ASCII);
+  });
+});
+
 describe('the examples of the MOC 2.0 recommendation (from memory)', () => {
   // From memory of IVOA MOC 2.0 §4.3: a MOC of order 8 holding cells at orders 1 and 2, written
-  // "1/1-2,4 2/12-14,21,23,25 8/" in ASCII and {"1":[1,2,4],"2":[12,13,14,21,23,25],"8":[]} in JSON.
-  const ascii = '1/1-2,4 2/12-14,21,23,25 8/';
+  // "1/1-2 4 2/12-14 21 23 25 8/" in ASCII and {"1":[1,2,4],"2":[12,13,14,21,23,25],"8":[]} in JSON.
+  const ascii = '1/1-2 4 2/12-14 21 23 25 8/';
   const json = { '1': [1, 2, 4], '2': [12, 13, 14, 21, 23, 25], '8': [] };
 
   it('builds the example from its cells and writes both serialisations exactly', () => {
@@ -63,7 +112,9 @@ describe('the examples of the MOC 2.0 recommendation (from memory)', () => {
 
   it('accepts white space or commas between items and normalises what it reads', () => {
     const loose = parseMocAscii('2/12 13\n14,15  1/1');
-    expect(mocToAscii(loose)).toBe('1/1,3 2/');
+    expect(mocToAscii(loose)).toBe('1/1 3 2/');
+    // MOC 1.1 text with commas still reads
+    expect(mocToAscii(parseMocAscii('1/1-2,4 2/12-14,21,23,25 8/'))).toBe('1/1-2 4 2/12-14 21 23 25 8/');
   });
 });
 
