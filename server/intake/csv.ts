@@ -198,7 +198,7 @@ export async function sniffCsv(filePath: string, previewRows = 10): Promise<CsvH
     }
     seen.set(k, i);
   }
-  if (records.length < 2) throw badRequest(`The file has a header line (line ${records[0].line}) but no data rows.`, fileField('header only'));
+  if (records.length < 2) throw badRequest(`The file has a header line but no data rows (the header is line ${records[0].line}).`, fileField('header only'));
   return { headers, delimiter, preview: records.slice(1, previewRows + 1).map((r) => r.fields) };
 }
 

@@ -36,9 +36,10 @@ export function missingColumns(mapping: ColumnMapping, opts: { batchInstrument?:
 export function proposeMapping(headers: string[], given: ColumnMapping = {}, saved: ColumnMapping = {}, opts: { batchInstrument?: string | null } = {}): MappingProposal {
   const mapping: ColumnMapping = {};
   const claimed = new Set<string>();
+  const present = new Set(headers);
   for (const source of [given, saved]) {
     for (const [canon, header] of Object.entries(source)) {
-      if (canon in mapping || !COLUMN_BY_NAME.has(canon) || !headers.includes(header) || claimed.has(header)) continue;
+      if (canon in mapping || !COLUMN_BY_NAME.has(canon) || !present.has(header) || claimed.has(header)) continue;
       mapping[canon] = header;
       claimed.add(header);
     }
@@ -48,7 +49,9 @@ export function proposeMapping(headers: string[], given: ColumnMapping = {}, sav
     if (claimed.has(h)) continue;
     const canon = canonicalFor(h);
     if (!canon || canon in mapping) continue;
-    candidates.set(canon, [...(candidates.get(canon) ?? []), h]);
+    const list = candidates.get(canon);
+    if (list) list.push(h);
+    else candidates.set(canon, [h]);
   }
   const ambiguous: Record<string, string[]> = {};
   for (const [canon, hs] of candidates) {
@@ -70,7 +73,8 @@ export function proposeMapping(headers: string[], given: ColumnMapping = {}, sav
       ambiguous[spec.percentOf] = [mapping[spec.percentOf], mapping[canon]];
     }
   }
-  const unmapped = headers.filter((h) => !Object.values(mapping).includes(h) && !Object.values(ambiguous).flat().includes(h));
+  const used = new Set([...Object.values(mapping), ...Object.values(ambiguous).flat()]);
+  const unmapped = headers.filter((h) => !used.has(h));
   return { headers, mapping, ambiguous, unmapped, missing: missingColumns(mapping, opts) };
 }
 
@@ -79,9 +83,14 @@ export function checkMapping(mapping: unknown, headers: string[]): { field: stri
   const problems: { field: string; message: string }[] = [];
   if (!mapping || typeof mapping !== 'object' || Array.isArray(mapping)) return [{ field: 'mapping', message: 'mapping must be a JSON object of canonical column → header' }];
   const used = new Map<string, string>();
-  for (const [canon, header] of Object.entries(mapping as Record<string, unknown>)) {
-    if (!COLUMN_BY_NAME.has(canon)) problems.push({ field: `mapping.${canon}`, message: `${canon} is not a canonical column (see GET /api/v1/intake/columns)` });
-    else if (typeof header !== 'string' || !headers.includes(header)) problems.push({ field: `mapping.${canon}`, message: `header "${String(header)}" is not in the file (headers: ${headers.join(', ')})` });
+  const present = new Set(headers);
+  // name the file's headers, but not tens of thousands of them
+  const listed = headers.length <= 50 ? headers.join(', ') : `${headers.slice(0, 50).join(', ')}, … (${headers.length} in all)`;
+  const entries = Object.entries(mapping as Record<string, unknown>);
+  if (entries.length > COLUMN_BY_NAME.size * 2) return [{ field: 'mapping', message: `mapping has ${entries.length} entries; there are only ${COLUMN_BY_NAME.size} canonical columns` }];
+  for (const [canon, header] of entries) {
+    if (!COLUMN_BY_NAME.has(canon)) problems.push({ field: `mapping.${canon.slice(0, 100)}`, message: `${canon.slice(0, 100)} is not a canonical column (see GET /api/v1/intake/columns)` });
+    else if (typeof header !== 'string' || !present.has(header)) problems.push({ field: `mapping.${canon}`, message: `header "${String(header).slice(0, 200)}" is not in the file (headers: ${listed})` });
     else if (used.has(header)) problems.push({ field: `mapping.${canon}`, message: `header "${header}" is already mapped to ${used.get(header)}` });
     else used.set(header, canon);
     const spec = COLUMN_BY_NAME.get(canon);

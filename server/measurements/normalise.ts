@@ -47,7 +47,12 @@ export interface NormaliseResult {
   warnings: RowIssue[];
 }
 
-const NUMBER_RE = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+/** Longest text accepted in a number cell; longer cells are refused before any parsing. */
+export const MAX_NUMBER_CHARS = 64;
+/** Longest value quoted back in an error message (the stored upload keeps the whole cell). */
+const MAX_QUOTED_CHARS = 200;
+/** 2^64 − 1: the largest unsigned 64-bit identifier. */
+export const MAX_SOURCE_ID = '18446744073709551615';
 const BANDS: Record<string, string> = { u: 'U', b: 'B', v: 'V', r: 'R', rc: 'R', i: 'I', ic: 'I' };
 const validateRow = schema('measurement-row');
 
@@ -60,7 +65,7 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
   const errors: RowIssue[] = [];
   const warnings: RowIssue[] = [];
   const out: Record<string, unknown> = {};
-  const issue = (canon: string, value: string | undefined, message: string): RowIssue => ({ column: headerOf(canon), field: canon, ...(value !== undefined ? { value } : {}), message });
+  const issue = (canon: string, value: string | undefined, message: string): RowIssue => ({ column: headerOf(canon), field: canon, ...(value !== undefined ? { value: quoted(value) } : {}), message });
 
   for (const spec of COLUMNS) {
     const raw = text[spec.name];
@@ -72,18 +77,20 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
       case 'text':
         out[target] = v;
         break;
-      case 'digits':
-        if (!/^\d{1,20}$/.test(v)) errors.push(issue(spec.name, v, 'expected an integer identifier of up to 20 digits'));
-        else out[target] = v.replace(/^0+(?=\d)/, '');
+      case 'digits': {
+        const id = unsignedId(v);
+        if (id === null) errors.push(issue(spec.name, v, `expected an unsigned 64-bit integer identifier: digits only, at most ${MAX_SOURCE_ID} (2^64 − 1)`));
+        else out[target] = id;
         break;
+      }
       case 'ra': {
-        const r = parseRaDeg(v);
+        const r = v.length > MAX_NUMBER_CHARS ? { ok: false as const, message: `expected decimal degrees or hours:minutes:seconds of at most ${MAX_NUMBER_CHARS} characters; this cell has ${v.length}` } : parseRaDeg(v);
         if (r.ok) out[target] = r.value;
         else errors.push(issue(spec.name, v, r.message));
         break;
       }
       case 'dec': {
-        const r = parseDecDeg(v);
+        const r = v.length > MAX_NUMBER_CHARS ? { ok: false as const, message: `expected decimal degrees or ±degrees:arcminutes:arcseconds of at most ${MAX_NUMBER_CHARS} characters; this cell has ${v.length}` } : parseDecDeg(v);
         if (r.ok) out[target] = r.value;
         else errors.push(issue(spec.name, v, r.message));
         break;
@@ -102,11 +109,16 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
         break;
       }
       case 'number': {
-        if (!NUMBER_RE.test(v)) {
-          errors.push(issue(spec.name, v, `expected a number${spec.unit ? ` in ${spec.unit}` : ''}`));
+        if (!isDecimalNumber(v)) {
+          const tooLong = v.length > MAX_NUMBER_CHARS ? ` (at most ${MAX_NUMBER_CHARS} characters; this cell has ${v.length})` : '';
+          errors.push(issue(spec.name, v, `expected a number${spec.unit ? ` in ${spec.unit}` : ''}${tooLong}`));
           break;
         }
         let n = Number(v);
+        if (!Number.isFinite(n)) {
+          errors.push(issue(spec.name, v, `expected a finite number${spec.unit ? ` in ${spec.unit}` : ''}`));
+          break;
+        }
         if (spec.percentOf) n /= 100;
         out[target] = n;
         break;
@@ -133,6 +145,69 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
   return { row: out as unknown as CanonicalRow, errors, warnings };
 }
 
+/** A cell quoted back in a message: long cells are cut (the stored upload keeps them whole). */
+function quoted(v: string): string {
+  return v.length > MAX_QUOTED_CHARS ? `${v.slice(0, MAX_QUOTED_CHARS)}… (${v.length} characters)` : v;
+}
+
+/**
+ * True when `s` is a plain decimal number: [+-] digits [. digits] [(e|E) [+-] digits], with at
+ * least one digit before or after the point, and at most MAX_NUMBER_CHARS characters.
+ * One pass, no backtracking: time is linear in the length, and long cells stop at the cap.
+ * (A regular expression with nested digit runs, /^\d+\.?\d*…$/, backtracks quadratically.)
+ */
+export function isDecimalNumber(s: string): boolean {
+  const n = s.length;
+  if (n === 0 || n > MAX_NUMBER_CHARS) return false;
+  let i = 0;
+  const digit = (k: number) => {
+    const c = s.charCodeAt(k);
+    return c >= 48 && c <= 57;
+  };
+  if (s[i] === '+' || s[i] === '-') i++;
+  let mantissaDigits = 0;
+  while (i < n && digit(i)) {
+    i++;
+    mantissaDigits++;
+  }
+  if (i < n && s[i] === '.') {
+    i++;
+    while (i < n && digit(i)) {
+      i++;
+      mantissaDigits++;
+    }
+  }
+  if (mantissaDigits === 0) return false;
+  if (i < n && (s[i] === 'e' || s[i] === 'E')) {
+    i++;
+    if (i < n && (s[i] === '+' || s[i] === '-')) i++;
+    let expDigits = 0;
+    while (i < n && digit(i)) {
+      i++;
+      expDigits++;
+    }
+    if (expDigits === 0) return false;
+  }
+  return i === n;
+}
+
+/**
+ * An unsigned 64-bit identifier as canonical text (no leading zeros), or null: digits only and
+ * at most 2^64 − 1 = 18446744073709551615 (compared as text: same length, then lexically).
+ */
+export function unsignedId(s: string): string | null {
+  if (s.length === 0 || s.length > 64) return null;
+  for (let i = 0; i < s.length; i++) {
+    const c = s.charCodeAt(i);
+    if (c < 48 || c > 57) return null;
+  }
+  let k = 0;
+  while (k < s.length - 1 && s[k] === '0') k++;
+  const t = s.slice(k);
+  if (t.length > MAX_SOURCE_ID.length || (t.length === MAX_SOURCE_ID.length && t > MAX_SOURCE_ID)) return null;
+  return t;
+}
+
 function dedupeIssues(list: RowIssue[]): RowIssue[] {
   const seen = new Set<string>();
   return list.filter((i) => {
@@ -150,7 +225,7 @@ function schemaIssue(e: ErrorObject, out: Record<string, unknown>, text: Record<
   const unit = spec?.unit && spec.unit !== 'fraction' ? ` ${spec.unit.split(' ')[0]}` : '';
   const sourceName = (f: string) => (text[f] !== undefined ? f : text[`${f}_pct`] !== undefined ? `${f}_pct` : f);
   const value = field ? text[sourceName(field)] : undefined;
-  const mk = (f: string, message: string): RowIssue => ({ column: headerOf(sourceName(f)), field: f, ...(value !== undefined ? { value } : {}), message });
+  const mk = (f: string, message: string): RowIssue => ({ column: headerOf(sourceName(f)), field: f, ...(value !== undefined ? { value: quoted(value) } : {}), message });
   const p = e.params as Record<string, unknown>;
   switch (e.keyword) {
     case 'minimum':
@@ -173,7 +248,7 @@ function schemaIssue(e: ErrorObject, out: Record<string, unknown>, text: Record<
       return { column: headerOf(f), field: f, message: parent?.['x-message'] ?? 'a required combination of columns is missing' };
     }
     case 'pattern':
-      return mk(field, 'expected digits only');
+      return mk(field, field === 'source_id' ? `expected an unsigned 64-bit integer identifier: digits only, at most ${MAX_SOURCE_ID}` : 'expected digits only');
     case 'additionalProperties':
       return { column: String(p.additionalProperty), field: String(p.additionalProperty), message: 'not a known column' };
     default:
