@@ -32,6 +32,8 @@ export const sessionUser = (u: UserRow): SessionUser => ({ id: u.id, email: u.em
 // Compared against when the e-mail is unknown, so both refusals take as long: the same bcrypt
 // cost as real accounts (a cheaper dummy made unknown e-mails answer ~20× faster).
 const DUMMY_HASH = bcrypt.hashSync('not-a-real-password', COST);
+/** bcrypt cost of the dummy hash (tests compare it with the accounts' cost). */
+export const dummyHashRounds = () => bcrypt.getRounds(DUMMY_HASH);
 export const normaliseEmail = (e: string) => e.trim().toLowerCase();
 
 /**

@@ -1,7 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { browserLikeAgent, makeTestApp, signedIn, DEMO, type TestApp } from '../helpers/app.js';
-import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
+import bcrypt from 'bcryptjs';
+import { COST, DEMO_PASSWORD } from '../../server/auth/passwords.js';
+import { dummyHashRounds } from '../../server/auth/service.js';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -168,6 +170,85 @@ describe('own password', () => {
     expect((await agent.post('/api/v1/me/password').send({ currentPassword: 'first-password', newPassword: 'second-password' })).status).toBe(204);
     expect((await request(t.app).post('/api/v1/auth/login').send({ email: 'pw@kestrel.example', password: 'first-password' })).status).toBe(401);
     expect((await request(t.app).post('/api/v1/auth/login').send({ email: 'pw@kestrel.example', password: 'second-password' })).status).toBe(200);
+  });
+});
+
+describe('sign-in limits', () => {
+  const fail = (email: string, headers: Record<string, string> = {}) => request(t.app).post('/api/v1/auth/login').set(headers).send({ email, password: 'not-the-password' });
+
+  it('key on the trimmed, lowercased address: padding and case neither dodge a lockout nor let the right password in', async () => {
+    const admin = await signedIn(t.app, 'admin');
+    await admin.post('/api/v1/admin/users').send({ email: 'padded@kestrel.example', name: 'Padded', role: 'modeler', password: 'padded-password' });
+    const variants = ['padded@kestrel.example', '   padded@kestrel.example', 'PADDED@kestrel.example  ', '\tPadded@Kestrel.Example', ' padded@kestrel.example '];
+    for (const v of variants) expect((await fail(v)).status).toBe(401);
+    // limit 5 per window in this app: every spelling is now locked out, the right password too
+    for (const v of ['padded@kestrel.example', '   padded@kestrel.example', 'Padded@kestrel.example']) {
+      const res = await request(t.app).post('/api/v1/auth/login').send({ email: v, password: 'padded-password' });
+      expect(res.status, JSON.stringify(v)).toBe(429);
+      expect(res.body.error.code).toBe('rate_limited');
+    }
+  });
+
+  it('X-Forwarded-For is not believed unless TRUST_PROXY is set', async () => {
+    const email = 'forwarded@kestrel.example';
+    for (let i = 0; i < 5; i++) expect((await fail(email, { 'X-Forwarded-For': `203.0.113.${i + 1}` })).status).toBe(401);
+    expect((await fail(email, { 'X-Forwarded-For': '198.51.100.7' })).status).toBe(429);
+
+    const proxied = await makeTestApp({ trustProxy: 'loopback', loginRateLimit: { windowMs: 60_000, max: 2 } });
+    try {
+      const at = (ip: string) => request(proxied.app).post('/api/v1/auth/login').set('X-Forwarded-For', ip).send({ email, password: 'nope' });
+      expect((await at('203.0.113.1')).status).toBe(401);
+      expect((await at('203.0.113.1')).status).toBe(401);
+      expect((await at('203.0.113.1')).status).toBe(429);
+      // behind a trusted proxy, another client address has its own count
+      expect((await at('203.0.113.2')).status).toBe(401);
+    } finally {
+      await proxied.close();
+    }
+  });
+
+  it('an unknown e-mail is checked against a dummy hash of the same bcrypt cost as real accounts', async () => {
+    const real = await t.db('users').where({ email: DEMO.observer }).first();
+    // equal cost → equal work for known and unknown addresses (bench/signin-timing.ts prints the times)
+    expect(dummyHashRounds()).toBe(bcrypt.getRounds(real.password_hash));
+    expect(dummyHashRounds()).toBe(COST);
+  });
+});
+
+describe('password change ends other access', () => {
+  it('other sessions end, this one stays, API tokens are revoked, older reset links die', async () => {
+    const admin = await signedIn(t.app, 'admin');
+    const email = 'rotate@kestrel.example';
+    await admin.post('/api/v1/admin/users').send({ email, name: 'Rotate', role: 'modeler', password: 'rotate-password-1' });
+    const here = browserLikeAgent(t.app);
+    const elsewhere = browserLikeAgent(t.app);
+    expect((await here.post('/api/v1/auth/login').send({ email, password: 'rotate-password-1' })).status).toBe(200);
+    expect((await elsewhere.post('/api/v1/auth/login').send({ email, password: 'rotate-password-1' })).status).toBe(200);
+    const token = (await here.post('/api/v1/tokens').send({ name: 'laptop script' })).body.token;
+    const bearer = { Authorization: `Bearer ${token}` };
+    expect((await request(t.app).get('/api/v1/me').set(bearer)).status).toBe(200);
+    // a reset link asked for before the change
+    expect((await request(t.app).post('/api/v1/auth/password-reset/request').send({ email })).status).toBe(202);
+    await t.app.services.mail.idle();
+    const mail = await t.db('outbox').where({ to_address: email }).orderBy('id', 'desc').first();
+    const resetToken = /reset-password\?token=([A-Za-z0-9_-]+)/.exec(mail.text_body)?.[1];
+    expect(resetToken).toBeTruthy();
+
+    expect((await here.post('/api/v1/me/password').send({ currentPassword: 'rotate-password-1', newPassword: 'rotate-password-2' })).status).toBe(204);
+    expect((await here.get('/api/v1/me')).status).toBe(200);
+    expect((await elsewhere.get('/api/v1/me')).status).toBe(401);
+    const afterToken = await request(t.app).get('/api/v1/me').set(bearer);
+    expect(afterToken.status).toBe(401);
+    expect(afterToken.body.error.code).toBe('invalid_token');
+    const listed = (await here.get('/api/v1/tokens')).body.tokens;
+    expect(listed[0].revokedAt).toEqual(expect.any(String));
+    const late = await request(t.app).post('/api/v1/auth/password-reset/confirm').send({ token: resetToken, newPassword: 'attacker-chosen-1' });
+    expect(late.status).toBe(400);
+    expect(late.body.error.details.fields[0].field).toBe('token');
+    expect((await request(t.app).post('/api/v1/auth/login').send({ email, password: 'rotate-password-2' })).status).toBe(200);
+    const userId = (await t.db('users').where({ email }).first()).id;
+    const audit = await t.db('audit_log').where({ action: 'user.password_change', entity_id: String(userId) }).first();
+    expect(JSON.parse(audit.after_json)).toEqual({ endedSessions: 1, revokedTokens: 1, spentResets: 1 });
   });
 });
 

@@ -2,7 +2,7 @@ import crypto from 'node:crypto';
 import net from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
-import { makeTestApp, signedIn, DEMO, type TestApp } from '../helpers/app.js';
+import { browserLikeAgent, makeTestApp, signedIn, DEMO, type TestApp } from '../helpers/app.js';
 import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 import { createMailer } from '../../server/mail/transport.js';
 import { notifyCuratorsOfNewBatch, notifyObserverOfReview } from '../../server/mail/notifications.js';
@@ -143,6 +143,20 @@ describe('password reset', () => {
     expect(audit[2].actor_id).toBe(account.id);
     const notice = (await outboxTo(email)).at(-1);
     expect(notice.subject).toBe('Your Starveil password was changed');
+  });
+
+  it('a reset also revokes every API token of the account', async () => {
+    const email = 'token.holder@kestrel.example';
+    await newAccount(email);
+    const agent = browserLikeAgent(t.app);
+    expect((await agent.post('/api/v1/auth/login').send({ email, password: 'original-password' })).status).toBe(200);
+    const secret = (await agent.post('/api/v1/tokens').send({ name: 'cron job' })).body.token;
+    expect((await request(t.app).get('/api/v1/me').set('Authorization', `Bearer ${secret}`)).status).toBe(200);
+    expect((await confirm(await resetTokenFor(email), 'a-fresh-token-password')).status).toBe(204);
+    const res = await request(t.app).get('/api/v1/me').set('Authorization', `Bearer ${secret}`);
+    expect(res.status).toBe(401);
+    expect(res.body.error.code).toBe('invalid_token');
+    expect((await outboxTo(email)).at(-1).text_body).toMatch(/API tokens were revoked/);
   });
 
   it('a newer reset spends the older links of the same person', async () => {

@@ -62,6 +62,14 @@ const MATRIX: Record<string, Who> = {
   'DELETE /tokens/:id': 'signed-in',
   'GET /sky': 'signed-in',
   'GET /masks': 'signed-in',
+  'GET /standard-stars': 'signed-in',
+  'POST /standard-stars': CUR,
+  'GET /batches/:id/calibration': OBS_CUR,
+  'POST /batches/:id/calibration/apply': CUR,
+  'POST /batches/:id/calibration/revert': CUR,
+  'GET /instruments/:code/calibrations': 'signed-in',
+  'GET /plausibility': 'signed-in',
+  'PATCH /plausibility': CUR,
 };
 
 let t: TestApp;
