@@ -51,7 +51,7 @@ export function calibrationRoutes(deps: { db: Knex; calibration: CalibrationServ
     res.json(await plausibility.settings());
   });
 
-  r.put('/plausibility', curator, validateBody('api/calibration-plausibility'), async (req, res) => {
+  r.patch('/plausibility', curator, validateBody('api/calibration-plausibility'), async (req, res) => {
     res.json(await plausibility.update(req.user!.id, req.body));
   });
 

@@ -188,9 +188,9 @@ describe('plausibility settings', () => {
   it('expose the flags and a ceiling a curator can change', async () => {
     const res = await observer.get('/api/v1/plausibility');
     expect(res.body).toMatchObject({ pCeiling: 0.15, efficiencyMaxPctPerMag: 9, minPSnr: 5, inconsistentTailProbability: 0.001 });
-    expect((await observer.put('/api/v1/plausibility').send({ pCeiling: 0.1 })).status).toBe(403);
-    expect((await curator.put('/api/v1/plausibility').send({ pCeiling: 2 })).status).toBe(400);
-    const put = await curator.put('/api/v1/plausibility').send({ pCeiling: 0.1 });
+    expect((await observer.patch('/api/v1/plausibility').send({ pCeiling: 0.1 })).status).toBe(403);
+    expect((await curator.patch('/api/v1/plausibility').send({ pCeiling: 2 })).status).toBe(400);
+    const put = await curator.patch('/api/v1/plausibility').send({ pCeiling: 0.1 });
     expect(put.status).toBe(200);
     expect(put.body.pCeiling).toBe(0.1);
   });

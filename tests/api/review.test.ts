@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
 import { angularSeparationDeg } from '../../server/science/separation.js';
+import { DEFAULT_RUN, gatherStars } from '../../server/tomography/service.js';
 
 const HEADER = 'name,source_id,ra_deg,dec_deg,band,q,u,q_err,u_err,parallax_mas,parallax_err_mas,mjd,instrument';
 let t: TestApp;
@@ -157,6 +158,62 @@ describe('whole-batch decisions', () => {
     expect(queueAfter.map((x: { id: number }) => x.id)).not.toContain(up.id);
     // the seeded R night was approved by the demo curator
     expect((await observer.get(`/api/v1/batches/${batchId}`)).body.state).toBe('approved');
+  });
+});
+
+describe('returning an approved batch', () => {
+  it('withdraws its measurements from the approved catalog (audited) and approving again restores them', async () => {
+    const observer = await signedIn(t.app, 'observer');
+    const curator = await signedIn(t.app, 'curator');
+    const modeler = await signedIn(t.app, 'modeler');
+    const lines = [HEADER];
+    for (let i = 0; i < 4; i++) lines.push(`withdraw star ${i},,${(140 + i * 0.01).toFixed(4)},-55.0,R,0.01,0.002,0.001,0.001,1.5,0.05,61200,KR-HAWK`);
+    const up = (await observer.post('/api/v1/batches').attach('file', Buffer.from(lines.join('\n')), 'withdraw-4.csv')).body;
+    for (let b = up; ['received', 'checking'].includes(b.state); ) b = (await observer.get(`/api/v1/batches/${up.id}`)).body;
+    const ids: number[] = await t.db('measurements').where({ batch_id: up.id }).orderBy('id').pluck('id');
+    expect(ids).toHaveLength(4);
+    // one row is rejected on its own before the batch is approved: it must stay rejected throughout
+    expect((await curator.post('/api/v1/measurements/reject').send({ ids: [ids[3]], reason: 'cosmic ray' })).status).toBe(200);
+    expect((await curator.post(`/api/v1/batches/${up.id}/approve`).send({})).body.counts).toMatchObject({ changed: 3, restored: 0 });
+    const region = { ra: 140.015, dec: -55, radius: 0.2 };
+    const used = async () => (await gatherStars(t.db, { ...DEFAULT_RUN, minStars: 1, region })).measurementsUsed;
+    expect(await used()).toBe(3);
+    const starOf = async (id: number) => (await t.db('measurements').where({ id }).first()).star_id;
+    expect((await modeler.get(`/api/v1/stars/${await starOf(ids[0])}`)).status).toBe(200);
+
+    const back = await curator.post(`/api/v1/batches/${up.id}/reject`).send({ note: 'the flat field was wrong' });
+    expect(back.status).toBe(200);
+    expect(back.body.counts).toMatchObject({ changed: 0, withdrawn: 3 });
+    const states = await t.db('measurements').whereIn('id', ids).orderBy('id').pluck('state');
+    expect(states).toEqual(['withdrawn', 'withdrawn', 'withdrawn', 'rejected']);
+    // modelers, new tomography runs (and so masks and releases, which read the same approved rows) no longer use them
+    expect(await used()).toBe(0);
+    expect((await modeler.get(`/api/v1/stars/${await starOf(ids[0])}`)).status).toBe(404);
+    expect((await modeler.get('/api/v1/stars?ra=140.015&dec=-55&radius=0.2')).body.total).toBe(0);
+    const hist = (await curator.get(`/api/v1/measurements/${ids[0]}/history`)).body.history;
+    expect(hist.at(-1)).toMatchObject({ action: 'measurement.withdraw', before: { state: 'approved' }, after: { state: 'withdrawn' }, reason: `batch ${up.id} returned` });
+    // the observer sees the state on their own rows
+    const own = (await observer.get(`/api/v1/batches/${up.id}/measurements?filter.state=withdrawn`)).body;
+    expect(own.total).toBe(3);
+    expect((await curator.post(`/api/v1/batches/${up.id}/reject`).send({})).status).toBe(409);
+
+    const again = await curator.post(`/api/v1/batches/${up.id}/approve`).send({ note: 'flat field redone' });
+    expect(again.body.counts).toMatchObject({ changed: 0, restored: 3 });
+    expect(await t.db('measurements').whereIn('id', ids).orderBy('id').pluck('state')).toEqual(['approved', 'approved', 'approved', 'rejected']);
+    expect(await used()).toBe(3);
+    const restored = (await curator.get(`/api/v1/measurements/${ids[0]}/history`)).body.history.at(-1);
+    expect(restored).toMatchObject({ action: 'measurement.restore', before: { state: 'withdrawn' }, after: { state: 'approved' } });
+    const batchAudit = await t.db('audit_log').where({ entity_type: 'batch', entity_id: String(up.id) }).orderBy('id').pluck('action');
+    expect(batchAudit.slice(-3)).toEqual(['batch.approve', 'batch.return', 'batch.approve']);
+  });
+
+  it('a withdrawn measurement can be approved or rejected on its own', async () => {
+    const curator = await signedIn(t.app, 'curator');
+    const m = await t.db('measurements').where({ state: 'approved' }).orderBy('id', 'desc').first();
+    await t.db('measurements').where({ id: m.id }).update({ state: 'withdrawn' });
+    expect((await curator.post('/api/v1/measurements/approve').send({ ids: [m.id] })).body.changed).toBe(1);
+    await t.db('measurements').where({ id: m.id }).update({ state: 'withdrawn' });
+    expect((await curator.post('/api/v1/measurements/reject').send({ ids: [m.id] })).body.changed).toBe(1);
   });
 });
 
