@@ -278,6 +278,7 @@ describe('the OpenAPI document', () => {
     expect(found.flatMap((f) => f.missing)).toEqual([]);
     // the angles modelers read: a measurement's (both frames), a star's combined value, a layer's
     expect(found.flatMap((f) => f.checked).sort()).toEqual([
+      'schemas/responses/calibration-standard-star.json/properties/thetaDeg',
       'schemas/responses/sightline.json/$defs/layer/properties/thetaDeg',
       'schemas/responses/star-detail.json/properties/combined/items/properties/thetaDeg',
       'schemas/responses/stored-measurement.json/properties/theta_deg',
@@ -556,6 +557,31 @@ describe('live answers match the document (drift)', () => {
     await hit(curator, 'post', `/tomography/runs/${started.body.id}/cancel`, '/tomography/runs/:id/cancel', 409);
     await hit(curator, 'post', '/tomography/runs/999999/cancel', '/tomography/runs/:id/cancel', 404);
     if (state === 'cancelled') await hit(modeler, 'get', `/tomography/runs/${started.body.id}/cells`, '/tomography/runs/:id/cells', 409);
+    expect(clean()).toEqual([]);
+  });
+
+  it('calibration from standard stars and plausibility settings', async () => {
+    await hit(observer, 'get', '/standard-stars', '/standard-stars', 200);
+    await hit(curator, 'post', '/standard-stars', '/standard-stars', 201, { name: 'BD+59 389', band: 'R', pPct: 6.4, thetaDeg: 98.0, source: 'drift check entry', fromMemory: true });
+    await hit(curator, 'post', '/standard-stars', '/standard-stars', 409, { name: 'bd+59389', band: 'R', pPct: 6.4, thetaDeg: 98.0, source: 'drift check entry' });
+    await hit(curator, 'post', '/standard-stars', '/standard-stars', 400, { name: 'X', band: 'V' });
+    // a night with one polarized and one unpolarized standard (METHODS.md values, from memory) and a science star
+    const csv = `${HEADER}\nHD 204827,322.2,58.7,V,0.0028,0.0528,0.0003,0.0003,1.2,0.05,61200.2,KR-HAWK\nHD212311,335.5,56.5,V,0.0011,-0.0004,0.0003,0.0003,2.0,0.05,61200.25,KR-HAWK\nScience,10.2,-60.1,V,0.01,0.004,0.0005,0.0005,1.0,0.05,61200.3,KR-HAWK\n`;
+    const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(csv), 'drift-standards.csv');
+    expect(up.status).toBe(201);
+    const id = up.body.id;
+    await hit(observer, 'get', `/batches/${id}/calibration`, '/batches/:id/calibration', 200);
+    await hit(curator, 'get', '/batches/999999/calibration', '/batches/:id/calibration', 404);
+    await hit(curator, 'post', `/batches/${id}/calibration/revert`, '/batches/:id/calibration/revert', 409, {});
+    await hit(curator, 'post', `/batches/${id}/calibration/apply`, '/batches/:id/calibration/apply', 200, { reason: 'drift check' });
+    await hit(curator, 'post', `/batches/${id}/calibration/apply`, '/batches/:id/calibration/apply', 409, {});
+    await hit(curator, 'get', `/batches/${id}/calibration`, '/batches/:id/calibration', 200);
+    await hit(observer, 'get', '/instruments/KR-HAWK/calibrations', '/instruments/:code/calibrations', 200);
+    await hit(curator, 'post', `/batches/${id}/calibration/revert`, '/batches/:id/calibration/revert', 200, {});
+    await hit(observer, 'get', '/instruments/KR-NOPE/calibrations', '/instruments/:code/calibrations', 404);
+    await hit(modeler, 'get', '/plausibility', '/plausibility', 200);
+    await hit(curator, 'patch', '/plausibility', '/plausibility', 200, { pCeiling: 0.15 });
+    await hit(curator, 'patch', '/plausibility', '/plausibility', 400, { pCeiling: -1 });
     expect(clean()).toEqual([]);
   });
 
