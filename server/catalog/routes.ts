@@ -41,7 +41,7 @@ export function catalogRoutes(deps: { db: Knex }): Router {
     const limit = num(q.limit, 'limit') ?? 50;
     const offset = num(q.offset, 'offset') ?? 0;
     if (!Number.isInteger(limit) || limit < 1 || limit > 1000) throw badRequest('limit must be an integer from 1 to 1000', { fields: [{ field: 'limit', message: 'expected 1–1000' }] });
-    if (!Number.isInteger(offset) || offset < 0) throw badRequest('offset must be an integer ≥ 0', { fields: [{ field: 'offset', message: 'expected ≥ 0' }] });
+    if (!Number.isSafeInteger(offset) || offset < 0) throw badRequest('offset must be an integer from 0 to 2^53 − 1', { fields: [{ field: 'offset', message: 'expected an integer ≥ 0' }] });
     const order = q.order === 'desc' ? 'desc' : 'asc';
     res.json(await catalog.stars(req.user!, { q: q.q?.trim() || undefined, ra, dec, radius, sort: q.sort ?? 'id', order, limit, offset }));
   });

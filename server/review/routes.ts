@@ -36,7 +36,7 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
     const limit = q.limit === undefined ? 500 : Number(q.limit);
     const offset = q.offset === undefined ? 0 : Number(q.offset);
     if (!Number.isInteger(limit) || limit < 1 || limit > 5000) throw badRequest('limit must be an integer from 1 to 5000', { fields: [{ field: 'limit', message: 'expected 1–5000' }] });
-    if (!Number.isInteger(offset) || offset < 0) throw badRequest('offset must be an integer ≥ 0', { fields: [{ field: 'offset', message: 'expected ≥ 0' }] });
+    if (!Number.isSafeInteger(offset) || offset < 0) throw badRequest('offset must be an integer from 0 to 2^53 − 1', { fields: [{ field: 'offset', message: 'expected an integer ≥ 0' }] });
     const filters: Record<string, string> = {};
     for (const [k, v] of Object.entries(q)) {
       const m = /^filter\.(\w+)$/.exec(k) ?? /^filter\[(\w+)\]$/.exec(k);
