@@ -3,10 +3,11 @@ import path from 'node:path';
 import express, { type Express } from 'express';
 import session from 'express-session';
 import helmet from 'helmet';
-import { ConnectSessionKnexStore } from 'connect-session-knex';
 import type { Knex } from 'knex';
 import type { Config } from './config.js';
 import { errorMiddleware, notFound } from './errors.js';
+import { SessionStore } from './session-store.js';
+import { openDb } from './db.js';
 import { authService } from './auth/service.js';
 import { createPassport } from './auth/passport.js';
 import { authRoutes } from './auth/routes.js';
@@ -37,6 +38,8 @@ export interface AppDeps {
   db: Knex;
   /** a second connection for reads that must not wait behind a long write (defaults to db) */
   readDb?: Knex;
+  /** the session store's own connection (default: one opened here on config.dbFile) */
+  sessionDb?: Knex;
   config: Config;
 }
 
@@ -48,11 +51,15 @@ export interface AppServices {
   measurements: MeasurementService;
   releases: ReleaseService;
   tokens: TokenService;
+  /** end background work and the connections the app opened itself */
+  close: () => Promise<void>;
 }
 
 /** Build the Express app without listening, so tests can drive it with supertest. */
 export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const { db, config } = deps;
+  // sessions are read and written on every signed-in request: a connection of their own
+  const sessionDb = deps.sessionDb ?? (config.dbFile === ':memory:' ? db : openDb(config.dbFile));
   const app = express();
   app.set('trust proxy', config.trustProxy); // TRUST_PROXY; off unless configured
   app.disable('x-powered-by');
@@ -100,7 +107,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
       resave: false,
       saveUninitialized: false,
       rolling: true,
-      store: new ConnectSessionKnexStore({ knex: db, tableName: 'sessions', createTable: false, cleanupInterval: 10 * 60 * 1000 }),
+      store: new SessionStore(sessionDb),
       cookie: { httpOnly: true, sameSite: 'lax', secure: config.env === 'production', maxAge: 8 * 60 * 60 * 1000 },
     }),
   );
@@ -143,5 +150,9 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     });
   }
   app.use(errorMiddleware);
-  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements, releases, tokens } });
+  const close = async () => {
+    await intake.close();
+    if (!deps.sessionDb && sessionDb !== db) await sessionDb.destroy();
+  };
+  return Object.assign(app, { services: { intake, mail: mailer, tomography, review, measurements, releases, tokens, close } });
 }

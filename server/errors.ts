@@ -32,6 +32,20 @@ export const errorMiddleware: ErrorRequestHandler = (err, _req, res, _next) => {
     res.status(err.status).json({ error: { code: 'bad_request', message: String((err as Error).message) } });
     return;
   }
+  if (isStoreError(err)) {
+    console.error('store unavailable:', err instanceof Error ? err.message : err);
+    res.status(503).set('Retry-After', '2').json({ error: { code: 'unavailable', message: 'The service could not reach its data store just now; please try again in a moment. The problem has been logged.' } });
+    return;
+  }
   console.error(err);
   res.status(500).json({ error: { code: 'internal', message: 'Something went wrong on the server; it has been logged.' } });
 };
+
+/** An error of the database, its pool or a store built on it (never shown to a person as such). */
+export function isStoreError(err: unknown): boolean {
+  if (!err || typeof err !== 'object') return false;
+  const e = err as { code?: unknown; name?: unknown; message?: unknown };
+  if (typeof e.code === 'string' && /^SQLITE_|^ECONNREFUSED$|^57P|^08/.test(e.code)) return true;
+  if (e.name === 'KnexTimeoutError' || e.name === 'SqliteError') return true;
+  return typeof e.message === 'string' && /Unable to acquire a connection|aborted due to pool|database connection is not open|no such table/i.test(e.message);
+}

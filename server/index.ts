@@ -6,6 +6,10 @@ import { createApp } from './app.js';
 import { DEMO_ACCOUNTS } from '../seeds/demo-scenario.js';
 import { DEMO_PASSWORD } from './auth/passwords.js';
 
+// No error inside a store, a pool or a worker may end the process: it is logged and the server stays up.
+process.on('unhandledRejection', (e) => console.error('unhandled rejection (the server stays up):', e));
+process.on('uncaughtException', (e) => console.error('uncaught exception (the server stays up):', e));
+
 const config = loadConfig();
 const db = openDb(config.dbFile);
 await migrateLatest(db);
@@ -25,7 +29,7 @@ const server = app.listen(config.port, () => {
 });
 
 const stop = () => {
-  server.close(() => void Promise.all([db.destroy(), readDb.destroy()]).then(() => process.exit(0)));
+  server.close(() => void Promise.all([app.services.close(), db.destroy(), readDb.destroy()]).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 3000).unref();
 };
 process.on('SIGINT', stop);

@@ -4,6 +4,7 @@ import { hasRole } from '../auth/roles.js';
 import { badRequest, notFound } from '../errors.js';
 import { combineMeasurements } from '../science/combine.js';
 import { whereInCone, withinCone } from './cone.js';
+import { whereMeasurementVisible as whereMeasurementNotHidden, whereStarVisible as whereStarNotHidden } from '../intake/visibility.js';
 
 const STAR_SORTS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'n_measurements'] as const;
 
@@ -20,7 +21,8 @@ export interface StarQuery {
 
 /** Which measurements a person may read: modelers approved only; observers approved + their own batches'. */
 export function visibleMeasurements(db: Knex, user: SessionUser) {
-  const q = db('measurements');
+  // rows of a batch still being checked (or failed) are invisible to everyone (server/intake/visibility.ts)
+  const q = whereMeasurementNotHidden(db('measurements'), db);
   if (hasRole(user, ['curator'])) return q;
   if (user.role === 'observer') return q.where((w) => w.where('measurements.state', 'approved').orWhereIn('measurements.batch_id', db('batches').where('uploaded_by', user.id).select('id')));
   return q.where('measurements.state', 'approved');
@@ -34,6 +36,7 @@ export function visibleMeasurements(db: Knex, user: SessionUser) {
  * name, source_id and very existence stay with that observer and the curators until approval.
  */
 export function whereStarVisible<T extends Knex.QueryBuilder>(q: T, db: Knex, user: SessionUser, table = 'stars'): T {
+  q = whereStarNotHidden(q, db, table);
   if (hasRole(user, ['curator'])) return q;
   const approved = () => db('measurements').select(db.raw('1')).whereRaw('measurements.star_id = ??.id', [table]).where('measurements.state', 'approved');
   if (user.role !== 'observer') return q.whereExists(approved()) as T;

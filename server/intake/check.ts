@@ -201,11 +201,13 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     const newStars: unknown[][] = [];
     const rowsOut: unknown[][] = [];
     const measOut: unknown[][] = [];
+    let newInChunk = false;
     for (let i = 0; i < n; i++) {
       counts.rows++;
       const rowId = rowIds.take();
       const line = c.lines[i];
-      const m = matches[i];
+      // a star created earlier in this chunk is found only by matching again
+      const m = newInChunk && queries[i] ? matcher.match(queries[i]!) : matches[i];
       if (!m) {
         counts.rejected++;
         rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'rejected', c.errorsJson[i], c.warningsJson[i], null, null, null, null, null, null]);
@@ -233,6 +235,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         starMatch = 'new';
         newStars.push([star.id, star.name, star.source_id, star.ra_deg, star.dec_deg, num[o + NUM.star_glon], num[o + NUM.star_glat], star.parallax_mas, star.parallax_err_mas, star.hpx15, now, me, batchId]);
         matcher.remember(star);
+        newInChunk = true;
         counts.newStars++;
       }
       let warningsJson = c.warningsJson[i];

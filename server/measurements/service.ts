@@ -6,6 +6,7 @@ import { ang2pixNest } from '../science/healpix.js';
 import { deriveMeasurement, INDEX_NSIDE, type Derived } from './derive.js';
 import { designation } from './designation.js';
 import { normaliseRow, type CanonicalRow } from './normalise.js';
+import { hiddenBatchIds } from '../intake/visibility.js';
 
 /** The canonical fields a measurement can be edited in (equatorial frame, fractions, degrees). */
 export const EDITABLE = ['ra_deg', 'dec_deg', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'theta_deg', 'theta_err_deg', 'parallax_mas', 'parallax_err_mas', 'distance_pc', 'distance_err_pc', 'ebv'] as const;
@@ -43,7 +44,8 @@ export function derivedColumns(d: Derived) {
  */
 export function measurementService(db: Knex) {
   async function load(trx: Knex | Knex.Transaction, id: number): Promise<MeasurementRow> {
-    const m = await trx('measurements').where({ id }).first();
+    // a measurement of a batch still being checked (or failed) does not exist for anyone yet
+    const m = await trx('measurements').where({ id }).whereNotIn('batch_id', hiddenBatchIds(trx)).first();
     if (!m) throw notFound(`Measurement ${id}`);
     return m;
   }
@@ -112,7 +114,7 @@ export function measurementService(db: Knex) {
       return db.transaction(async (trx) => {
         const from = opts.from ?? ['pending', 'approved', 'rejected'];
         const rows: MeasurementRow[] = [];
-        for (let i = 0; i < ids.length; i += 900) rows.push(...(await trx('measurements').whereIn('id', ids.slice(i, i + 900)).select('id', 'state', 'version')));
+        for (let i = 0; i < ids.length; i += 900) rows.push(...(await trx('measurements').whereIn('id', ids.slice(i, i + 900)).whereNotIn('batch_id', hiddenBatchIds(trx)).select('id', 'state', 'version')));
         const missing = ids.filter((id) => !rows.some((r) => r.id === id));
         if (missing.length) throw notFound(`Measurements ${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ' …' : ''}`);
         const held = rows.filter((r) => !from.includes(r.state));

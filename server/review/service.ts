@@ -3,6 +3,7 @@ import { recordAudit, auditFor } from '../audit/service.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import { hasRole, type SessionUser } from '../auth/roles.js';
 import { visibleMeasurements, whereStarVisible } from '../catalog/service.js';
+import { whereMeasurementVisible as whereMeasurementNotHidden } from '../intake/visibility.js';
 
 export const MEASUREMENT_SORTS = ['line', 'state', 'band', 'instrument', 'mjd', 'q', 'u', 'p', 'p_debiased', 'theta_deg', 'theta_err_deg', 'distance_pc', 'star_name'] as const;
 const FILTERABLE = ['state', 'band', 'instrument', 'distance_method'] as const;
@@ -39,6 +40,7 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       const batch = await readDb('batches').where({ id: batchId }).first();
       if (!batch) throw notFound(`Batch ${batchId}`);
       let base = readDb('measurements').join('batch_rows', 'batch_rows.id', 'measurements.batch_row_id').leftJoin('stars', 'stars.id', 'measurements.star_id').where('measurements.batch_id', batchId);
+      base = whereMeasurementNotHidden(base, readDb); // a batch still being checked shows nothing (server/intake/visibility.ts)
       for (const [k, v] of Object.entries(q.filters)) {
         if (!(FILTERABLE as readonly string[]).includes(k)) throw badRequest(`filter.${k} is not filterable; use one of ${FILTERABLE.join(', ')}`, { fields: [{ field: `filter.${k}`, message: 'not filterable' }] });
         base = base.where(`measurements.${k}`, v);
