@@ -204,3 +204,9 @@ export function bandNormalisation(fromBand: string, toBand: string, lambdaMaxUm:
   return { factor: serkowskiFraction(1, to, lambdaMaxUm, kk) / serkowskiFraction(1, from, lambdaMaxUm, kk), fromBand: fromBand as Band, toBand: toBand as Band, lambdaMaxUm, k: kk };
 }
 
+
+/** The run parameters of a band normalisation with the defaults filled in (band = referenceBand). */
+export function normalisationParams(referenceBand: string, lambdaMaxUm?: number, k?: number) {
+  const n = bandNormalisation(referenceBand, referenceBand, lambdaMaxUm ?? TYPICAL_LAMBDA_MAX_UM, k);
+  return { band: referenceBand, referenceBand, lambdaMaxUm: n.lambdaMaxUm, serkowskiK: n.k };
+}

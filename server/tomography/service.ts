@@ -5,6 +5,7 @@ import { bulkInsert } from '../dialect.js';
 import { AppError, notFound } from '../errors.js';
 import { whereInCone, withinCone } from '../catalog/cone.js';
 import { combineMeasurements } from '../science/combine.js';
+import { bandNormalisation, normalisationParams } from '../science/calibration.js';
 import { distanceFromParallax } from '../science/distance.js';
 import { galacticToIcrs } from '../science/frames.js';
 import { ang2pixNest, maxPixelRadiusDeg, pix2angNest } from '../science/healpix.js';
@@ -20,6 +21,12 @@ export interface RunParams {
   jumpThresholdDeg: number;
   minSegmentLength: number;
   region: { ra: number; dec: number; radius: number } | null;
+  /** bring measurements of every band to this band with the Serkowski law (server/science/calibration.ts); absent: `band` only */
+  referenceBand?: string | null;
+  /** µm, λmax of the Serkowski law used for the normalisation (default 0.55) */
+  lambdaMaxUm?: number;
+  /** K of the Serkowski law (default 0.01 + 1.66 λmax, Whittet et al. 1992) */
+  serkowskiK?: number;
 }
 
 export const DEFAULT_RUN: RunParams = { nside: 32, coordsys: 'G', band: 'R', minStars: 10, draws: 100, jumpThresholdDeg: 30, minSegmentLength: 3, region: null };
@@ -37,14 +44,14 @@ export async function gatherStars(db: Knex, p: RunParams, from: { releaseId?: nu
   const [M, S] = from.releaseId ? ['release_measurements', 'release_stars'] : ['measurements', 'stars'];
   let q = db(`${M} as m`)
     .join(`${S} as s`, from.releaseId ? (j) => j.on('s.star_id', 'm.star_id').andOn('s.release_id', 'm.release_id') : (j) => j.on('s.id', 'm.star_id'))
-    .where('m.band', p.band)
     .orderBy(['m.star_id', from.releaseId ? 'm.measurement_id' : 'm.id'])
     .select(
-      from.releaseId ? 'm.measurement_id as id' : 'm.id', 'm.version', 'm.star_id', 'm.q', 'm.u', 'm.q_err', 'm.u_err',
+      from.releaseId ? 'm.measurement_id as id' : 'm.id', 'm.version', 'm.band', 'm.star_id', 'm.q', 'm.u', 'm.q_err', 'm.u_err',
       'm.q_gal', 'm.u_gal', 'm.q_gal_err', 'm.u_gal_err', 'm.distance_pc', 'm.distance_lo_pc', 'm.distance_hi_pc',
       's.ra_deg', 's.dec_deg', 's.glon_deg', 's.glat_deg', 's.parallax_mas', 's.parallax_err_mas',
     );
   q = from.releaseId ? q.where('m.release_id', from.releaseId) : q.where('m.state', 'approved');
+  if (!p.referenceBand) q = q.where('m.band', p.band);
   if (p.region) q = whereInCone(q, 's.hpx15', p.region.ra, p.region.dec, p.region.radius);
   let rows = await q;
   if (p.region) rows = withinCone(rows, p.region.ra, p.region.dec, p.region.radius);
@@ -56,7 +63,8 @@ export async function gatherStars(db: Knex, p: RunParams, from: { releaseId?: nu
     if (!group.length) return;
     const s = group[0];
     const gal = p.coordsys === 'G';
-    const c = combineMeasurements(group.map((m) => (gal ? { q: m.q_gal, u: m.u_gal, qErr: m.q_gal_err, uErr: m.u_gal_err } : { q: m.q, u: m.u, qErr: m.q_err, uErr: m.u_err })));
+    const scale = (m: { band: string }) => (p.referenceBand ? bandNormalisation(m.band, p.referenceBand, p.lambdaMaxUm, p.serkowskiK).factor : 1);
+    const c = combineMeasurements(group.map((m, _i, _a, f = scale(m)) => (gal ? { q: f * m.q_gal, u: f * m.u_gal, qErr: f * m.q_gal_err, uErr: f * m.u_gal_err } : { q: f * m.q, u: f * m.u, qErr: f * m.q_err, uErr: f * m.u_err })));
     let dist: { distancePc: number; distanceLoPc: number; distanceHiPc: number } | null = null;
     let parallax: { parallaxMas: number; parallaxErrMas: number } | null = null;
     if (s.parallax_mas !== null && s.parallax_err_mas !== null && s.parallax_err_mas > 0) {
@@ -180,6 +188,8 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
   return {
     async start(actorId: number, input: Partial<RunParams>) {
       const params: RunParams = { ...DEFAULT_RUN, ...input, region: input.region ?? null };
+      // band normalisation: recorded with its λmax and K in the params (and so in the fingerprint)
+      if (params.referenceBand) Object.assign(params, normalisationParams(params.referenceBand, params.lambdaMaxUm, params.serkowskiK));
       const id = await db.transaction(async (trx) => {
         const [id] = await trx('tomography_runs').insert({ state: 'queued', params_json: JSON.stringify(params), started_by: actorId, created_at: new Date().toISOString() });
         await recordAudit(trx, { actorId, action: 'tomography.start', entityType: 'tomography_run', entityId: id, after: params });

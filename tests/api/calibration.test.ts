@@ -195,3 +195,29 @@ describe('plausibility settings', () => {
     expect(put.body.pCeiling).toBe(0.1);
   });
 });
+
+describe('band normalisation for tomography (Serkowski law)', () => {
+  it('a run can use V-band data brought to R, with λmax and K recorded and in the fingerprint', async () => {
+    const { gatherStars, DEFAULT_RUN } = await import('../../server/tomography/service.js');
+    expect((await curator.post(`/api/v1/batches/${batchId}/approve`).send({ note: 'standards night' })).status).toBe(200);
+    const region = { ra: 100.3, dec: -30.4, radius: 1 };
+    const plain = await gatherStars(t.db, { ...DEFAULT_RUN, band: 'R', region });
+    expect(plain.starsUsed).toBe(0); // the science stars were observed in V only
+    const params = { ...DEFAULT_RUN, band: 'R', region, referenceBand: 'R', lambdaMaxUm: 0.55, serkowskiK: 0.01 + 1.66 * 0.55 };
+    const norm = await gatherStars(t.db, params);
+    expect(norm.starsUsed).toBe(3);
+    // K = 0.01 + 1.66 λmax (Whittet et al. 1992); V (0.55 µm) → R (0.64 µm): exp(−0.923 ln²(0.55/0.64)) = 0.9790242329427671 (numpy)
+    const m = await t.db('measurements').where({ id: idsByLine.get(6) }).first();
+    const star = [...norm.byCell.values()].flat().find((s) => s.id === String(m.star_id))!;
+    expect(star.q / m.q_gal).toBeCloseTo(0.9790242329427671, 10);
+    expect(star.uErr / m.u_gal_err).toBeCloseTo(0.9790242329427671, 10);
+    const other = await gatherStars(t.db, { ...params, lambdaMaxUm: 0.6, serkowskiK: 0.01 + 1.66 * 0.6 });
+    expect(other.fingerprint).not.toBe(norm.fingerprint);
+
+    const run = await curator.post('/api/v1/tomography/runs').send({ referenceBand: 'R', draws: 0, minStars: 4, region });
+    expect(run.status).toBe(202);
+    expect(run.body.params).toMatchObject({ band: 'R', referenceBand: 'R', lambdaMaxUm: 0.55 });
+    expect(run.body.params.serkowskiK).toBeCloseTo(0.923, 12);
+    expect((await curator.post('/api/v1/tomography/runs').send({ referenceBand: 'K' })).status).toBe(400);
+  });
+});
