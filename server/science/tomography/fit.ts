@@ -1,6 +1,11 @@
 /**
  * Sightline tomography: cloud layers along one cell's sightline (METHODS.md, "Tomography").
  *
+ * This file holds the option handling and the earlier fit, method 'classic' (kept callable as the
+ * baseline of bench/recovery.ts); the default method 'survey' is in fitSurvey.ts and reuses the
+ * same parts (segment cost, PELT, blend merging, distance draws). The notes below describe the
+ * classic fit.
+ *
  * Choices, each where METHODS.md leaves one open:
  * - Penalty: BIC (Schwarz 1978) counting every parameter a break adds — its position, q̄, ū and
  *   s — so 4·ln(n) per break with n the number of stars: each star is one observation, a
@@ -48,11 +53,15 @@ import { SegmentTable } from './segmentTable';
 import { PeltSolver } from './partition';
 import { mergeBlends } from './blend';
 import { makeStarDistanceSampler, distanceSigmaPc } from './distanceDraws';
+import { fitSightlineSurvey } from './fitSurvey';
 import type {
   FitOptions, SightlineResult, TomographyJump, TomographyLayer, TomographySegment, TomographyStar,
 } from './types';
 
 export interface ResolvedFitOptions {
+  method: 'survey' | 'classic';
+  placeMinParallaxSnr: number;
+  stepPenaltyParams: number;
   draws: number;
   minSegmentLength: number;
   jumpThresholdDeg: number;
@@ -67,6 +76,9 @@ export interface ResolvedFitOptions {
 
 /** Defaults. jumpThresholdDeg = 30 is a user setting, not a value from a source. */
 export const DEFAULT_FIT_OPTIONS: Readonly<Omit<ResolvedFitOptions, 'cellId'>> = {
+  method: 'survey',
+  placeMinParallaxSnr: 5,
+  stepPenaltyParams: 3,
   draws: 100,
   minSegmentLength: 3,
   jumpThresholdDeg: 30,
@@ -80,6 +92,9 @@ export const DEFAULT_FIT_OPTIONS: Readonly<Omit<ResolvedFitOptions, 'cellId'>> =
 
 export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
   const r: ResolvedFitOptions = {
+    method: o.method ?? DEFAULT_FIT_OPTIONS.method,
+    placeMinParallaxSnr: o.placeMinParallaxSnr ?? DEFAULT_FIT_OPTIONS.placeMinParallaxSnr,
+    stepPenaltyParams: o.stepPenaltyParams ?? DEFAULT_FIT_OPTIONS.stepPenaltyParams,
     draws: o.draws ?? DEFAULT_FIT_OPTIONS.draws,
     minSegmentLength: o.minSegmentLength ?? DEFAULT_FIT_OPTIONS.minSegmentLength,
     jumpThresholdDeg: o.jumpThresholdDeg ?? DEFAULT_FIT_OPTIONS.jumpThresholdDeg,
@@ -91,6 +106,9 @@ export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
     foregroundPenaltyParams: o.foregroundPenaltyParams ?? DEFAULT_FIT_OPTIONS.foregroundPenaltyParams,
     breakPosition: o.breakPosition ?? DEFAULT_FIT_OPTIONS.breakPosition,
   };
+  if (r.method !== 'survey' && r.method !== 'classic') {
+    throw new RangeError(`tomography option method = ${String(r.method)}: expected 'survey' or 'classic'`);
+  }
   if (r.breakPosition !== 'uniform' && r.breakPosition !== 'midpoint') {
     throw new RangeError(`tomography option breakPosition = ${String(r.breakPosition)}: expected 'uniform' or 'midpoint'`);
   }
@@ -105,10 +123,12 @@ export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
   check('blendSpanSigma', r.blendSpanSigma, r.blendSpanSigma >= 0, 'a number ≥ 0');
   check('blendAlpha', r.blendAlpha, r.blendAlpha > 0 && r.blendAlpha < 1, 'a number in (0, 1)');
   check('foregroundPenaltyParams', r.foregroundPenaltyParams, r.foregroundPenaltyParams >= 0, 'a number ≥ 0');
+  check('placeMinParallaxSnr', r.placeMinParallaxSnr, r.placeMinParallaxSnr >= 0, 'a number ≥ 0');
+  check('stepPenaltyParams', r.stepPenaltyParams, r.stepPenaltyParams >= 0, 'a number ≥ 0');
   return r;
 }
 
-function validateStars(stars: TomographyStar[]): void {
+export function validateStars(stars: TomographyStar[]): void {
   const seen = new Set<string>();
   for (const s of stars) {
     const bad = (field: string, value: unknown, expected: string): never => {
@@ -232,16 +252,26 @@ function insertionSortBy(perm: Int32Array, key: Float64Array): void {
   }
 }
 
-function emptyResult(cellId: string, draws: number): SightlineResult {
+export function emptyResult(cellId: string, draws: number, method: 'survey' | 'classic' = 'classic'): SightlineResult {
   return {
     cellId, nStars: 0, nLayers: 0, layerCountSupport: 1, layerCountHistogram: [draws],
     clearForeground: true, layers: [], jumps: [], complex: false, segments: [], breaksFromNominal: [],
-    starOrder: [], blendsMerged: 0, matchedDraws: draws, draws, totalCost: 0,
+    starOrder: [], blendsMerged: 0, matchedDraws: draws, draws, totalCost: 0, method, starsNotPlaced: [],
   };
 }
 
-/** Fits the layers of one sightline. See the file header for every choice made. */
+/**
+ * Fits the layers of one sightline. Default method 'survey' (fitSurvey.ts: survey-like
+ * parallaxes, layer count from the draws, steps tested); method 'classic' is the earlier fit of
+ * this file, kept callable as the baseline (bench/recovery.ts prints both).
+ */
 export function fitSightline(stars: TomographyStar[], options: FitOptions = {}): SightlineResult {
+  if ((options.method ?? DEFAULT_FIT_OPTIONS.method) === 'survey') return fitSightlineSurvey(stars, options);
+  return fitSightlineClassic(stars, options);
+}
+
+/** The earlier fit (method 'classic'). See the file header for every choice made. */
+export function fitSightlineClassic(stars: TomographyStar[], options: FitOptions = {}): SightlineResult {
   const opt = resolveFitOptions(options);
   validateStars(stars);
   const n = stars.length;
@@ -348,6 +378,8 @@ export function fitSightline(stars: TomographyStar[], options: FitOptions = {}):
     if (kind === 'foreground') distanceLoPc = 0;
     layers.push({
       index: k, kind, distancePc, distanceLoPc, distanceHiPc,
+      distanceBound: kind === 'foreground' ? 'upper' : 'range',
+      distanceNote: null,
       nStars: seg.end - seg.start, meanQ: seg.meanQ, meanU: seg.meanU, scatter: seg.scatter,
       deltaQ, deltaU, deltaQErr, deltaUErr,
       p: pa.p, pErr: pa.pErr, pDebiased, thetaDeg: pa.thetaDeg, thetaErrDeg: pa.thetaErrDeg,
@@ -377,6 +409,8 @@ export function fitSightline(stars: TomographyStar[], options: FitOptions = {}):
     matchedDraws: nMatched,
     draws: D,
     totalCost,
+    method: 'classic',
+    starsNotPlaced: [],
   };
 }
 

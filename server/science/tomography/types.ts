@@ -35,6 +35,16 @@ export interface TomographyStar {
 }
 
 export interface FitOptions {
+  /**
+   * 'survey' (default, fitSurvey.ts): stars with poor parallaxes do not place breaks, the layer
+   * count is the one the distance draws support, every step is tested. 'classic': the earlier fit
+   * (fit.ts), kept as the baseline.
+   */
+  method?: 'survey' | 'classic';
+  /** 'survey': a star places breaks only when ϖ/σϖ (zero point applied) is at least this. Default 5. */
+  placeMinParallaxSnr?: number;
+  /** 'survey': a break is a layer only when its step χ² (2 dof) exceeds this many times ln(n). Default 3. */
+  stepPenaltyParams?: number;
   /** Monte Carlo distance draws (0 = nominal fit only). Default 100. */
   draws?: number;
   /** Fewest stars in a segment. Default 3. */
@@ -84,6 +94,15 @@ export interface TomographyLayer {
   distancePc: number;
   distanceLoPc: number;
   distanceHiPc: number;
+  /**
+   * 'range': distanceLoPc–distanceHiPc is a 16–84 % range of the near edge. 'upper': only an
+   * upper bound is known (the cloud lies nearer than distanceHiPc; distanceLoPc = 0).
+   */
+  distanceBound: 'range' | 'upper';
+  /** In words, when the distance is a bound or could not be resolved; null otherwise. */
+  distanceNote: string | null;
+  /** 'survey': χ² (2 dof) of this layer's step ΔS against no step; null for 'classic'. */
+  stepChi2?: number | null;
   /** Stars in the segment behind this layer (up to the next break). */
   nStars: number;
   /** Mean (q̄, ū) of that segment: the summed contribution of every layer up to this one. */
@@ -161,4 +180,11 @@ export interface SightlineResult {
   draws: number;
   /** Total penalised cost of the nominal segmentation. */
   totalCost: number;
+  /** Which fit produced this result. */
+  method: 'survey' | 'classic';
+  /**
+   * 'survey': ids of stars whose parallax is too poor (ϖ/σϖ below placeMinParallaxSnr) to place a
+   * break; they are left out of the segmentation (not in starOrder). Empty for 'classic'.
+   */
+  starsNotPlaced: string[];
 }

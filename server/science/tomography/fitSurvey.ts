@@ -1,0 +1,421 @@
+/**
+ * Sightline tomography for survey-like parallaxes (METHODS.md, "Tomography" and "Tomography with
+ * survey-like parallaxes"); method 'survey', the default. The parts are those of the classic fit
+ * (fit.ts): thin screens, segment cost with intrinsic scatter (segmentCost.ts), BIC penalty, PELT
+ * (partition.ts), blend merging (blend.ts), Monte Carlo over distance posteriors
+ * (distanceDraws.ts). What differs, each with its reason:
+ *
+ * 1. Which stars place breaks. A star whose parallax has ϖ/σϖ < 5 (zero point applied) has a
+ *    distance posterior hundreds of parsecs wide and skewed by the prior (Bailer-Jones 2015, PASP
+ *    127, 994: below S/N ≈ 5 the inverse parallax and the posterior mode are poor estimators);
+ *    its (q, u) says little about where a step lies (METHODS.md). Such stars get weight zero in
+ *    the segmentation — in the nominal fit and in every draw — and are listed in
+ *    `starsNotPlaced`. The threshold 5 is the one METHODS.md uses for inverse parallaxes. When
+ *    fewer than 2·minSegmentLength stars would remain, all stars are used (a small cell cannot
+ *    afford to drop any; the draws then carry their distance uncertainty).
+ * 2. The layer count is the one the distance draws support: the modal count over the D draws
+ *    (ties: the nominal fit's count if it is among the tied, else the smallest), not the nominal
+ *    fit's. layerCountSupport = share of draws with that count. Reason: the nominal fit uses one
+ *    point distance per star and can disagree with every draw (issue 10, reproduction a).
+ * 3. A break is a layer only when its step is significant. After PELT and blend merging, in every
+ *    ordering, the boundary with the smallest step statistic
+ *      χ²_step = Δq̄²/(var q̄_a + var q̄_b) + Δū²/(var ū_a + var ū_b)
+ *    (the Wald / likelihood-ratio statistic for equal means of two Gaussian samples, 2 dof; var of
+ *    each mean from its segment's fitted scatter, 1/Σ 1/(σ_i² + s²)) is removed while it is below
+ *    stepPenaltyParams·ln(n) (default 3·ln n: the BIC price, Schwarz 1978, Ann. Stat. 6, 461, of
+ *    the parameters a layer adds — its position and its two Stokes amplitudes; the scatter is left
+ *    out because a change of scatter alone is not a layer). PELT's own penalty counts the total
+ *    cost gain, which a change of scatter with the same mean can pay for (reproduction b); this
+ *    test looks at the means only.
+ * 4. One or two unpolarized stars in front of a cloud. PELT's minimum segment length (3) forces
+ *    them into a segment with polarized stars, moving the cloud behind them (reproduction c). So
+ *    the nearest segment may be split once more at j < minSegmentLength stars when the first j
+ *    stars are consistent with zero polarization (the same χ² test as the clear-foreground test)
+ *    and the split pays the BIC penalty; the step test (3) then keeps or removes that break.
+ * 5. Distances. Per layer, the 16/50/84 % points of the break position over the draws with the
+ *    reported count and foreground reading (uniform within the gap between the straddling stars,
+ *    as in the classic fit). A 'foreground' layer (the nearest placed stars already polarized) is
+ *    reported as an upper bound: distanceBound 'upper', distanceLoPc 0, distanceHiPc the 84th
+ *    percentile over the draws of the distance of the minSegmentLength-th nearest placed star (the
+ *    polarized reading is the nearest segment's as a whole; the nearest star alone gave bounds
+ *    below the truth when one unpolarized star sat in that segment). A range is never reported with zero width:
+ *    when the draws cannot give one (draws = 0, or every draw put the break between the same two
+ *    stars at fixed distances) the range is widened to the straddling stars' own 16–84 % ranges
+ *    and distanceNote says so in words.
+ * 6. Amplitudes. The reported segments are the placed stars in catalogue-distance order cut at
+ *    the reported (median) layer distances, so the segment means shown belong to the layers shown.
+ */
+
+import { mulberry32, hashSeed } from '../random';
+import { propagateStokesErrors, angleIsNonGaussian } from '../polarization';
+import { debiasedFractionMAS } from '../debias';
+import { correctParallax } from '../distance';
+import { SegmentTable } from './segmentTable';
+import { PeltSolver } from './partition';
+import { mergeBlends } from './blend';
+import { makeStarDistanceSampler, distanceSigmaPc } from './distanceDraws';
+import {
+  resolveFitOptions, validateStars, emptyResult, percentileSorted, jumpBetween, isComplex, type ResolvedFitOptions,
+} from './fit';
+import type { FitOptions, SightlineResult, TomographyJump, TomographyLayer, TomographySegment, TomographyStar } from './types';
+
+/** Precision of a star's distance as a parallax S/N: ϖ/σϖ (zero point applied), else d/σ_d. */
+export function distanceSnr(s: TomographyStar): number {
+  if (s.parallaxMas !== undefined && s.parallaxErrMas !== undefined && Number.isFinite(s.parallaxMas) && s.parallaxErrMas > 0) {
+    return correctParallax(s.parallaxMas) / s.parallaxErrMas;
+  }
+  const sd = distanceSigmaPc(s);
+  return sd > 0 ? s.distancePc / sd : Infinity;
+}
+
+function sortPermBy(perm: Int32Array, key: Float64Array): void {
+  for (let i = 1; i < perm.length; i++) {
+    const p = perm[i];
+    const k = key[p];
+    let j = i - 1;
+    while (j >= 0 && (key[perm[j]] > k || (key[perm[j]] === k && perm[j] > p))) {
+      perm[j + 1] = perm[j];
+      j--;
+    }
+    perm[j + 1] = p;
+  }
+}
+
+/** Segments one ordering: PELT, blend merging, nearest split, step test; then the foreground reading. */
+class SurveyOrderingFitter {
+  readonly dist: Float64Array;
+  readonly sigma: Float64Array;
+  readonly bounds: number[] = [];
+  private readonly breaks: number[] = [];
+  private readonly solver: PeltSolver;
+  private readonly stepThreshold: number;
+  private readonly clearThreshold: number;
+  blendsMerged = 0;
+
+  constructor(readonly table: SegmentTable, private readonly opt: ResolvedFitOptions, private readonly penalty: number) {
+    this.dist = new Float64Array(table.n);
+    this.sigma = new Float64Array(table.n);
+    this.solver = new PeltSolver(table.n);
+    const lnN = Math.log(Math.max(2, table.n));
+    this.stepThreshold = opt.stepPenaltyParams * lnN;
+    this.clearThreshold = opt.foregroundPenaltyParams * lnN;
+  }
+
+  run(): void {
+    const n = this.table.n;
+    this.solver.solve(n, this.opt.minSegmentLength, this.penalty, this.table, this.breaks);
+    const b = this.bounds;
+    b.length = 0;
+    b.push(0);
+    for (const x of this.breaks) b.push(x);
+    b.push(n);
+    this.blendsMerged = mergeBlends(this.table, b, this.dist, this.sigma, this.opt);
+    this.splitNearest();
+    this.mergeWeakSteps();
+  }
+
+  /** χ² of the mean of [a, b) against zero (q̄²/var q̄ + ū²/var ū at the fitted scatter). */
+  private chi2VsZero(a: number, b: number): number {
+    const t = this.table.select(a, b);
+    return (t.selMeanQ * t.selMeanQ) / t.selVarMeanQ + (t.selMeanU * t.selMeanU) / t.selVarMeanU;
+  }
+
+  /** χ²_step between [a, b) and [b, c) (2 dof). */
+  stepChi2(a: number, b: number, c: number): number {
+    const t = this.table.select(a, b);
+    const mq = t.selMeanQ, mu = t.selMeanU, vq = t.selVarMeanQ, vu = t.selVarMeanU;
+    t.select(b, c);
+    const dq = t.selMeanQ - mq, du = t.selMeanU - mu;
+    return (dq * dq) / (vq + t.selVarMeanQ) + (du * du) / (vu + t.selVarMeanU);
+  }
+
+  /** Choice 4: split off j < minSegmentLength unpolarized nearest stars when it pays. */
+  private splitNearest(): void {
+    const b1 = this.bounds[1];
+    const m = this.opt.minSegmentLength;
+    if (b1 < 2 || m < 2) return;
+    const whole = this.table.cost(0, b1);
+    let best = -1;
+    let bestGain = 0;
+    for (let j = 1; j < m && j < b1; j++) {
+      const gain = whole - this.table.cost(0, j) - this.table.cost(j, b1) - this.penalty;
+      if (gain > bestGain && this.chi2VsZero(0, j) <= this.clearThreshold) { bestGain = gain; best = j; }
+    }
+    if (best > 0) this.bounds.splice(1, 0, best);
+  }
+
+  /** Choice 3: remove the least significant boundary while its step is below the threshold. */
+  private mergeWeakSteps(): void {
+    const b = this.bounds;
+    while (b.length > 2) {
+      let worst = -1;
+      let worstChi2 = Infinity;
+      for (let j = 1; j < b.length - 1; j++) {
+        const c = this.stepChi2(b[j - 1], b[j], b[j + 1]);
+        if (c < worstChi2) { worstChi2 = c; worst = j; }
+      }
+      if (worstChi2 >= this.stepThreshold) break;
+      b.splice(worst, 1);
+    }
+  }
+
+  /**
+   * Whether the nearest segment is consistent with zero (classic fit's test): only its stars
+   * securely in front of the first break (d + 2σ below it) enter, all of them when none is.
+   */
+  clearForeground(): boolean {
+    const table = this.table;
+    const end = this.bounds[1];
+    const t = table.select(0, end);
+    const s2 = t.selScatterVar;
+    const edge = end < table.n ? 0.5 * (this.dist[end - 1] + this.dist[end]) : Infinity;
+    let wq = 0, sq = 0, wu = 0, su = 0, used = 0;
+    for (let pass = 0; pass < 2 && used === 0; pass++) {
+      for (let i = 0; i < end; i++) {
+        if (pass === 0 && !(this.dist[i] + 2 * this.sigma[i] < edge)) continue;
+        const a = 1 / (table.vq[i] + s2), c = 1 / (table.vu[i] + s2);
+        wq += a; sq += a * table.q[i]; wu += c; su += c * table.u[i];
+        used++;
+      }
+    }
+    return (sq * sq) / wq + (su * su) / wu <= this.clearThreshold;
+  }
+
+  layerCount(clear: boolean): number {
+    return this.bounds.length - 2 + (clear ? 0 : 1);
+  }
+
+  positions(clear: boolean, out: Float64Array, rng?: () => number): void {
+    let k = 0;
+    // Foreground layer: the bound is the m-th nearest star (m = minSegmentLength), not the
+    // nearest: the "already polarized" reading is about the nearest segment as a whole, and one
+    // unpolarized star in front of the cloud may sit in it.
+    if (!clear) out[k++] = this.dist[Math.min(this.bounds[1], this.opt.minSegmentLength) - 1];
+    for (let j = 1; j < this.bounds.length - 1; j++) {
+      const c = this.bounds[j];
+      const f = rng ? rng() : 0.5;
+      out[k++] = this.dist[c - 1] + f * (this.dist[c] - this.dist[c - 1]);
+    }
+  }
+}
+
+/** Fits the layers of one sightline with method 'survey'. See the file header. */
+export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions = {}): SightlineResult {
+  const opt = resolveFitOptions(options);
+  validateStars(stars);
+  const nAll = stars.length;
+  if (nAll === 0) return emptyResult(opt.cellId, opt.draws, 'survey');
+  const canonAll = stars.slice().sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+  let canon = canonAll.filter((s) => distanceSnr(s) >= opt.placeMinParallaxSnr);
+  if (canon.length < 2 * opt.minSegmentLength) canon = canonAll;
+  const placedIds = new Set(canon.map((s) => s.id));
+  const starsNotPlaced = canonAll.filter((s) => !placedIds.has(s.id)).map((s) => s.id);
+  const n = canon.length;
+  const penalty = opt.penaltyParamsPerBreak * Math.log(n);
+  const table = new SegmentTable(
+    canon.map((s) => s.q), canon.map((s) => s.u), canon.map((s) => s.qErr), canon.map((s) => s.uErr),
+    hashSeed(opt.cellId, 'keys'),
+  );
+  const fitter = new SurveyOrderingFitter(table, opt, penalty);
+  const sigmaCanon = Float64Array.from(canon, distanceSigmaPc);
+  const nominalDist = Float64Array.from(canon, (s) => s.distancePc);
+  const perm = new Int32Array(n);
+  for (let i = 0; i < n; i++) perm[i] = i;
+  const applyOrder = (dist: Float64Array): void => {
+    table.setOrder(perm);
+    for (let pos = 0; pos < n; pos++) {
+      fitter.dist[pos] = dist[perm[pos]];
+      fitter.sigma[pos] = sigmaCanon[perm[pos]];
+    }
+  };
+
+  // Nominal fit (catalogue distances): the tie-breaker, and the reading when draws = 0.
+  sortPermBy(perm, nominalDist);
+  const nominalPerm = perm.slice();
+  applyOrder(nominalDist);
+  fitter.run();
+  const nominalClear = fitter.clearForeground();
+  const nominalCount = fitter.layerCount(nominalClear);
+  const blendsMerged = fitter.blendsMerged;
+  const nominalPositions = new Float64Array(n + 1);
+  fitter.positions(nominalClear, nominalPositions);
+  const nominalBounds = fitter.bounds.slice();
+
+  // Monte Carlo over distance draws: every draw's count, foreground reading and positions.
+  const D = opt.draws;
+  const hist: number[] = [];
+  const drawCount = new Int32Array(D);
+  const drawClear = new Uint8Array(D);
+  const drawPositions: Float64Array[] = [];
+  if (D > 0) {
+    const samplers = canon.map(makeStarDistanceSampler);
+    const drawDist = new Float64Array(n);
+    const scratch = new Float64Array(n + 1);
+    for (let d = 0; d < D; d++) {
+      const rng = mulberry32(hashSeed(opt.cellId, d));
+      for (let i = 0; i < n; i++) drawDist[i] = samplers[i](rng);
+      sortPermBy(perm, drawDist);
+      applyOrder(drawDist);
+      fitter.run();
+      const c = fitter.clearForeground();
+      const L = fitter.layerCount(c);
+      while (hist.length <= L) hist.push(0);
+      hist[L]++;
+      drawCount[d] = L;
+      drawClear[d] = c ? 1 : 0;
+      fitter.positions(c, scratch, opt.breakPosition === 'uniform' ? rng : undefined);
+      drawPositions.push(scratch.slice(0, L));
+    }
+  }
+
+  // Choice 2: the modal count over the draws (nominal as tie-breaker).
+  let nLayers = nominalCount;
+  let clear = nominalClear;
+  if (D > 0) {
+    const top = Math.max(...hist);
+    const tied = hist.flatMap((h, L) => (h === top ? [L] : []));
+    nLayers = tied.includes(nominalCount) ? nominalCount : tied[0];
+    let clearVotes = 0, total = 0;
+    for (let d = 0; d < D; d++) if (drawCount[d] === nLayers) { total++; clearVotes += drawClear[d]; }
+    clear = 2 * clearVotes === total ? (nLayers === nominalCount ? nominalClear : true) : 2 * clearVotes > total;
+  }
+  while (hist.length <= nLayers) hist.push(0);
+  if (nLayers === 0) clear = true;
+
+  // Layer positions over the matched draws.
+  const matchedIdx: number[] = [];
+  for (let d = 0; d < D; d++) if (drawCount[d] === nLayers && (drawClear[d] === 1) === clear) matchedIdx.push(d);
+  const nMatched = matchedIdx.length;
+  const lo = new Float64Array(nLayers), mid = new Float64Array(nLayers), hi = new Float64Array(nLayers);
+  const sameAsNominal = nominalCount === nLayers && nominalClear === clear;
+  for (let k = 0; k < nLayers; k++) {
+    if (nMatched > 0) {
+      const col = Float64Array.from(matchedIdx, (d) => drawPositions[d][k]).sort();
+      lo[k] = percentileSorted(col, 0.16);
+      mid[k] = percentileSorted(col, 0.5);
+      hi[k] = percentileSorted(col, 0.84);
+    } else if (sameAsNominal) {
+      lo[k] = mid[k] = hi[k] = nominalPositions[k];
+    } else {
+      lo[k] = mid[k] = hi[k] = NaN;
+    }
+  }
+
+  // Choice 6: segments of the placed stars in nominal order cut at the reported layer distances.
+  const sortedNominal = Float64Array.from(nominalPerm, (i) => nominalDist[i]);
+  const bounds: number[] = [0];
+  const firstBreak = clear ? 0 : 1;
+  if (nMatched === 0 && sameAsNominal) {
+    for (let j = 1; j < nominalBounds.length - 1; j++) bounds.push(nominalBounds[j]);
+  } else {
+    for (let k = firstBreak; k < nLayers; k++) {
+      bounds.push(Number.isFinite(mid[k]) ? countBelow(sortedNominal, mid[k]) : Math.floor(((k + 1) * n) / (nLayers + 1)));
+    }
+  }
+  bounds.push(n);
+  // Keep every segment non-empty: cuts strictly increasing within 1..n−1.
+  const nb = bounds.length - 2;
+  for (let j = 1; j <= nb; j++) bounds[j] = Math.min(Math.max(bounds[j], bounds[j - 1] + 1), n - (nb - j + 1));
+  perm.set(nominalPerm); // the draws left perm in their own order
+  applyOrder(nominalDist);
+
+  const segments: TomographySegment[] = [];
+  for (let j = 0; j < bounds.length - 1; j++) {
+    const start = bounds[j], end = bounds[j + 1];
+    const t = table.select(start, end);
+    segments.push({
+      start, end,
+      nearestPc: fitter.dist[start], farthestPc: fitter.dist[end - 1],
+      meanQ: t.selMeanQ, meanU: t.selMeanU,
+      meanQErr: Math.sqrt(t.selVarMeanQ), meanUErr: Math.sqrt(t.selVarMeanU),
+      scatter: Math.sqrt(t.selScatterVar), cost: t.selCost,
+    });
+  }
+  let totalCost = penalty * (bounds.length - 2);
+  for (const s of segments) totalCost += s.cost;
+
+  const layers: TomographyLayer[] = [];
+  const firstSeg = clear ? 1 : 0;
+  for (let k = 0; k < nLayers; k++) {
+    const j = Math.min(firstSeg + k, segments.length - 1);
+    const seg = segments[j];
+    const prev = j > 0 ? segments[j - 1] : undefined;
+    const deltaQ = seg.meanQ - (prev ? prev.meanQ : 0);
+    const deltaU = seg.meanU - (prev ? prev.meanU : 0);
+    const deltaQErr = Math.hypot(seg.meanQErr, prev ? prev.meanQErr : 0);
+    const deltaUErr = Math.hypot(seg.meanUErr, prev ? prev.meanUErr : 0);
+    const pa = propagateStokesErrors(deltaQ, deltaU, deltaQErr, deltaUErr);
+    const pDebiased = debiasedFractionMAS(pa.p, Math.sqrt((deltaQErr * deltaQErr + deltaUErr * deltaUErr) / 2));
+    const kind: TomographyLayer['kind'] = !clear && k === 0 ? 'foreground' : 'break';
+    let distancePc = mid[k], distanceLoPc = lo[k], distanceHiPc = hi[k];
+    let distanceNote: string | null = null;
+    if (kind === 'foreground') {
+      distanceLoPc = 0;
+      if (!Number.isFinite(distanceHiPc)) distancePc = distanceHiPc = fitter.dist[0];
+      distanceHiPc = Math.max(distanceHiPc, distancePc);
+      distanceNote = `nearer than ${Math.round(distanceHiPc)} pc: the nearest stars with usable distances are already polarized, so this cloud lies in front of them (an upper bound, no lower one)`;
+    } else {
+      // The gap in nominal order where this break's cut lies, for a fallback range.
+      const cut = bounds[firstSeg + k];
+      const before = canon[nominalPerm[Math.max(0, cut - 1)]];
+      const after = canon[nominalPerm[Math.min(n - 1, cut)]];
+      if (!Number.isFinite(distancePc)) distancePc = 0.5 * (before.distancePc + after.distancePc);
+      const width = distanceHiPc - distanceLoPc;
+      if (!(width > 1e-6 * distancePc)) {
+        distanceLoPc = Math.min(distancePc, before.distanceLoPc);
+        distanceHiPc = Math.max(distancePc, after.distanceHiPc);
+        distanceNote = nMatched === 0
+          ? `unresolved: no distance draw supports this layer's place, so the range shown spans the two stars around the break (${Math.round(distanceLoPc)}–${Math.round(distanceHiPc)} pc, their own 16–84 % ranges)`
+          : `unresolved: every distance draw puts the break between the same two stars, so the range shown spans their own 16–84 % distance ranges (${Math.round(distanceLoPc)}–${Math.round(distanceHiPc)} pc)`;
+      }
+    }
+    layers.push({
+      index: k, kind, distancePc, distanceLoPc, distanceHiPc,
+      distanceBound: kind === 'foreground' ? 'upper' : 'range',
+      distanceNote,
+      stepChi2: prev
+        ? ((seg.meanQ - prev.meanQ) ** 2) / (seg.meanQErr ** 2 + prev.meanQErr ** 2) + ((seg.meanU - prev.meanU) ** 2) / (seg.meanUErr ** 2 + prev.meanUErr ** 2)
+        : (seg.meanQ ** 2) / seg.meanQErr ** 2 + (seg.meanU ** 2) / seg.meanUErr ** 2,
+      nStars: seg.end - seg.start, meanQ: seg.meanQ, meanU: seg.meanU, scatter: seg.scatter,
+      deltaQ, deltaU, deltaQErr, deltaUErr,
+      p: pa.p, pErr: pa.pErr, pDebiased, thetaDeg: pa.thetaDeg, thetaErrDeg: pa.thetaErrDeg,
+      snr: pa.pErr > 0 ? pDebiased / pa.pErr : 0,
+      angleNonGaussian: angleIsNonGaussian(pa.p, pa.pErr),
+    });
+  }
+
+  const jumps: TomographyJump[] = [];
+  for (let k = 1; k < layers.length; k++) jumps.push(jumpBetween(layers[k - 1], layers[k]));
+  const complex = isComplex(layers, opt.minLayerSnr, opt.jumpThresholdDeg);
+
+  return {
+    cellId: opt.cellId,
+    nStars: nAll,
+    nLayers,
+    layerCountSupport: D > 0 ? (hist[nLayers] ?? 0) / D : 1,
+    layerCountHistogram: hist,
+    clearForeground: clear,
+    layers,
+    jumps,
+    complex,
+    segments,
+    breaksFromNominal: bounds.slice(1, -1),
+    starOrder: Array.from(nominalPerm, (i) => canon[i].id),
+    blendsMerged,
+    matchedDraws: D > 0 ? nMatched : 0,
+    draws: D,
+    totalCost,
+    method: 'survey',
+    starsNotPlaced,
+  };
+}
+
+/** Number of sorted values strictly below x. */
+function countBelow(sorted: Float64Array, x: number): number {
+  let lo = 0, hi = sorted.length;
+  while (lo < hi) {
+    const m = (lo + hi) >> 1;
+    if (sorted[m] < x) lo = m + 1; else hi = m;
+  }
+  return lo;
+}
