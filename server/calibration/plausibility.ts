@@ -83,18 +83,23 @@ export function plausibilityService(db: Knex, readDb: Knex = db) {
     },
 
     /**
-     * Restrict a measurements query (alias `measurements` or given) to rows carrying a flag. The stored flags
-     * are matched in flags_json; the ceiling and repeats are evaluated here.
+     * A filter restricting a measurements query (table `measurements` or the given alias) to rows carrying a
+     * flag. The stored flags are matched on their columns; the ceiling and the repeats are evaluated here.
+     * Returned as a function (not a query builder) so that awaiting it never runs the query.
      */
-    async whereFlag<Q extends Knex.QueryBuilder>(qb: Q, flag: string, table = 'measurements'): Promise<Q> {
-      if (flag === 'above_p_ceiling') return qb.where(`${table}.p`, '>', await ceiling()) as Q;
+    async flagFilter(flag: string, table = 'measurements'): Promise<(qb: Knex.QueryBuilder) => Knex.QueryBuilder> {
+      if (flag === 'above_p_ceiling') {
+        const c = await ceiling();
+        return (qb) => qb.where(`${table}.p`, '>', c);
+      }
       if (flag === 'inconsistent_repeats') {
         const ids = [...(await inconsistentStarIds())];
-        return qb.whereIn(`${table}.star_id`, ids.length ? ids : [-1]) as Q;
+        return (qb) => qb.whereIn(`${table}.star_id`, ids.length ? ids : [-1]);
       }
-      if (flag === 'low_p_snr') return qb.whereRaw(`${table}.p < ? * ${table}.p_err`, [GAUSSIAN_ANGLE_MIN_SNR]) as Q;
-      if (flag === 'above_efficiency_envelope') return qb.where(`${table}.ebv`, '>', 0).whereRaw(`100 * ${table}.p > ? * ${table}.ebv`, [POLARIZATION_EFFICIENCY_MAX_PCT_PER_MAG]) as Q;
-      return qb.where(`${table}.flags_json`, 'like', `%"${flag.replace(/[%_"\\]/g, '')}"%`) as Q;
+      if (flag === 'low_p_snr') return (qb) => qb.whereRaw(`${table}.p < ? * ${table}.p_err`, [GAUSSIAN_ANGLE_MIN_SNR]);
+      if (flag === 'above_efficiency_envelope') return (qb) => qb.where(`${table}.ebv`, '>', 0).whereRaw(`100 * ${table}.p > ? * ${table}.ebv`, [POLARIZATION_EFFICIENCY_MAX_PCT_PER_MAG]);
+      const safe = flag.replace(/[^a-z_]/g, '');
+      return (qb) => qb.where(`${table}.flags_json`, 'like', `%"${safe}"%`);
     },
   };
 }

@@ -3,7 +3,8 @@ import { recordAudit, auditFor } from '../audit/service.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import { hasRole, type SessionUser } from '../auth/roles.js';
 import { visibleMeasurements, whereStarVisible } from '../catalog/service.js';
-import { whereMeasurementVisible as whereMeasurementNotHidden } from '../intake/visibility.js';
+import { hiddenBatchIds } from '../intake/visibility.js';
+import { plausibilityService } from '../calibration/plausibility.js';
 
 export const MEASUREMENT_SORTS = ['line', 'state', 'band', 'instrument', 'mjd', 'q', 'u', 'p', 'p_debiased', 'theta_deg', 'theta_err_deg', 'distance_pc', 'star_name'] as const;
 const FILTERABLE = ['state', 'band', 'instrument', 'distance_method'] as const;
@@ -14,6 +15,7 @@ export interface BatchDecisionHook {
 
 /** Curator work on batches: the queue, the table of a batch's measurements, whole-batch decisions. */
 export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDecisionHook) {
+  const plausibility = plausibilityService(db, readDb); // read-time flags: p ceiling, χ²-inconsistent repeats
   return {
     async queue(q: { state: string; sort: 'age' | 'rows' | 'uploader'; order: 'asc' | 'desc' }) {
       const rows = await readDb('batches').leftJoin('users', 'users.id', 'batches.uploaded_by').where('batches.state', q.state).select('batches.id', 'batches.filename', 'batches.state', 'batches.instrument', 'batches.counts_json', 'batches.created_at', 'batches.reviewed_at', 'batches.review_note', 'users.name as uploader_name', 'users.email as uploader_email');
@@ -40,8 +42,12 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       const batch = await readDb('batches').where({ id: batchId }).first();
       if (!batch) throw notFound(`Batch ${batchId}`);
       let base = readDb('measurements').join('batch_rows', 'batch_rows.id', 'measurements.batch_row_id').leftJoin('stars', 'stars.id', 'measurements.star_id').where('measurements.batch_id', batchId);
-      base = whereMeasurementNotHidden(base, readDb); // a batch still being checked shows nothing (server/intake/visibility.ts)
+      base = base.whereNotIn('measurements.batch_id', hiddenBatchIds(readDb)); // a batch still being checked shows nothing (server/intake/visibility.ts)
       for (const [k, v] of Object.entries(q.filters)) {
+        if (k === 'flag') {
+          base = (await plausibility.flagFilter(v))(base) as typeof base;
+          continue;
+        }
         if (!(FILTERABLE as readonly string[]).includes(k)) throw badRequest(`filter.${k} is not filterable; use one of ${FILTERABLE.join(', ')}`, { fields: [{ field: `filter.${k}`, message: 'not filterable' }] });
         base = base.where(`measurements.${k}`, v);
       }
@@ -60,7 +66,8 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       // conflicts and ambiguous matches carry what competes with them
       const otherIds = rows.filter((r) => r.conflicts_with).map((r) => r.conflicts_with);
       const othersQuery = restricted ? visibleMeasurements(readDb, user!) : readDb('measurements');
-      const others = otherIds.length ? await othersQuery.whereIn('measurements.id', otherIds).select('measurements.id', 'measurements.state', 'measurements.mjd', 'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err', 'measurements.p', 'measurements.theta_deg', 'measurements.batch_id') : [];
+      // the competing row is named as "batch N, line M" (line of its uploaded file)
+      const others = otherIds.length ? await othersQuery.leftJoin('batch_rows as obr', 'obr.id', 'measurements.batch_row_id').whereIn('measurements.id', otherIds).select('measurements.id', 'measurements.state', 'measurements.mjd', 'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err', 'measurements.p', 'measurements.theta_deg', 'measurements.batch_id', 'obr.line as line') : [];
       const byId = new Map(others.map((o) => [o.id, o]));
       let visibleStar = (_id: number | null | undefined) => true;
       if (restricted) {
@@ -74,7 +81,7 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       }
       return {
         total: Number(n),
-        rows: rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, ...r }) => {
+        rows: await plausibility.annotate(rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, ...r }) => {
           const starShown = r.star_id === null || visibleStar(r.star_id);
           const competing = r.conflicts_with ? byId.get(r.conflicts_with) ?? null : null;
           return {
@@ -88,7 +95,7 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
             candidates: (candidates_json ? (JSON.parse(candidates_json) as { id?: number }[]) : []).filter((c) => !restricted || visibleStar(c.id)),
             competing,
           };
-        }),
+        })),
       };
     },
 
