@@ -41,7 +41,12 @@
  *    below the truth when one unpolarized star sat in that segment). A range is never reported with zero width:
  *    when the draws cannot give one (draws = 0, or every draw put the break between the same two
  *    stars at fixed distances) the range is widened to the straddling stars' own 16–84 % ranges
- *    and distanceNote says so in words.
+ *    and distanceNote says so in words (distanceBound 'interval'). Likewise a break with fewer than
+ *    minSegmentLength placed stars in front (choice 4): the draws only say that the cloud lies in
+ *    the gap between those stars and the ones behind, and where the gap is wide a uniform 16–84 %
+ *    of it misses a cloud near its far end; so the range is widened to the gap itself (16th
+ *    percentile of the near star's, 84th of the far star's position over the draws), marked
+ *    'interval' and said in words.
  * 6. Amplitudes. The reported segments are the placed stars in catalogue-distance order cut at
  *    the reported (median) layer distances, so the segment means shown belong to the layers shown.
  */
@@ -185,15 +190,20 @@ class SurveyOrderingFitter {
     return this.bounds.length - 2 + (clear ? 0 : 1);
   }
 
-  positions(clear: boolean, out: Float64Array, rng?: () => number): void {
+  /** Layer positions into out; with gapLo/gapHi also the two stars straddling each break. */
+  positions(clear: boolean, out: Float64Array, rng?: () => number, gapLo?: Float64Array, gapHi?: Float64Array): void {
     let k = 0;
     // Foreground layer: the bound is the m-th nearest star (m = minSegmentLength), not the
     // nearest: the "already polarized" reading is about the nearest segment as a whole, and one
     // unpolarized star in front of the cloud may sit in it.
-    if (!clear) out[k++] = this.dist[Math.min(this.bounds[1], this.opt.minSegmentLength) - 1];
+    if (!clear) {
+      if (gapLo && gapHi) gapLo[k] = gapHi[k] = 0;
+      out[k++] = this.dist[Math.min(this.bounds[1], this.opt.minSegmentLength) - 1];
+    }
     for (let j = 1; j < this.bounds.length - 1; j++) {
       const c = this.bounds[j];
       const f = rng ? rng() : 0.5;
+      if (gapLo && gapHi) { gapLo[k] = this.dist[c - 1]; gapHi[k] = this.dist[c]; }
       out[k++] = this.dist[c - 1] + f * (this.dist[c] - this.dist[c - 1]);
     }
   }
@@ -247,10 +257,14 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
   const drawCount = new Int32Array(D);
   const drawClear = new Uint8Array(D);
   const drawPositions: Float64Array[] = [];
+  const drawGapLo: Float64Array[] = [];
+  const drawGapHi: Float64Array[] = [];
   if (D > 0) {
     const samplers = canon.map(makeStarDistanceSampler);
     const drawDist = new Float64Array(n);
     const scratch = new Float64Array(n + 1);
+    const scratchLo = new Float64Array(n + 1);
+    const scratchHi = new Float64Array(n + 1);
     for (let d = 0; d < D; d++) {
       const rng = mulberry32(hashSeed(opt.cellId, d));
       for (let i = 0; i < n; i++) drawDist[i] = samplers[i](rng);
@@ -263,8 +277,10 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
       hist[L]++;
       drawCount[d] = L;
       drawClear[d] = c ? 1 : 0;
-      fitter.positions(c, scratch, opt.breakPosition === 'uniform' ? rng : undefined);
+      fitter.positions(c, scratch, opt.breakPosition === 'uniform' ? rng : undefined, scratchLo, scratchHi);
       drawPositions.push(scratch.slice(0, L));
+      drawGapLo.push(scratchLo.slice(0, L));
+      drawGapHi.push(scratchHi.slice(0, L));
     }
   }
 
@@ -287,6 +303,7 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
   for (let d = 0; d < D; d++) if (drawCount[d] === nLayers && (drawClear[d] === 1) === clear) matchedIdx.push(d);
   const nMatched = matchedIdx.length;
   const lo = new Float64Array(nLayers), mid = new Float64Array(nLayers), hi = new Float64Array(nLayers);
+  const gapLo = new Float64Array(nLayers).fill(NaN), gapHi = new Float64Array(nLayers).fill(NaN);
   const sameAsNominal = nominalCount === nLayers && nominalClear === clear;
   for (let k = 0; k < nLayers; k++) {
     if (nMatched > 0) {
@@ -294,6 +311,8 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
       lo[k] = percentileSorted(col, 0.16);
       mid[k] = percentileSorted(col, 0.5);
       hi[k] = percentileSorted(col, 0.84);
+      gapLo[k] = percentileSorted(Float64Array.from(matchedIdx, (d) => drawGapLo[d][k]).sort(), 0.16);
+      gapHi[k] = percentileSorted(Float64Array.from(matchedIdx, (d) => drawGapHi[d][k]).sort(), 0.84);
     } else if (sameAsNominal) {
       lo[k] = mid[k] = hi[k] = nominalPositions[k];
     } else {
@@ -349,6 +368,15 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
     const kind: TomographyLayer['kind'] = !clear && k === 0 ? 'foreground' : 'break';
     let distancePc = mid[k], distanceLoPc = lo[k], distanceHiPc = hi[k];
     let distanceNote: string | null = null;
+    let distanceBound: TomographyLayer['distanceBound'] = kind === 'foreground' ? 'upper' : 'range';
+    const inFront = kind === 'break' ? bounds[firstSeg + k] - bounds[firstSeg + k - 1] : 0;
+    if (kind === 'break' && inFront < opt.minSegmentLength && Number.isFinite(gapLo[k]) && Number.isFinite(gapHi[k])) {
+      // Choice 5: too few stars in front to say more than "in the gap" — an interval, in words.
+      distanceLoPc = Math.min(distanceLoPc, gapLo[k]);
+      distanceHiPc = Math.max(distanceHiPc, gapHi[k]);
+      distanceBound = 'interval';
+      distanceNote = `between ${Math.round(distanceLoPc)} and ${Math.round(distanceHiPc)} pc: only ${inFront} star${inFront === 1 ? '' : 's'} with usable distances lie${inFront === 1 ? 's' : ''} in front of this cloud, so it is known only to lie in the gap between ${inFront === 1 ? 'that star' : 'them'} and the stars behind it (not a 16–84 % range)`;
+    }
     if (kind === 'foreground') {
       distanceLoPc = 0;
       if (!Number.isFinite(distanceHiPc)) distancePc = distanceHiPc = fitter.dist[0];
@@ -362,6 +390,7 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
       if (!Number.isFinite(distancePc)) distancePc = 0.5 * (before.distancePc + after.distancePc);
       const width = distanceHiPc - distanceLoPc;
       if (!(width > 1e-6 * distancePc)) {
+        distanceBound = 'interval';
         distanceLoPc = Math.min(distancePc, before.distanceLoPc);
         distanceHiPc = Math.max(distancePc, after.distanceHiPc);
         distanceNote = nMatched === 0
@@ -371,7 +400,7 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
     }
     layers.push({
       index: k, kind, distancePc, distanceLoPc, distanceHiPc,
-      distanceBound: kind === 'foreground' ? 'upper' : 'range',
+      distanceBound,
       distanceNote,
       stepChi2: prev
         ? ((seg.meanQ - prev.meanQ) ** 2) / (seg.meanQErr ** 2 + prev.meanQErr ** 2) + ((seg.meanU - prev.meanU) ** 2) / (seg.meanUErr ** 2 + prev.meanUErr ** 2)

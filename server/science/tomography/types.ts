@@ -97,8 +97,10 @@ export interface TomographyLayer {
   /**
    * 'range': distanceLoPc–distanceHiPc is a 16–84 % range of the near edge. 'upper': only an
    * upper bound is known (the cloud lies nearer than distanceHiPc; distanceLoPc = 0).
+   * 'interval': the cloud lies somewhere between distanceLoPc and distanceHiPc, the stars do not
+   * say where (too few stars in front of it, or every draw puts the break in the same gap).
    */
-  distanceBound: 'range' | 'upper';
+  distanceBound: 'range' | 'upper' | 'interval';
   /** In words, when the distance is a bound or could not be resolved; null otherwise. */
   distanceNote: string | null;
   /** 'survey': χ² (2 dof) of this layer's step ΔS against no step; null for 'classic'. */
