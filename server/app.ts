@@ -13,6 +13,8 @@ import { createPassport } from './auth/passport.js';
 import { authRoutes } from './auth/routes.js';
 import { adminRoutes } from './admin/routes.js';
 import { catalogRoutes } from './catalog/routes.js';
+import { instrumentRoutes } from './instruments/routes.js';
+import { instrumentService } from './instruments/service.js';
 import { intakeService, type IntakeService } from './intake/service.js';
 import { intakeRoutes } from './intake/routes.js';
 import { measurementService, type MeasurementService } from './measurements/service.js';
@@ -122,6 +124,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(openApiRoutes());
   api.use(authRoutes({ auth, passport: pp, config }));
   api.use(adminRoutes({ auth }));
+  api.use(instrumentRoutes({ instruments: instrumentService(db, deps.readDb ?? db) }));
   api.use(catalogRoutes({ db }));
   api.use(intakeRoutes({ intake, config }));
   api.use(reviewRoutes({ db, review, measurements }));

@@ -20,10 +20,7 @@ export function catalogRoutes(deps: { db: Knex }): Router {
     });
   });
 
-  r.get('/instruments', guard('signed-in'), async (_req, res) => {
-    const rows = await db('instruments').orderBy('code');
-    res.json({ instruments: rows.map((i) => ({ id: i.id, code: i.code, name: i.name, bands: String(i.bands).split(','), description: i.description })) });
-  });
+  // GET /instruments: server/instruments (the registry)
 
   const catalog = catalogService(db);
   const num = (v: unknown, field: string) => {

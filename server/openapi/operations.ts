@@ -122,7 +122,32 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'get', path: '/instruments', tag: 'Catalog', who: 'signed-in',
     summary: 'Registered instruments with their bands',
+    description: 'Every upload names one of these codes (instrument column or batch field) and only its bands. `measurements` counts the stored measurements taken with each.',
     responses: { 200: { description: 'instruments by code', schema: 'responses/instruments' } },
+  },
+  {
+    method: 'get', path: '/instruments/:code', tag: 'Catalog', who: 'signed-in',
+    summary: 'One registered instrument',
+    params: [{ name: 'code', in: 'path', required: true, description: 'instrument code (case ignored)', schema: { type: 'string' } }],
+    responses: { 200: { description: 'the instrument', schema: 'responses/instrument' } },
+    errors: [404],
+  },
+  {
+    method: 'post', path: '/instruments', tag: 'Admin', who: ADMIN,
+    summary: 'Register an instrument',
+    description: 'The code is what uploads name (letters, digits, `.`, `_`, `-`; at most 40; compared without case). Bands are Johnson–Cousins U, B, V, R, I. Audited.',
+    body: { schema: 'api/instrument-create', required: true },
+    responses: { 201: { description: 'registered', schema: 'responses/instrument' } },
+    errors: [400, 409],
+  },
+  {
+    method: 'patch', path: '/instruments/:code', tag: 'Admin', who: ADMIN,
+    summary: 'Change an instrument’s name, bands or description',
+    description: 'The code cannot change (uploads and stored measurements name it). New bands apply to uploads from now on; stored measurements keep theirs. Audited.',
+    params: [{ name: 'code', in: 'path', required: true, description: 'instrument code (case ignored)', schema: { type: 'string' } }],
+    body: { schema: 'api/instrument-update', required: true },
+    responses: { 200: { description: 'the instrument after the change', schema: 'responses/instrument' } },
+    errors: [400, 404],
   },
   {
     method: 'get', path: '/stars', tag: 'Catalog', who: 'signed-in',

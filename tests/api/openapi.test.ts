@@ -423,6 +423,14 @@ describe('live answers match the document (drift)', () => {
   it('catalog', async () => {
     await hit(modeler, 'get', '/overview', '/overview', 200);
     await hit(modeler, 'get', '/instruments', '/instruments', 200);
+    await hit(modeler, 'get', '/instruments/KR-HAWK', '/instruments/:code', 200);
+    await hit(modeler, 'get', '/instruments/KR-NONE', '/instruments/:code', 404);
+    await hit(admin, 'post', '/instruments', '/instruments', 201, { code: 'KR-DOCS', name: 'Documented camera', bands: ['V'] });
+    await hit(admin, 'post', '/instruments', '/instruments', 409, { code: 'kr-docs', name: 'Again', bands: ['V'] });
+    await hit(admin, 'post', '/instruments', '/instruments', 400, { code: 'bad code!', name: 'x', bands: [] });
+    await hit(modeler, 'post', '/instruments', '/instruments', 403, { code: 'KR-NO', name: 'x', bands: ['V'] });
+    await hit(admin, 'patch', '/instruments/KR-DOCS', '/instruments/:code', 200, { bands: ['V', 'R'], description: 'now two bands' });
+    await hit(admin, 'patch', '/instruments/KR-NONE', '/instruments/:code', 404, { name: 'x' });
     const list = await hit(modeler, 'get', '/stars?limit=5', '/stars', 200);
     const star = list.body.stars[0];
     const cone = await hit(modeler, 'get', `/stars?ra=${star.ra_deg}&dec=${star.dec_deg}&radius=0.5&limit=5`, '/stars', 200);
