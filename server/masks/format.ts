@@ -5,6 +5,7 @@
  */
 import type { Response } from 'express';
 import { badRequest } from '../errors.js';
+import { safeCsv } from '../intake/csv.js';
 import { angleInConvention, jumpInConvention, uInConvention, STOKES_CONVENTIONS, type StokesConvention } from '../science/convention.js';
 import type { TomographyJump, TomographyLayer, TomographySegment } from '../science/tomography/types.js';
 import type { RunParams } from '../tomography/service.js';
@@ -195,13 +196,6 @@ export function setProvenanceHeaders(res: Response, run: RunForOutput, conv: Sto
 // ---------------------------------------------------------------------------------------------
 // CSV
 
-const csvCell = (v: unknown): string => {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'boolean') return v ? '1' : '0';
-  const s = String(v);
-  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-};
-
 export interface CsvColumn<R> {
   name: string;
   /** unit, or '1' for a dimensionless number, '' for text */
@@ -210,14 +204,50 @@ export interface CsvColumn<R> {
   get: (r: R) => unknown;
 }
 
-/** A CSV with '# ' comment lines first (provenance, then one line per column with its unit), then the header row. */
+/** Rows per piece of a streamed CSV: the event loop gets a turn between pieces. */
+export const CSV_ROWS_PER_CHUNK = 2000;
+
+/**
+ * A CSV with '# ' comment lines first (provenance, then one line per column with its unit), then
+ * the header row and the rows, as pieces of about CSV_ROWS_PER_CHUNK rows. Cells go through
+ * csv-stringify with SAFE_CSV_CAST: text that a spreadsheet would run as a formula (=, +, -, @,
+ * tab, CR first) gets a leading quote; numbers stay numbers.
+ */
+export function* csvChunks<R>(comments: string[], columns: CsvColumn<R>[], rows: Iterable<R>): Generator<string> {
+  const head: string[] = comments.map((c) => `# ${c.replace(/[\r\n]+/g, ' ')}`);
+  head.push('# columns (name: unit; meaning):');
+  for (const c of columns) head.push(`#   ${c.name}: ${c.unit || 'text'}; ${c.about}`);
+  yield `${head.join('\n')}\n${safeCsv([columns.map((c) => c.name)], { eol: '\n' })}`;
+  let batch: unknown[][] = [];
+  for (const r of rows) {
+    batch.push(columns.map((c) => c.get(r)));
+    if (batch.length >= CSV_ROWS_PER_CHUNK) {
+      yield safeCsv(batch, { eol: '\n' });
+      batch = [];
+    }
+  }
+  if (batch.length) yield safeCsv(batch, { eol: '\n' });
+}
+
+/** The whole CSV as one string (small answers). */
 export function writeCsv<R>(comments: string[], columns: CsvColumn<R>[], rows: Iterable<R>): string {
-  const out: string[] = comments.map((c) => `# ${c}`);
-  out.push('# columns (name: unit; meaning):');
-  for (const c of columns) out.push(`#   ${c.name}: ${c.unit || 'text'}; ${c.about}`);
-  out.push(columns.map((c) => c.name).join(','));
-  for (const r of rows) out.push(columns.map((c) => csvCell(c.get(r))).join(','));
-  return `${out.join('\n')}\n`;
+  let out = '';
+  for (const piece of csvChunks(comments, columns, rows)) out += piece;
+  return out;
+}
+
+/**
+ * Stream CSV pieces to the response: each piece is written with backpressure (wait for 'drain')
+ * and the event loop gets a turn between pieces, so a large answer neither sits in memory whole
+ * nor blocks other requests. Stops when the client goes away.
+ */
+export async function streamCsv(res: Response, pieces: Iterable<string>): Promise<void> {
+  for (const piece of pieces) {
+    if (res.destroyed || res.writableEnded) return;
+    if (!res.write(piece)) await new Promise<void>((resolve) => { const done = () => { res.off('drain', done); res.off('close', done); resolve(); }; res.once('drain', done); res.once('close', done); });
+    else await new Promise<void>((resolve) => setImmediate(resolve));
+  }
+  if (!res.destroyed) res.end();
 }
 
 /** One CSV row: a layer of a cell (layer undefined for a cell without layers). */
@@ -263,6 +293,8 @@ export function layerCsvColumns(coordsys: 'G' | 'C', conv: StokesConvention): Cs
     { name: 'jump_deg', unit: 'deg', about: `angle jump from the previous layer to this one, in (-90, 90], ${conv === 'iau' ? 'IAU' : 'COSMO (= -IAU)'}; empty for the nearest layer`, get: (r) => r.jumpIn?.deltaThetaDeg },
     { name: 'jump_sigma_deg', unit: 'deg', about: '1-sigma error of jump_deg', get: (r) => r.jumpIn?.sigmaDeg },
     { name: 'jump_significance', unit: '1', about: '|jump_deg| / jump_sigma_deg', get: (r) => r.jumpIn?.significance },
+    { name: 'distance_bound', unit: '', about: 'range (16-84 % range), upper (only an upper bound: nearer than distance_hi_pc) or interval (somewhere between distance_lo_pc and distance_hi_pc); empty for runs made before it existed', get: (r) => r.layer?.distanceBound },
+    { name: 'distance_note', unit: '', about: 'the distance in words when it is a bound or an interval', get: (r) => r.layer?.distanceNote ?? undefined },
   ];
 }
 

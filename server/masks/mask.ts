@@ -9,7 +9,7 @@ import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest, queryDiscNe
 import { icrsToGalactic, galacticToIcrs } from '../science/frames.js';
 import { mocFromRanges, type CellRange, type Moc } from '../science/moc.js';
 import type { StokesConvention } from '../science/convention.js';
-import { cellMeetsCriteria, describeCriteria, provenanceComments, writeCsv, type CellCriteria, type CellForOutput, type CsvColumn, type RunForOutput } from './format.js';
+import { cellMeetsCriteria, csvChunks, describeCriteria, provenanceComments, type CellCriteria, type CellForOutput, type CsvColumn, type RunForOutput } from './format.js';
 
 /** Finest NSIDE a mask is written at (a FITS map at 512 is 3.1 million rows, 22 MB). */
 export const MAX_MASK_NSIDE = 512;
@@ -180,24 +180,55 @@ interface MaskPixelRow {
   decDeg: number;
 }
 
-/** CSV of the flagged pixels at the mask NSIDE, with the units header. */
-export function maskCsv(run: RunForOutput, cells: MaskCell[], nside: number, criteria: CellCriteria, conv: StokesConvention): string {
+/** Most rows a mask CSV may hold (about 120 bytes each); larger masks are for FITS or MOC. */
+export const MAX_MASK_CSV_ROWS = 1_000_000;
+
+/** Rows of the mask CSV: flagged cells × 4^(order difference). */
+export function maskCsvRowCount(run: RunForOutput, cells: MaskCell[], nside: number): number {
   const k = orderForNside(nside) - orderForNside(run.params.nside);
-  const frame = run.params.coordsys === 'G' ? 'Galactic l, b' : 'ICRS RA, Dec';
-  const rows: MaskPixelRow[] = [];
+  let flagged = 0;
+  for (const c of cells) if (c.flagged) flagged++;
+  return flagged * 4 ** k;
+}
+
+/** 400 when the CSV would be over MAX_MASK_CSV_ROWS, naming the limit and what to ask for instead. */
+export function assertMaskCsvSize(run: RunForOutput, cells: MaskCell[], nside: number): number {
+  const rows = maskCsvRowCount(run, cells, nside);
+  if (rows > MAX_MASK_CSV_ROWS) {
+    throw badRequest(`a mask CSV at nside ${nside} would hold ${rows.toLocaleString('en-US')} rows; the limit is ${MAX_MASK_CSV_ROWS.toLocaleString('en-US')}. Ask for format=fits or format=moc-json (same mask, compact), a coarser nside, or tighter criteria.`, {
+      fields: [{ field: 'format', message: `csv is limited to ${MAX_MASK_CSV_ROWS} rows; this mask has ${rows}` }],
+    });
+  }
+  return rows;
+}
+
+function* maskPixelRows(run: RunForOutput, cells: MaskCell[], nside: number): Generator<MaskPixelRow> {
+  const k = orderForNside(nside) - orderForNside(run.params.nside);
   for (const c of cells) {
     if (!c.flagged) continue;
     if (k === 0) {
-      rows.push({ ipix: c.ipix, cell: c, lonDeg: c.lonDeg, latDeg: c.latDeg, raDeg: c.raDeg, decDeg: c.decDeg });
+      yield { ipix: c.ipix, cell: c, lonDeg: c.lonDeg, latDeg: c.latDeg, raDeg: c.raDeg, decDeg: c.decDeg };
       continue;
     }
     const [a, b] = childRange(c.ipix, k);
     for (let p = a; p < b; p++) {
       const centre = pix2angNest(nside, p);
       const icrs = run.params.coordsys === 'G' ? galacticToIcrs(centre.lonDeg, centre.latDeg) : { raDeg: centre.lonDeg, decDeg: centre.latDeg };
-      rows.push({ ipix: p, cell: c, ...centre, ...icrs });
+      yield { ipix: p, cell: c, ...centre, ...icrs };
     }
   }
+}
+
+/** CSV of the flagged pixels at the mask NSIDE, with the units header (as one string). */
+export function maskCsv(run: RunForOutput, cells: MaskCell[], nside: number, criteria: CellCriteria, conv: StokesConvention): string {
+  return [...maskCsvPieces(run, cells, nside, criteria, conv)].join('');
+}
+
+/** The same CSV in pieces of a few thousand rows, for streaming (server/masks/format.ts streamCsv). */
+export function maskCsvPieces(run: RunForOutput, cells: MaskCell[], nside: number, criteria: CellCriteria, conv: StokesConvention): Generator<string> {
+  const k = orderForNside(nside) - orderForNside(run.params.nside);
+  const frame = run.params.coordsys === 'G' ? 'Galactic l, b' : 'ICRS RA, Dec';
+  const count = maskCsvRowCount(run, cells, nside);
   const columns: CsvColumn<MaskPixelRow>[] = [
     { name: 'nside', unit: '1', about: 'HEALPix NSIDE of the pixel', get: () => nside },
     { name: 'ipix', unit: '1', about: 'HEALPix NESTED pixel index in the run frame', get: (r) => r.ipix },
@@ -213,12 +244,12 @@ export function maskCsv(run: RunForOutput, cells: MaskCell[], nside: number, cri
     { name: 'nearest_layer_pc', unit: 'pc', about: 'distance of the nearest layer', get: (r) => r.cell.nearestLayerPc },
     { name: 'farthest_layer_pc', unit: 'pc', about: 'distance of the farthest layer', get: (r) => r.cell.farthestLayerPc },
   ];
-  return writeCsv(
+  return csvChunks(
     provenanceComments('sky mask: the flagged pixels', run, conv, [
       `criteria: ${describeCriteria(criteria)}`,
-      `mask NSIDE ${nside}${k > 0 ? ` (each run cell written as its ${4 ** k} NESTED children)` : ''}; ${rows.length} flagged pixels`,
+      `mask NSIDE ${nside}${k > 0 ? ` (each run cell written as its ${4 ** k} NESTED children)` : ''}; ${count} flagged pixels`,
     ]),
     columns,
-    rows,
+    maskPixelRows(run, cells, nside),
   );
 }

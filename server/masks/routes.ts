@@ -4,8 +4,8 @@ import { badRequest } from '../errors.js';
 import { npixForNside } from '../science/healpix.js';
 import { mocToAscii, mocToJson, mocSkyFraction, mocCellCount } from '../science/moc.js';
 import { SIGHTLINE_CONVENTIONS } from '../tomography/routes.js';
-import { choiceParam, conventionParam, criteriaParams, MASK_DEFAULTS, NO_CRITERIA, numberParam, runParams, runSummary, sendCells, setProvenanceHeaders } from './format.js';
-import { maskCells, maskCsv, maskFits, maskMoc, maskNside } from './mask.js';
+import { choiceParam, conventionParam, criteriaParams, MASK_DEFAULTS, NO_CRITERIA, numberParam, runParams, runSummary, sendCells, setProvenanceHeaders, streamCsv } from './format.js';
+import { assertMaskCsvSize, maskCells, maskCsvPieces, maskFits, maskMoc, maskNside } from './mask.js';
 import type { SkyService } from './service.js';
 
 export const SKY_DEFAULT_LIMIT = 1000;
@@ -67,7 +67,11 @@ export function maskRoutes(deps: { sky: SkyService }): Router {
       return;
     }
     if (format === 'csv') {
-      res.attachment(`${name}.csv`).type('text/csv; charset=utf-8').send(maskCsv(run, cells, nside, criteria, convention));
+      // streamed in pieces: a fine mask is hundreds of thousands of rows
+      const rows = assertMaskCsvSize(run, cells, nside);
+      res.setHeader('Starveil-Rows', String(rows));
+      res.attachment(`${name}.csv`).type('text/csv; charset=utf-8');
+      await streamCsv(res, maskCsvPieces(run, cells, nside, criteria, convention));
       return;
     }
     const { moc, order } = maskMoc(run, cells, nside);

@@ -1,4 +1,4 @@
-import { Router } from 'express';
+import { Router, type RequestHandler } from 'express';
 import { guard } from '../auth/roles.js';
 import { badRequest } from '../errors.js';
 import { validateBody } from '../lib/validate.js';
@@ -29,7 +29,16 @@ export function tomographyRoutes(deps: { tomography: TomographyService }): Route
   const curator = guard(['curator']);
   const readers = guard('signed-in');
 
-  r.post('/tomography/runs', curator, validateBody('api/tomography-run'), async (req, res) => {
+  // no body at all (no JSON content type, or empty) is a 400 naming it; {} asks for the defaults
+  const jsonObjectBody: RequestHandler = (req, _res, next) => {
+    if (req.body === undefined || req.body === null || typeof req.body !== 'object' || Array.isArray(req.body)) {
+      next(badRequest('Send the run parameters as a JSON object (Content-Type: application/json); {} starts a run with the defaults.', { fields: [{ field: 'body', message: 'expected a JSON object' }] }));
+      return;
+    }
+    next();
+  };
+
+  r.post('/tomography/runs', curator, jsonObjectBody, validateBody('api/tomography-run'), async (req, res) => {
     const { id } = await tomography.start(req.user!.id, req.body);
     res.status(202).json(await tomography.get(id));
   });

@@ -4,11 +4,14 @@ import { recordAudit } from '../audit/service.js';
 import { bulkInsert } from '../dialect.js';
 import { AppError, notFound } from '../errors.js';
 import { whereInCone, withinCone } from '../catalog/cone.js';
+import { npixForNside } from '../science/healpix.js';
 import { combineMeasurements } from '../science/combine.js';
 import { bandNormalisation, normalisationParams } from '../science/calibration.js';
 import { distanceFromParallax } from '../science/distance.js';
-import { galacticToIcrs } from '../science/frames.js';
-import { ang2pixNest, maxPixelRadiusDeg, pix2angNest } from '../science/healpix.js';
+import { galacticToIcrs, icrsToGalactic } from '../science/frames.js';
+import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest } from '../science/healpix.js';
+import { angularSeparationDeg } from '../science/separation.js';
+import { candidateCellRanges, pixelOverlapsDisc } from './cone.js';
 import { runCellsInWorkers, type TomographyCell } from '../science/tomography/pool.js';
 import type { SightlineResult, TomographyStar } from '../science/tomography/types.js';
 
@@ -28,6 +31,17 @@ export interface RunParams {
   /** K of the Serkowski law (default 0.01 + 1.66 λmax, Whittet et al. 1992) */
   serkowskiK?: number;
 }
+
+/** Runs one person may have queued or running at once (the queue is shared: one run at a time). */
+export const MAX_OPEN_RUNS_PER_PERSON = 2;
+/** Monte Carlo draws × cells one run may fit (the demo run: about 100 × 300). */
+export const MAX_DRAW_CELLS = 2_000_000;
+/** include=stars: widest cone and most cells whose stars one answer gathers. */
+export const MAX_STARS_RADIUS_DEG = 5;
+export const MAX_STARS_CELLS = 50;
+
+/** Thrown inside the final transaction when the run stopped being `running` (cancelled meanwhile). */
+class RunEnded extends Error {}
 
 export const DEFAULT_RUN: RunParams = { nside: 32, coordsys: 'G', band: 'R', minStars: 10, draws: 100, jumpThresholdDeg: 30, minSegmentLength: 3, region: null };
 
@@ -117,23 +131,30 @@ function summarise(r: SightlineResult) {
 }
 
 /** Tomography runs: gather the approved data, fit every cell on worker threads, store with a fingerprint. */
-export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?: number } = {}) {
+export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?: number; maxDrawCells?: number; maxOpenRunsPerPerson?: number } = {}) {
+  const maxDrawCells = opts.maxDrawCells ?? MAX_DRAW_CELLS;
+  const maxOpenRuns = opts.maxOpenRunsPerPerson ?? MAX_OPEN_RUNS_PER_PERSON;
   const live = new Map<number, Live>();
   let queue: Promise<void> = Promise.resolve();
 
   async function execute(runId: number): Promise<void> {
     const run = await db('tomography_runs').where({ id: runId }).first();
-    if (run.state !== 'queued') return;
+    if (!run || run.state !== 'queued') return;
     const params = JSON.parse(run.params_json) as RunParams;
     const abort = new AbortController();
     const state: Live = { cellsDone: 0, cellsTotal: 0, startedMs: Date.now(), abort };
     live.set(runId, state);
     try {
-      await db('tomography_runs').where({ id: runId }).update({ state: 'running', started_at: new Date().toISOString() });
+      // queued → running only if nobody cancelled it while it waited
+      const claimed = await db('tomography_runs').where({ id: runId, state: 'queued' }).update({ state: 'running', started_at: new Date().toISOString() });
+      if (!claimed) return;
       const { byCell, fingerprint, starsUsed, measurementsUsed } = await gatherStars(readDb, params);
       const cells: TomographyCell[] = [...byCell].filter(([, s]) => s.length >= params.minStars).sort((a, b) => a[0] - b[0]).map(([ipix, stars]) => ({ cellId: `${params.nside}/${ipix}`, stars }));
       state.cellsTotal = cells.length;
       state.startedMs = Date.now(); // time left counts fitting only, not gathering
+      const work = cells.length * Math.max(1, params.draws);
+      if (work > maxDrawCells) throw new Error(`${cells.length} cells × ${params.draws} draws = ${work} is over the limit of ${maxDrawCells} draws × cells per run`);
+      if (abort.signal.aborted) throw new RunEnded('cancelled');
       await db('tomography_runs').where({ id: runId }).update({ cells_total: cells.length, fingerprint, stars_used: starsUsed, measurements_used: measurementsUsed });
       const results = await runCellsInWorkers(
         cells,
@@ -150,18 +171,82 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
         const { segments, starOrder, ...rest } = r;
         return { run_id: runId, nside: params.nside, ipix, lon_deg: c.lonDeg, lat_deg: c.latDeg, ra_deg: icrs.raDeg, dec_deg: icrs.decDeg, ...summarise(r), result_json: JSON.stringify({ ...rest, segments, starOrder }) };
       });
+      if (abort.signal.aborted) throw new RunEnded('cancelled');
+      // all cells or none: the state flips to done in the same transaction, and only from running
       await db.transaction(async (trx) => {
+        const flipped = await trx('tomography_runs').where({ id: runId, state: 'running' }).update({ state: 'done', cells_done: rows.length, finished_at: new Date().toISOString() });
+        if (!flipped) throw new RunEnded('the run was ended meanwhile');
         await bulkInsert(trx, 'tomography_cells', rows);
-        await trx('tomography_runs').where({ id: runId }).update({ state: 'done', cells_done: rows.length, finished_at: new Date().toISOString() });
         await recordAudit(trx, { actorId: run.started_by, action: 'tomography.finished', entityType: 'tomography_run', entityId: runId, after: { cells: rows.length, fingerprint } });
       });
     } catch (e) {
-      const cancelled = abort.signal.aborted;
+      const cancelled = abort.signal.aborted || e instanceof RunEnded;
       if (!cancelled) console.error(e);
-      await db('tomography_runs').where({ id: runId }).update({ state: cancelled ? 'cancelled' : 'failed', error: cancelled ? null : String((e as Error).message).slice(0, 500), finished_at: new Date().toISOString(), cells_done: state.cellsDone });
+      // only a run still open is marked: a cancel already wrote its own end
+      await db('tomography_runs').where({ id: runId }).whereIn('state', ['queued', 'running']).update({ state: cancelled ? 'cancelled' : 'failed', error: cancelled ? null : String((e as Error).message).slice(0, 500), finished_at: new Date().toISOString(), cells_done: 0 });
     } finally {
       live.delete(runId);
     }
+  }
+
+  /**
+   * Limits on one person's use of the shared queue, each a 4xx naming the limit:
+   * at most MAX_OPEN_RUNS_PER_PERSON runs queued or running, and at most MAX_DRAW_CELLS
+   * Monte Carlo draws × cells (cells bounded above by the stars that could fill them ÷ minStars,
+   * and by the pixels of the sky).
+   */
+  async function checkRunLimits(actorId: number, params: RunParams) {
+    const [{ n: open }] = await readDb('tomography_runs').where({ started_by: actorId }).whereIn('state', ['queued', 'running']).count({ n: '*' });
+    if (Number(open) >= maxOpenRuns) {
+      throw new AppError(429, 'too_many_runs', `You have ${Number(open)} tomography runs queued or running; the limit is ${maxOpenRuns} per person. Wait for one to finish or cancel one.`, { fields: [{ field: 'run', message: `at most ${maxOpenRuns} open runs per person` }] });
+    }
+    let q = readDb('measurements as m').join('stars as s', 's.id', 'm.star_id').where('m.state', 'approved');
+    if (!params.referenceBand) q = q.where('m.band', params.band);
+    if (params.region) q = whereInCone(q, 's.hpx15', params.region.ra, params.region.dec, params.region.radius);
+    const [{ n: stars }] = await q.countDistinct({ n: 'm.star_id' });
+    const cellsAtMost = Math.min(npixForNside(params.nside), Math.floor(Number(stars) / params.minStars));
+    const work = cellsAtMost * Math.max(1, params.draws);
+    if (work > maxDrawCells) {
+      throw new AppError(400, 'bad_request', `This run could fit up to ${cellsAtMost.toLocaleString('en-US')} cells (${Number(stars).toLocaleString('en-US')} stars ÷ minStars ${params.minStars}) × ${params.draws} draws = ${work.toLocaleString('en-US')}; the limit is ${maxDrawCells.toLocaleString('en-US')} draws × cells per run. Lower draws, raise minStars, or give a region.`, {
+        fields: [{ field: 'draws', message: `draws × cells ≤ ${maxDrawCells}` }],
+      });
+    }
+  }
+
+  /**
+   * On start: a run left `running` by a stopped server is marked `interrupted` with the reason
+   * (its cells were never written: they go in one transaction at the end); a run left `queued`
+   * is queued again.
+   */
+  async function recoverInterrupted(): Promise<{ interrupted: number[]; requeued: number[] }> {
+    const open = await db('tomography_runs').whereIn('state', ['queued', 'running']).orderBy('id').select('id', 'state', 'started_by');
+    const interrupted: number[] = [];
+    const requeued: number[] = [];
+    for (const r of open) {
+      if (live.has(r.id)) continue;
+      if (r.state === 'queued') {
+        requeued.push(r.id);
+        enqueue(r.id);
+        continue;
+      }
+      await db.transaction(async (trx) => {
+        const changed = await trx('tomography_runs').where({ id: r.id, state: 'running' }).update({
+          state: 'interrupted', cells_done: 0, finished_at: new Date().toISOString(),
+          error: 'The server stopped while this run was fitting; no result of it was kept. Start the run again.',
+        });
+        if (!changed) return;
+        await trx('tomography_cells').where({ run_id: r.id }).delete();
+        await recordAudit(trx, { actorId: r.started_by, action: 'tomography.interrupted', entityType: 'tomography_run', entityId: r.id, before: { state: 'running' }, after: { state: 'interrupted' } });
+      });
+      interrupted.push(r.id);
+    }
+    return { interrupted, requeued };
+  }
+
+  function enqueue(id: number): Promise<void> {
+    const job = queue.then(() => execute(id));
+    queue = job.catch(() => undefined);
+    return job;
   }
 
   function present(r: Record<string, any>) {
@@ -185,9 +270,16 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
     };
   }
 
+  const recovered = recoverInterrupted().catch((e) => {
+    console.error('tomography: could not check runs left open by a restart', e);
+    return { interrupted: [] as number[], requeued: [] as number[] };
+  });
+
   return {
     async start(actorId: number, input: Partial<RunParams>) {
+      await recovered; // runs a restart left open are settled first
       const params: RunParams = { ...DEFAULT_RUN, ...input, region: input.region ?? null };
+      await checkRunLimits(actorId, params);
       // band normalisation: recorded with its λmax and K in the params (and so in the fingerprint)
       if (params.referenceBand) Object.assign(params, normalisationParams(params.referenceBand, params.lambdaMaxUm, params.serkowskiK));
       const id = await db.transaction(async (trx) => {
@@ -195,18 +287,19 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
         await recordAudit(trx, { actorId, action: 'tomography.start', entityType: 'tomography_run', entityId: id, after: params });
         return id as number;
       });
-      const job = queue.then(() => execute(id));
-      queue = job.catch(() => undefined);
-      return { id, done: job };
+      return { id, done: enqueue(id) };
     },
 
     async cancel(actorId: number, id: number) {
       const run = await db('tomography_runs').where({ id }).first();
       if (!run) throw notFound(`Run ${id}`);
       if (!['queued', 'running'].includes(run.state)) throw new AppError(409, 'finished', `Run ${id} is ${run.state}; only a queued or running run can be cancelled.`);
+      // any unfinished run ends here, live or left over from before a restart; its fit (if any) is
+      // aborted and can no longer flip it to done (the final write requires state = running)
       await db.transaction(async (trx) => {
-        if (run.state === 'queued') await trx('tomography_runs').where({ id }).update({ state: 'cancelled', finished_at: new Date().toISOString() });
-        await recordAudit(trx, { actorId, action: 'tomography.cancel', entityType: 'tomography_run', entityId: id });
+        await trx('tomography_runs').where({ id }).whereIn('state', ['queued', 'running']).update({ state: 'cancelled', finished_at: new Date().toISOString(), cells_done: 0 });
+        await trx('tomography_cells').where({ run_id: id }).delete();
+        await recordAudit(trx, { actorId, action: 'tomography.cancel', entityType: 'tomography_run', entityId: id, before: { state: run.state } });
       });
       live.get(id)?.abort.abort();
       return present(await db('tomography_runs').where({ id }).first());
@@ -244,22 +337,47 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
     },
 
     async sightlines(run: ReturnType<typeof present> & { release?: string | null }, where: { ipix: number[] } | { ra: number; dec: number; radius: number }, includeStars: boolean) {
-      let q = readDb('tomography_cells').where({ run_id: run.id });
-      if ('ipix' in where) q = q.whereIn('ipix', where.ipix);
-      let rows = await q.orderBy('ipix');
-      if (!('ipix' in where)) rows = withinCone(rows, where.ra, where.dec, where.radius);
-      const out = rows.map((c) => presentCell(c));
-      if (includeStars) {
-        // the stars of each cell, gathered exactly as the run gathered them (a cone around the cell, then the cell itself)
-        for (const c of out.slice(0, 50)) {
-          const region = { ra: c.centre.raDeg, dec: c.centre.decDeg, radius: maxPixelRadiusDeg(run.params.nside) * 1.01 };
-          const releaseId = run.release ? (await readDb('releases').where({ tag: run.release }).first('id'))?.id : undefined;
-          const { byCell } = await gatherStars(readDb, { ...run.params, region }, { releaseId });
-          (c as Record<string, unknown>).stars = (byCell.get(c.ipix) ?? []).sort((a, b) => a.distancePc - b.distancePc);
+      const { nside, coordsys } = run.params;
+      let rows: Record<string, any>[];
+      let starsCone: { ra: number; dec: number; radius: number } | null = null;
+      if ('ipix' in where) {
+        rows = await readDb('tomography_cells').where({ run_id: run.id }).whereIn('ipix', where.ipix).orderBy('ipix');
+        if (rows.length) starsCone = { ra: rows[0].ra_deg, dec: rows[0].dec_deg, radius: maxPixelRadiusDeg(nside) * 1.01 };
+      } else {
+        // every cell overlapping the cone, found through the index (server/tomography/cone.ts)
+        const centre = coordsys === 'G' ? (({ lDeg, bDeg }) => ({ lon: lDeg, lat: bDeg }))(icrsToGalactic(where.ra, where.dec)) : { lon: where.ra, lat: where.dec };
+        if (includeStars && where.radius > MAX_STARS_RADIUS_DEG) {
+          throw new AppError(400, 'bad_request', `include=stars is limited to cones of radius ≤ ${MAX_STARS_RADIUS_DEG}°; this one is ${where.radius}°. Ask without include=stars, or for one cell (nside, ipix).`, { fields: [{ field: 'include', message: `stars only for radius ≤ ${MAX_STARS_RADIUS_DEG}` }] });
         }
+        const ranges = candidateCellRanges(nside, centre.lon, centre.lat, where.radius);
+        const candidates = ranges.length
+          ? await readDb('tomography_cells').where({ run_id: run.id }).where((w) => {
+            for (const [lo, hi] of ranges) w.orWhereBetween('ipix', [lo, hi]);
+          })
+          : [];
+        const order = orderForNside(nside);
+        rows = candidates
+          .filter((c) => pixelOverlapsDisc(order, Number(c.ipix), centre.lon, centre.lat, where.radius))
+          .map((c) => ({ ...c, separation_deg: angularSeparationDeg(centre.lon, centre.lat, c.lon_deg, c.lat_deg) }))
+          .sort((a, b) => a.separation_deg - b.separation_deg || Number(a.ipix) - Number(b.ipix));
+        // a cell overlapping the cone reaches at most radius + 2 × its corner distance from the centre
+        starsCone = { ra: where.ra, dec: where.dec, radius: where.radius + 2 * maxPixelRadiusDeg(nside) * 1.01 };
+      }
+      const out = rows.map((c) => presentCell(c));
+      if (includeStars && out.length) {
+        if (out.length > MAX_STARS_CELLS) {
+          throw new AppError(400, 'bad_request', `include=stars is limited to ${MAX_STARS_CELLS} cells per answer; this cone touches ${out.length}. Use a smaller radius.`, { fields: [{ field: 'include', message: `stars for at most ${MAX_STARS_CELLS} cells` }] });
+        }
+        // the stars of every cell at once, gathered exactly as the run gathered them (one cone query)
+        const releaseId = run.release ? (await readDb('releases').where({ tag: run.release }).first('id'))?.id : undefined;
+        const { byCell } = await gatherStars(readDb, { ...run.params, region: starsCone }, { releaseId });
+        for (const c of out) (c as Record<string, unknown>).stars = (byCell.get(c.ipix) ?? []).sort((a, b) => a.distancePc - b.distancePc);
       }
       return out;
     },
+
+    /** Wait for the start-up check of runs a restart left open (tests, start-up logging). */
+    ready: () => recovered,
   };
 }
 export type TomographyService = ReturnType<typeof tomographyService>;
