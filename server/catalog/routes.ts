@@ -4,6 +4,8 @@ import { guard } from '../auth/roles.js';
 import { badRequest } from '../errors.js';
 import { singleValuedQuery } from '../lib/query.js';
 import { catalogService, visibleStarCount } from './service.js';
+import { coneCentre } from './cone.js';
+import { todoFor } from './todo.js';
 
 export function catalogRoutes(deps: { db: Knex }): Router {
   const { db } = deps;
@@ -16,6 +18,7 @@ export function catalogRoutes(deps: { db: Knex }): Router {
     res.json({
       survey: 'Kestrel Ridge Polarimetric Survey',
       counts: { stars: Number(stars), instruments: instruments.length },
+      todo: await todoFor(db, req.user!), // what waits for this person (server/catalog/todo.ts)
       instruments: instruments.map((i) => ({ ...i, bands: String(i.bands).split(',') })),
     });
   });
@@ -32,7 +35,9 @@ export function catalogRoutes(deps: { db: Knex }): Router {
 
   r.get('/stars', guard('signed-in'), singleValuedQuery, async (req, res) => {
     const q = req.query as Record<string, string | undefined>;
-    const ra = num(q.ra, 'ra'), dec = num(q.dec, 'dec'), radius = num(q.radius, 'radius');
+    // ra/dec in degrees or sexagesimal, or Galactic l/b (server/catalog/cone.ts)
+    const { ra, dec } = coneCentre(q);
+    const radius = num(q.radius, 'radius');
     const given = [ra, dec, radius].filter((x) => x !== undefined).length;
     if (given > 0 && given < 3) throw badRequest('a cone search needs ra, dec and radius (degrees, ICRS)', { fields: [{ field: ra === undefined ? 'ra' : dec === undefined ? 'dec' : 'radius', message: 'required for a cone search' }] });
     const limit = num(q.limit, 'limit') ?? 50;
@@ -40,7 +45,7 @@ export function catalogRoutes(deps: { db: Knex }): Router {
     if (!Number.isInteger(limit) || limit < 1 || limit > 1000) throw badRequest('limit must be an integer from 1 to 1000', { fields: [{ field: 'limit', message: 'expected 1–1000' }] });
     if (!Number.isSafeInteger(offset) || offset < 0) throw badRequest('offset must be an integer from 0 to 2^53 − 1', { fields: [{ field: 'offset', message: 'expected an integer ≥ 0' }] });
     const order = q.order === 'desc' ? 'desc' : 'asc';
-    res.json(await catalog.stars(req.user!, { q: q.q?.trim() || undefined, ra, dec, radius, sort: q.sort ?? 'id', order, limit, offset }));
+    res.json(await catalog.stars(req.user!, { q: q.q?.trim() || undefined, ra, dec, radius, sort: q.sort ?? 'id', order, limit, offset, flag: q.flag || undefined }));
   });
 
   r.get('/stars/:id', guard('signed-in'), async (req, res) => {

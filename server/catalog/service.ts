@@ -4,6 +4,10 @@ import { hasRole } from '../auth/roles.js';
 import { badRequest, notFound } from '../errors.js';
 import { combineMeasurements } from '../science/combine.js';
 import { whereInCone, withinCone } from './cone.js';
+import { FLAG_NAMES, plausibilityService } from '../calibration/plausibility.js';
+
+/** Flags a catalog search can ask for (plausibility flags and the stored quality flags). */
+export const STAR_FLAGS = [...FLAG_NAMES, 'low_parallax_snr', 'no_distance'];
 import { whereMeasurementVisible as whereMeasurementNotHidden, whereStarVisible as whereStarNotHidden } from '../intake/visibility.js';
 
 const STAR_SORTS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'n_measurements'] as const;
@@ -17,6 +21,8 @@ export interface StarQuery {
   order: 'asc' | 'desc';
   limit: number;
   offset: number;
+  /** only stars with a visible measurement carrying this flag */
+  flag?: string;
 }
 
 /** Which measurements a person may read: modelers approved only; observers approved + their own batches'. */
@@ -56,6 +62,7 @@ export async function visibleStarCount(db: Knex, user: SessionUser): Promise<num
 }
 
 export function catalogService(db: Knex) {
+  const plausibility = plausibilityService(db);
   return {
     async stars(user: SessionUser, query: StarQuery) {
       if (!(STAR_SORTS as readonly string[]).includes(query.sort)) throw badRequest(`sort must be one of ${STAR_SORTS.join(', ')}`, { fields: [{ field: 'sort', message: 'unknown column' }] });
@@ -65,6 +72,11 @@ export function catalogService(db: Knex) {
       if (query.q) {
         const like = `%${query.q.replace(/[%_]/g, (c) => `\\${c}`)}%`;
         base = base.where((w) => w.whereRaw("stars.name LIKE ? ESCAPE '\\'", [like]).orWhere('stars.source_id', query.q!));
+      }
+      if (query.flag) {
+        if (!STAR_FLAGS.includes(query.flag)) throw badRequest(`flag must be one of ${STAR_FLAGS.join(', ')}`, { fields: [{ field: 'flag', message: 'unknown flag' }] });
+        const filter = await plausibility.flagFilter(query.flag);
+        base = base.whereExists(filter(visibleMeasurements(db, user).select(db.raw('1')).whereRaw('measurements.star_id = stars.id')));
       }
       const cone = query.ra !== undefined && query.dec !== undefined && query.radius !== undefined;
       if (cone) {
@@ -102,6 +114,8 @@ export function catalogService(db: Knex) {
       const star = await whereStarVisible(db('stars').where({ id }), db, user).first();
       if (!star) throw notFound(`Star ${id}`);
       const measurements = await visibleMeasurements(db, user).where('measurements.star_id', id).orderBy(['band', 'mjd', 'id']).select();
+      // stored flags plus the read-time plausibility flags (p ceiling, χ²-inconsistent repeats)
+      const flagged = await plausibility.annotate(measurements.map((m) => ({ p: m.p, star_id: m.star_id, flags: m.flags_json ? (JSON.parse(m.flags_json) as string[]) : [] })));
       // combined value per band and instrument from approved measurements (METHODS.md: inverse-variance weighted q, u)
       const groups = new Map<string, typeof measurements>();
       for (const m of measurements) {
@@ -116,11 +130,11 @@ export function catalogService(db: Knex) {
       });
       return {
         star: present({ ...star, n_measurements: measurements.length }),
-        measurements: measurements.map((m) => ({
+        measurements: measurements.map((m, i) => ({
           id: m.id, state: m.state, version: m.version, batchId: m.batch_id, band: m.band, instrument: m.instrument, mjd: m.mjd,
           q: m.q, u: m.u, q_err: m.q_err, u_err: m.u_err, p: m.p, p_err: m.p_err, p_debiased: m.p_debiased, theta_deg: m.theta_deg, theta_err_deg: m.theta_err_deg,
           q_gal: m.q_gal, u_gal: m.u_gal, theta_gal_deg: m.theta_gal_deg, distance_pc: m.distance_pc, distance_lo_pc: m.distance_lo_pc, distance_hi_pc: m.distance_hi_pc, distance_method: m.distance_method,
-          flags: m.flags_json ? JSON.parse(m.flags_json) : [],
+          flags: flagged[i].flags,
         })),
         combined,
         units: UNITS,

@@ -221,3 +221,69 @@ describe('band normalisation for tomography (Serkowski law)', () => {
     expect((await curator.post('/api/v1/tomography/runs').send({ referenceBand: 'K' })).status).toBe(400);
   });
 });
+
+describe('plausibility flags in review and catalog', () => {
+  it('the review table filters by flag and shows the read-time flags', async () => {
+    // line 5 of the night is an unpolarized standard: p ≈ instrumental only, p/σp < 5 (Naghizadeh-Khouei & Clarke 1993)
+    await curator.patch('/api/v1/plausibility').send({ pCeiling: 0.05 });
+    const low = await curator.get(`/api/v1/batches/${batchId}/measurements?filter.flag=low_p_snr`);
+    expect(low.status).toBe(200);
+    expect(low.body.rows.length).toBeGreaterThan(0);
+    for (const r of low.body.rows) expect(r.p / r.p_err).toBeLessThan(5);
+    const high = await curator.get(`/api/v1/batches/${batchId}/measurements?filter.flag=above_p_ceiling`);
+    // BD+59 389 at 6.7 % and HD 204827 at 5.32 % (METHODS.md, from memory) are above a 5 % ceiling
+    expect(high.body.rows.map((r: any) => r.line).sort()).toEqual([2, 3]);
+    for (const r of high.body.rows) expect(r.flags).toContain('above_p_ceiling');
+    const stars = await curator.get('/api/v1/stars?flag=above_p_ceiling&limit=1000');
+    expect(stars.status).toBe(200);
+    expect(stars.body.stars.map((s: any) => s.name).sort()).toEqual(['BD+59 389', 'hd204827']);
+    expect((await curator.get('/api/v1/stars?flag=shiny')).status).toBe(400);
+    await curator.patch('/api/v1/plausibility').send({ pCeiling: 0.15 });
+  });
+
+  it('χ²-inconsistent repeats are flagged (scipy chi2.sf < 0.001)', async () => {
+    // the same science star again, 3 % away in q with σ = 0.04 %: χ² far beyond the 0.001 tail
+    const csv = [HEADER, ['KRS SCIENCE A', 100.1, -30.2, 'V', 0.05, 0.01, 0.0004, 0.0004, 2.0, 0.05, 61030.2, 'KR-HAWK'].join(',')].join('\n');
+    const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(csv), 'repeat.csv');
+    expect(up.status).toBeLessThan(300);
+    const rows = (await curator.get(`/api/v1/batches/${up.body.id}/measurements?filter.flag=inconsistent_repeats`)).body.rows;
+    expect(rows).toHaveLength(1);
+    expect(rows[0].flags).toContain('inconsistent_repeats');
+  });
+});
+
+describe('cone search and the overview', () => {
+  it('takes sexagesimal RA/Dec and Galactic l, b', async () => {
+    const star = await t.db('stars').orderBy('id').first();
+    const deg = await curator.get(`/api/v1/stars?ra=${star.ra_deg}&dec=${star.dec_deg}&radius=0.01`);
+    expect(deg.body.stars[0].id).toBe(star.id);
+    // hours → degrees ×15 (IAU): format the star's own position as sexagesimal text
+    const h = star.ra_deg / 15, hh = Math.floor(h), mm = Math.floor((h - hh) * 60), ss = ((h - hh) * 60 - mm) * 60;
+    const d = Math.abs(star.dec_deg), dd = Math.floor(d), dm = Math.floor((d - dd) * 60), ds = ((d - dd) * 60 - dm) * 60;
+    const sexa = `ra=${hh}:${mm}:${ss.toFixed(3)}&dec=${star.dec_deg < 0 ? '-' : '+'}${dd}:${dm}:${ds.toFixed(2)}`;
+    const sx = await curator.get(`/api/v1/stars?${sexa.replace(/\+/g, '%2B')}&radius=0.01`);
+    expect(sx.status).toBe(200);
+    expect(sx.body.stars[0].id).toBe(star.id);
+    expect(sx.body.stars[0].separation_deg * 3600).toBeLessThan(0.1);
+    const gal = await curator.get(`/api/v1/stars?l=${star.glon_deg}&b=${star.glat_deg}&radius=0.01`);
+    expect(gal.status).toBe(200);
+    expect(gal.body.stars[0].id).toBe(star.id);
+    expect(gal.body.stars[0].separation_deg * 3600).toBeLessThan(0.01);
+    const bad = await curator.get('/api/v1/stars?ra=25:00:00&dec=10&radius=1');
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.details.fields[0].field).toBe('ra');
+    expect((await curator.get('/api/v1/stars?l=10&dec=5&radius=1')).status).toBe(400);
+  });
+
+  it('shows each role its to-do counts; an observer only about their own batches', async () => {
+    const obs = (await observer.get('/api/v1/overview')).body.todo as any[];
+    // the demo leaves the messy night needing its column mapping (seeds/demo.ts)
+    expect(obs.find((x) => x.kind === 'needs_mapping')).toMatchObject({ count: 1, text: '1 batch needs your column mapping', link: expect.stringMatching(/^\/batches\/\d+$/) });
+    const waiting = Number((await t.db('batches').where({ state: 'awaiting_review' }).count({ n: '*' }))[0].n);
+    const cur = (await curator.get('/api/v1/overview')).body.todo as any[];
+    if (waiting) expect(cur.find((x) => x.kind === 'review')).toMatchObject({ count: waiting, link: '/review' });
+    expect(cur.find((x) => x.kind === 'needs_mapping')).toBeUndefined(); // the curator uploaded nothing
+    const mod = (await (await signedIn(t.app, 'modeler')).get('/api/v1/overview')).body.todo;
+    expect(mod).toEqual([]);
+  });
+});
