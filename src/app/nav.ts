@@ -16,6 +16,7 @@ export const NAV: NavItem[] = [
   { to: '/batches', label: createElement(BatchesNavLabel), roles: ['observer', 'curator'] },
   { to: '/review', label: 'Review', roles: ['curator'] },
   { to: '/catalog', label: 'Catalog', roles: 'signed-in' },
+  { to: '/instruments', label: 'Instruments', roles: 'signed-in' },
   { to: '/sky', label: 'Sky', roles: 'signed-in' },
   { to: '/runs', label: 'Runs', roles: 'signed-in' },
   { to: '/masks', label: 'Masks', roles: 'signed-in' },

@@ -22,6 +22,7 @@ import { StarPage } from '../features/catalog/routes/StarPage';
 import { TokensPage } from '../features/tokens/routes/TokensPage';
 import { MasksPage } from '../features/masks/routes/MasksPage';
 import { ApiPage } from '../features/apidocs/routes/ApiPage';
+import { InstrumentsPage } from '../features/instruments/routes/InstrumentsPage';
 
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
@@ -43,6 +44,7 @@ export const router = createBrowserRouter([
       { path: 'review', element: <RequireRole roles={['curator']}><ReviewQueuePage /></RequireRole> },
       { path: 'review/batches/:id', element: <RequireRole roles={['observer', 'curator']}><BatchReviewPage /></RequireRole> },
       { path: 'catalog', element: <CatalogPage /> },
+      { path: 'instruments', element: <InstrumentsPage /> },
       { path: 'catalog/stars/:id', element: <StarPage /> },
       { path: 'sky', element: <SkyPage /> },
       { path: 'sky/:nside/:ipix', element: <SightlinePage /> },

@@ -43,7 +43,8 @@ export interface Batch {
   createdAt: string;
   updatedAt: string;
   counts: BatchCounts;
-  progress: { bytesDone: number; bytesTotal: number; rowsDone: number };
+  /** rowsTotal: data rows in the file, counted when the check starts; attempts > 1 after an interrupted check (note says why) */
+  progress: { bytesDone: number; bytesTotal: number; rowsDone: number; rowsTotal?: number | null; attempts?: number; note?: string | null };
   mapping: ColumnMapping | null;
   proposal: MappingProposal | null;
   failure: string | null;

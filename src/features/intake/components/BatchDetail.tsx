@@ -2,13 +2,12 @@ import { Link } from 'react-router-dom';
 import { Card, Notice } from '../../../components/ui/primitives';
 import { useBatch } from '../api/batch';
 import { useIntakeColumns } from '../api/columns';
-import { formatBytes, formatCount } from '../format';
 import type { Batch } from '../types';
 import { BatchCounts } from './BatchCounts';
 import { BatchHeader } from './BatchHeader';
 import { BatchRowsTable } from './BatchRowsTable';
 import { MappingEditor } from './MappingEditor';
-import { ProgressBar } from './ProgressBar';
+import { CheckProgress } from './CheckProgress';
 
 /** One batch: its header and counts, then whatever its state calls for. */
 export function BatchDetail({ id, seenBefore }: { id: number; seenBefore: boolean }) {
@@ -40,12 +39,7 @@ function StateBody({ batch }: { batch: Batch }) {
   if (batch.state === 'received' || batch.state === 'checking') {
     return (
       <Card title="Checking rows">
-        <ProgressBar
-          label="Checking rows on the server"
-          done={batch.progress.bytesDone}
-          total={batch.progress.bytesTotal || null}
-          detail={`${formatCount(batch.progress.rowsDone)} rows · ${formatBytes(batch.progress.bytesDone)} of ${formatBytes(batch.progress.bytesTotal)}`}
-        />
+        <CheckProgress batch={batch} />
       </Card>
     );
   }

@@ -8,6 +8,7 @@ import { useUploadBatch } from '../api/uploadBatch';
 import { formatBytes, formatCount } from '../format';
 import type { FieldProblem } from '../types';
 import { ProgressBar } from './ProgressBar';
+import { CheckProgress } from './CheckProgress';
 
 function looksLikeCsv(f: File) {
   return /\.(csv|txt)$/i.test(f.name) || f.type === 'text/csv';
@@ -127,14 +128,7 @@ export function UploadPanel() {
             detail={`${formatBytes(progress.sentBytes)}${progress.totalBytes ? ` of ${formatBytes(progress.totalBytes)}` : ''}`}
           />
         )}
-        {working && current && (
-          <ProgressBar
-            label="Checking rows on the server"
-            done={current.progress.bytesDone}
-            total={current.progress.bytesTotal || null}
-            detail={`${formatCount(current.progress.rowsDone)} rows · ${formatBytes(current.progress.bytesDone)} of ${formatBytes(current.progress.bytesTotal)}`}
-          />
-        )}
+        {working && current && <CheckProgress batch={current} />}
         {batch.error && <Notice tone="bad">The server's progress could not be read: {batch.error.message}</Notice>}
 
         {upload.error && !(upload.error instanceof ApiError && upload.error.code === 'aborted') && (

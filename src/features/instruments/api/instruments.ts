@@ -1,0 +1,40 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { api } from '../../../lib/apiClient';
+
+export const BANDS = ['U', 'B', 'V', 'R', 'I'] as const;
+export type Band = (typeof BANDS)[number];
+
+export interface RegisteredInstrument {
+  id: number;
+  code: string;
+  name: string;
+  bands: Band[];
+  description: string | null;
+  createdAt: string;
+  updatedAt: string | null;
+  /** stored measurements taken with it */
+  measurements: number;
+}
+
+export interface InstrumentInput {
+  code: string;
+  name: string;
+  bands: Band[];
+  description?: string | null;
+}
+
+// same query key as the upload form's instrument list, so both refresh together
+export const useRegisteredInstruments = () => useQuery({ queryKey: ['instruments'], queryFn: () => api.get<{ instruments: RegisteredInstrument[] }>('/instruments') });
+
+export function useCreateInstrument() {
+  const qc = useQueryClient();
+  return useMutation({ mutationFn: (input: InstrumentInput) => api.post<RegisteredInstrument>('/instruments', input), onSuccess: () => qc.invalidateQueries({ queryKey: ['instruments'] }) });
+}
+
+export function useUpdateInstrument() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ code, ...changes }: { code: string } & Partial<Omit<InstrumentInput, 'code'>>) => api.patch<RegisteredInstrument>(`/instruments/${encodeURIComponent(code)}`, changes),
+    onSuccess: () => qc.invalidateQueries({ queryKey: ['instruments'] }),
+  });
+}
