@@ -95,7 +95,7 @@ const INFO_DESCRIPTION = [
   '',
   `**Field and emission angles.** ${ANGLE_NOTE}`,
   '',
-  '**Signing in.** Either the session cookie `starveil.sid` from POST /auth/login (browsers and scripts alike), or a personal API token in `Authorization: Bearer <token>` (create one at POST /tokens while signed in). A token acts as its owner and only reads: any other method with a token answers 403. Each token has its own rate limit (429).',
+  '**Signing in.** Either the session cookie `starveil.sid` from POST /auth/login (browsers and scripts alike), or a personal API token in `Authorization: Bearer <token>` (create one at POST /tokens while signed in). A token acts as its owner and only reads: any other method with a token answers 403. Writes with the cookie must carry this site\u2019s Origin (or Referer) header, else 403. Each token has its own rate limit (429).',
   '',
   '**Who may call what.** Each operation states the roles that pass its guard in its description and as `x-roles` (admin passes every guard). Modelers see approved measurements only; observers see approved ones plus their own batches’; curators and admins see everything.',
   '',

@@ -62,6 +62,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/me/password', tag: 'Sign-in and account', who: 'signed-in',
     summary: 'Change your own password',
+    description: 'Your other sessions end, your personal API tokens are revoked and open password-reset links stop working; this session stays signed in.',
     body: { schema: 'api/password-change', required: true },
     responses: { 204: { description: 'changed' } },
     errors: [400],
@@ -77,7 +78,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/auth/password-reset/confirm', tag: 'Sign-in and account', who: 'anyone',
     summary: 'Set a new password with the e-mailed token',
-    description: 'Ends every session of the account. An unknown, expired or used token is a 400; failed attempts are limited.',
+    description: 'Ends every session of the account and revokes its API tokens. An unknown, expired or used token is a 400; failed attempts are limited.',
     body: { schema: 'api/password-reset-confirm', required: true },
     responses: { 204: { description: 'the new password is set' } },
     errors: [400, 429],
@@ -351,6 +352,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/batches/:id/reject', tag: 'Review', who: CUR,
     summary: 'Return a batch: every pending measurement is rejected',
+    description: 'Approved measurements of the batch are withdrawn from the approved catalog (state withdrawn, counts.withdrawn; audited) until the batch is approved again, which restores them (counts.restored).',
     params: [idPath('batch')],
     body: { schema: 'api/batch-decision', required: false },
     responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
