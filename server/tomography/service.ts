@@ -400,6 +400,9 @@ export function presentCell(c: Record<string, any>) {
     segments: r.segments,
     draws: r.draws,
     matchedDraws: r.matchedDraws,
+    // runs stored before the survey fit have neither field: they came from the classic fit
+    method: r.method ?? 'classic',
+    starsNotPlaced: r.starsNotPlaced ?? [],
   };
 }
 
