@@ -22,6 +22,7 @@ import { StarPage } from '../features/catalog/routes/StarPage';
 import { TokensPage } from '../features/tokens/routes/TokensPage';
 import { MasksPage } from '../features/masks/routes/MasksPage';
 import { ApiPage } from '../features/apidocs/routes/ApiPage';
+import { StandardStarsPage } from '../features/calibration/routes/StandardStarsPage';
 import { InstrumentsPage } from '../features/instruments/routes/InstrumentsPage';
 
 export const router = createBrowserRouter([
@@ -46,6 +47,7 @@ export const router = createBrowserRouter([
       { path: 'catalog', element: <CatalogPage /> },
       { path: 'instruments', element: <InstrumentsPage /> },
       { path: 'catalog/stars/:id', element: <StarPage /> },
+      { path: 'calibration/standards', element: <StandardStarsPage /> },
       { path: 'sky', element: <SkyPage /> },
       { path: 'sky/:nside/:ipix', element: <SightlinePage /> },
       { path: 'runs', element: <RunsPage /> },

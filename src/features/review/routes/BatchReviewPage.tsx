@@ -3,6 +3,7 @@ import { Notice } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
 import { useMe } from '../../auth/api/me';
 import { BatchReview } from '../components/BatchReview';
+import { CalibrationPanel } from '../../calibration/components/CalibrationPanel';
 
 export function BatchReviewPage() {
   const { id } = useParams();
@@ -15,6 +16,7 @@ export function BatchReviewPage() {
         ← {curator ? 'Review queue' : 'The batch'}
       </Link>
       {Number.isInteger(n) && n > 0 ? <BatchReview key={n} batchId={n} /> : <Notice tone="bad">“{id}” is not a batch number.</Notice>}
+      {Number.isInteger(n) && n > 0 && <CalibrationPanel batchId={n} />}
     </div>
   );
 }
