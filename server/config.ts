@@ -51,6 +51,24 @@ function trustProxyVar(raw: string | undefined): boolean | number | string {
   return v;
 }
 
+/** ALLOWED_ORIGINS: comma-separated http(s) origins such as https://console.example.org. */
+function originsVar(raw: string | undefined): string[] {
+  const out: string[] = [];
+  for (const o of (raw ?? '').split(',').map((x) => x.trim()).filter(Boolean)) {
+    let u: URL | null = null;
+    try {
+      u = new URL(o);
+    } catch {
+      u = null;
+    }
+    if (!u || (u.protocol !== 'http:' && u.protocol !== 'https:') || u.origin !== o.replace(/\/$/, '')) {
+      throw new ConfigError(`ALLOWED_ORIGINS must list origins like https://console.example.org (scheme, host, optional port; no path), got "${o}"`);
+    }
+    out.push(u.origin);
+  }
+  return out;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
   const nodeEnv = env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development';
   const dataDir = path.resolve(env.STARVEIL_DATA_DIR ?? 'data');
@@ -79,7 +97,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     mail: { transport, from: env.MAIL_FROM ?? 'Starveil <no-reply@starveil.example>', smtpUrl: env.SMTP_URL },
     passwordResetMinutes: intVar(env, 'PASSWORD_RESET_MINUTES', 60, 1),
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
-    allowedOrigins: (env.ALLOWED_ORIGINS ?? '').split(',').map((o) => o.trim()).filter(Boolean),
+    allowedOrigins: originsVar(env.ALLOWED_ORIGINS),
     trustProxy: trustProxyVar(env.TRUST_PROXY),
     distDir: path.resolve(env.STARVEIL_DIST ?? 'dist'),
     seedDemo: env.STARVEIL_SEED !== '0',
