@@ -1,4 +1,4 @@
-import { useState, type FormEvent, type ReactNode } from 'react';
+import type { FormEvent, ReactNode } from 'react';
 import { Button, Field, Select, TextInput } from '../../../components/ui/primitives';
 import type { Release } from '../api/releases';
 import type { RunSummary } from '../api/finishedRuns';
@@ -23,10 +23,13 @@ function Group({ title, children }: { title: string; children: ReactNode }) {
   );
 }
 
-/** The mask criteria. Nothing is sent until "Show mask"; the server checks every value again. */
-export function CriteriaForm({ initial, runs, releases, fieldErrors, onApply }: { initial: MaskCriteria; runs: RunSummary[]; releases: Release[]; fieldErrors: Record<string, string>; onApply: (c: MaskCriteria) => void }) {
-  const [c, setC] = useState<MaskCriteria>(initial);
-  const set = <K extends keyof MaskCriteria>(k: K) => (v: MaskCriteria[K]) => setC((prev) => ({ ...prev, [k]: v }));
+/**
+ * The mask criteria, controlled by the page: every change goes up at once (the page applies it
+ * after a short pause, and builds the download links from it). "Show mask" applies at once; the
+ * server checks every value again.
+ */
+export function CriteriaForm({ value: c, onChange, runs, releases, fieldErrors, onApply }: { value: MaskCriteria; onChange: (c: MaskCriteria) => void; runs: RunSummary[]; releases: Release[]; fieldErrors: Record<string, string>; onApply: (c: MaskCriteria) => void }) {
+  const set = <K extends keyof MaskCriteria>(k: K) => (v: MaskCriteria[K]) => onChange({ ...c, [k]: v });
   const submit = (e: FormEvent) => {
     e.preventDefault();
     onApply(c);
@@ -76,7 +79,7 @@ export function CriteriaForm({ initial, runs, releases, fieldErrors, onApply }: 
       </Group>
       <div className="flex gap-2">
         <Button type="submit">Show mask</Button>
-        <Button type="button" tone="quiet" onClick={() => { setC(DEFAULT_CRITERIA); onApply(DEFAULT_CRITERIA); }}>Defaults</Button>
+        <Button type="button" tone="quiet" onClick={() => onApply(DEFAULT_CRITERIA)}>Defaults</Button>
       </div>
     </form>
   );
