@@ -236,7 +236,10 @@ describe('plausibility flags in review and catalog', () => {
     for (const r of high.body.rows) expect(r.flags).toContain('above_p_ceiling');
     const stars = await curator.get('/api/v1/stars?flag=above_p_ceiling&limit=1000');
     expect(stars.status).toBe(200);
-    expect(stars.body.stars.map((s: any) => s.name).sort()).toEqual(['BD+59 389', 'hd204827']);
+    // this night's two, and any other star with a measurement above the ceiling (the demo's own standards night)
+    expect(stars.body.stars.map((s: any) => s.name)).toEqual(expect.arrayContaining(['BD+59 389', 'hd204827']));
+    const flaggedStars = new Set((await t.db('measurements').where('p', '>', 0.05).pluck('star_id')) as number[]);
+    for (const s of stars.body.stars) expect(flaggedStars.has(s.id)).toBe(true);
     expect((await curator.get('/api/v1/stars?flag=shiny')).status).toBe(400);
     await curator.patch('/api/v1/plausibility').send({ pCeiling: 0.15 });
   });
@@ -285,5 +288,20 @@ describe('cone search and the overview', () => {
     expect(cur.find((x) => x.kind === 'needs_mapping')).toBeUndefined(); // the curator uploaded nothing
     const mod = (await (await signedIn(t.app, 'modeler')).get('/api/v1/overview')).body.todo;
     expect(mod).toEqual([]);
+  });
+});
+
+describe('the demo standards night', () => {
+  it('shows the zero-point and instrumental polarization it was made with (seeds/demo.ts)', async () => {
+    const b = await t.db('batches').where({ filename: 'kestrel-standards-V.csv' }).first();
+    expect(b.state).toBe('awaiting_review');
+    const res = await curator.get(`/api/v1/batches/${b.id}/calibration`);
+    const [c] = res.body.calibrations;
+    expect(res.body.calibrations).toHaveLength(1);
+    expect(c).toMatchObject({ instrument: 'KR-HAWK', band: 'V', nPolarized: 2, nUnpolarized: 2, rows: 16 });
+    // made with 2.4° and (0.18 %, −0.11 %) plus noise of 0.03 % per standard: within 3σ of the derived errors
+    expect(Math.abs(c.zeroPointDeg - 2.4)).toBeLessThan(3 * c.zeroPointErrDeg + 0.05);
+    expect(Math.abs(c.instrumentalQ - 0.0018)).toBeLessThan(3 * c.instrumentalQErr);
+    expect(Math.abs(c.instrumentalU + 0.0011)).toBeLessThan(3 * c.instrumentalUErr);
   });
 });
