@@ -88,6 +88,10 @@ export interface Sightline {
   segments: TomographySegment[];
   draws: number;
   matchedDraws: number;
+  /** which fit made the cell (classic: runs made before the survey fit) */
+  method?: 'survey' | 'classic';
+  /** ids of stars whose parallax was too poor to place a break */
+  starsNotPlaced?: string[];
   stars?: TomographyStar[];
 }
 

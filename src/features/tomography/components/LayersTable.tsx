@@ -3,6 +3,27 @@ import { layerNumber } from '../sightline/steps';
 import type { TomographyJump, TomographyLayer } from '../types';
 
 const th = 'py-2 pr-4 text-right font-medium';
+
+/** How a layer's distance reads; runs made before distanceBound existed: from its kind. */
+export function distanceBoundOf(l: TomographyLayer): 'range' | 'upper' | 'interval' {
+  return l.distanceBound ?? (l.kind === 'foreground' ? 'upper' : 'range');
+}
+
+/** The distance column: a median, an upper bound "< X", or an interval "X – Y". */
+export function distanceText(l: TomographyLayer): string {
+  const b = distanceBoundOf(l);
+  if (b === 'upper') return `< ${num(l.distanceHiPc, 0)}`;
+  if (b === 'interval') return `${num(l.distanceLoPc, 0)} – ${num(l.distanceHiPc, 0)}`;
+  return num(l.distancePc, 0);
+}
+
+/** The range column: 16–84 % range, or what the bound or interval is, in words. */
+export function rangeText(l: TomographyLayer): string {
+  const b = distanceBoundOf(l);
+  if (b === 'upper') return `nearer than ${num(l.distanceHiPc, 0)}`;
+  if (b === 'interval') return 'somewhere in between';
+  return `${num(l.distanceLoPc, 0)} – ${num(l.distanceHiPc, 0)}`;
+}
 const td = 'py-1.5 pr-4 text-right';
 
 /** One row per layer: distance with its range, own Stokes contribution, p (debiased), θ and S/N. */
@@ -32,8 +53,8 @@ export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
                 <span className="font-medium text-night">{layerNumber(l.index)}</span>
                 {l.kind === 'foreground' && <span className="ml-2 rounded bg-line/70 px-1.5 py-0.5 text-xs text-muted">foreground</span>}
               </td>
-              <td className={td}>{l.kind === 'foreground' ? `< ${num(l.distanceHiPc, 0)}` : num(l.distancePc, 0)}</td>
-              <td className={td}>{l.kind === 'foreground' ? `0 – ${num(l.distanceHiPc, 0)}` : `${num(l.distanceLoPc, 0)} – ${num(l.distanceHiPc, 0)}`}</td>
+              <td className={td} data-testid="layer-distance">{distanceText(l)}</td>
+              <td className={td} data-testid="layer-range" title={l.distanceNote ?? undefined}>{rangeText(l)}</td>
               <td className={td}>{l.nStars}</td>
               <td className={td}>
                 {pct(l.deltaQ, 3)} <span className="text-muted">± {pct(l.deltaQErr, 3)}</span>
@@ -61,7 +82,16 @@ export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
       </table>
       {layers.some((l) => l.angleNonGaussian) && <p className="mt-2 text-xs text-warn">* p/σp below 5: the angle’s distribution is not Gaussian and σθ understates it.</p>}
       {layers.some((l) => l.kind === 'foreground') && (
-        <p className="mt-2 text-xs text-muted">A foreground layer already polarizes the nearest stars: it lies nearer than them, so its distance is an upper limit (the nearest star’s median and 84th percentile).</p>
+        <p className="mt-2 text-xs text-muted">A foreground layer already polarizes the nearest stars with usable distances: it lies nearer than them, so its distance is only an upper limit.</p>
+      )}
+      {layers.some((l) => l.distanceNote) && (
+        <ul className="mt-2 space-y-1 text-xs text-muted" aria-label="Distance notes" data-testid="distance-notes">
+          {layers.filter((l) => l.distanceNote).map((l) => (
+            <li key={l.index}>
+              <span className="font-medium text-night">{layerNumber(l.index)}</span>: {l.distanceNote}
+            </li>
+          ))}
+        </ul>
       )}
     </div>
   );

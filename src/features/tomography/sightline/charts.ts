@@ -26,7 +26,7 @@ export interface SightlineChartData {
 }
 
 export function chartData(s: Sightline, domain: [number, number], frame: 'G' | 'C'): SightlineChartData {
-  return { stars: starPoints(s.stars ?? []), steps: segmentSteps(s, domain), bands: layerBands(s, domain), domain, frame };
+  return { stars: starPoints(s.stars ?? [], s.starsNotPlaced), steps: segmentSteps(s, domain), bands: layerBands(s, domain), domain, frame };
 }
 
 /** Round distances for the colour legend [pc]. */
@@ -75,6 +75,7 @@ export function stokesChart(d: SightlineChartData, key: 'q' | 'u', width: number
         y: key,
         r: 2.8,
         fill: CHART_COLOURS.star,
+        fillOpacity: (st: StarPoint) => (st.placed ? 1 : 0.3),
         channels: { star: 'id', [`σ${key} [%]`]: errKey },
         tip: { format: { x: (v: number) => `${v.toFixed(0)} pc`, y: (v: number) => `${v.toFixed(3)} %` } },
       }),
@@ -103,7 +104,7 @@ export function fractionAngleChart(d: SightlineChartData, key: 'p' | 'theta', wi
       ...bandMarks(d.bands),
       Plot.ruleX(d.stars, { x: 'distancePc', y1: (s: StarPoint) => s[y] - s[err], y2: (s: StarPoint) => s[y] + s[err], stroke: CHART_COLOURS.errorBar, strokeWidth: 1, clip: true }),
       Plot.ruleY(isP ? d.steps : d.steps.filter((st) => st.layer !== null), { y: isP ? 'p' : 'thetaDeg', x1: 'fromPc', x2: 'toPc', stroke: CHART_COLOURS.step, strokeWidth: 2.4, className: 'fitted-segments' }),
-      Plot.dot(d.stars, { x: 'distancePc', y, r: 2.8, fill: CHART_COLOURS.star, channels: { star: 'id' }, tip: true }),
+      Plot.dot(d.stars, { x: 'distancePc', y, r: 2.8, fill: CHART_COLOURS.star, fillOpacity: (st: StarPoint) => (st.placed ? 1 : 0.3), channels: { star: 'id' }, tip: true }),
     ],
   });
 }

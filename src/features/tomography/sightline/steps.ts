@@ -49,12 +49,15 @@ export interface StarPoint {
   pErr: number;
   thetaDeg: number;
   thetaErrDeg: number;
+  /** false: parallax too poor to place a break (drawn faint; it did not decide where a layer is) */
+  placed: boolean;
 }
 
 const PCT = 100;
 
 /** Stars with q, u (and p, σp) in per cent and θ, σθ in degrees by linear propagation. */
-export function starPoints(stars: TomographyStar[]): StarPoint[] {
+export function starPoints(stars: TomographyStar[], notPlaced: string[] = []): StarPoint[] {
+  const skip = new Set(notPlaced);
   return stars.map((s) => {
     const f = propagateStokesErrors(s.q, s.u, s.qErr, s.uErr);
     return {
@@ -70,6 +73,7 @@ export function starPoints(stars: TomographyStar[]): StarPoint[] {
       pErr: PCT * f.pErr,
       thetaDeg: f.thetaDeg,
       thetaErrDeg: f.thetaErrDeg,
+      placed: !skip.has(s.id),
     };
   });
 }
@@ -123,7 +127,8 @@ export function layerBands(s: Sightline, domain: [number, number]): DistanceBand
     layer: l.index,
     kind: l.kind,
     medianPc: l.distancePc,
-    loPc: Math.max(domain[0], l.kind === 'foreground' ? domain[0] : l.distanceLoPc),
+    // an upper bound reaches down to the left edge (runs before distanceBound: foreground layers)
+    loPc: Math.max(domain[0], (l.distanceBound ?? (l.kind === 'foreground' ? 'upper' : 'range')) === 'upper' ? domain[0] : l.distanceLoPc),
     hiPc: Math.min(domain[1], Math.max(l.distanceHiPc, domain[0])),
   }));
 }
