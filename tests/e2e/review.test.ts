@@ -88,7 +88,7 @@ describe.runIf(run)('review in a real browser', () => {
     const obs = await signIn(browser, live.url, 'observer');
     const csv = fs.readFileSync(HAWK_R, 'utf8').replace(/,R,/g, ',V,');
     const fileRows = csv.split(/\r?\n/).filter((l) => l.trim() !== '').length - 1;
-    const sent = await obs.page.request.post(`${live.url}/api/v1/batches`, { multipart: { instrument: 'KR-HAWK', file: { name: NIGHT_V, mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
+    const sent = await obs.page.request.post(`${live.url}/api/v1/batches`, { headers: { Origin: live.url }, multipart: { instrument: 'KR-HAWK', file: { name: NIGHT_V, mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
     expect(sent.status()).toBe(201);
     const batchId = ((await sent.json()) as { id: number }).id;
     await expect.poll(async () => (await api<{ state: string }>(obs.page, 'GET', `/batches/${batchId}`)).body.state, { timeout: 30_000 }).toBe('awaiting_review');
@@ -290,7 +290,7 @@ describe.runIf(run)('review in a real browser', () => {
     await grid(page).focus();
     await page.keyboard.press('Control+End');
     const last = grid(page).locator(`[role="row"][data-line="${fileRows + 1}"]`);
-    await last.waitFor({ timeout: 20_000 });
+    await last.waitFor({ timeout: 45_000 });
     // in the grid's viewport, not merely in the document
     await expect
       .poll(async () => {
@@ -337,7 +337,7 @@ describe.runIf(run)('review in a real browser', () => {
     const adm = await signIn(browser, live.url, 'admin');
     const subject = `Batch #${batchId} approved: ${NIGHT_V}`;
     const toObserver = async () => (await api<{ messages: { to: string; subject: string }[] }>(adm.page, 'GET', '/admin/outbox?limit=500')).body.messages.filter((m) => m.to === 'observer@kestrel.example' && m.subject === subject);
-    await expect.poll(async () => (await toObserver()).length, { timeout: 10_000 }).toBe(1);
+    await expect.poll(async () => (await toObserver()).length, { timeout: 30_000 }).toBe(1);
     await adm.page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Outbox' }).click();
     await adm.page.waitForURL(/\/admin\/outbox$/);
     const message = adm.page.getByRole('list', { name: 'Messages' }).getByRole('button').filter({ hasText: subject });
@@ -360,7 +360,7 @@ describe.runIf(run)('review in a real browser', () => {
       { q: -0.0044, u: -0.0191, q_err: 0.0011, u_err: 0.001, mjd: 61077.221 },
     ];
     const lines = repeats.map((r) => [star.name, star.sourceId, star.ra_deg, star.dec_deg, 'R', r.q, r.u, r.q_err, r.u_err, r.mjd, 'KR-HAWK'].join(','));
-    const sent = await page.request.post(`${live.url}/api/v1/batches`, { multipart: { file: { name: 'kestrel-repeats.csv', mimeType: 'text/csv', buffer: Buffer.from([header, ...lines].join('\n')) } } });
+    const sent = await page.request.post(`${live.url}/api/v1/batches`, { headers: { Origin: live.url }, multipart: { file: { name: 'kestrel-repeats.csv', mimeType: 'text/csv', buffer: Buffer.from([header, ...lines].join('\n')) } } });
     expect(sent.status()).toBe(201);
     const repeatBatch = ((await sent.json()) as { id: number }).id;
     expect((await api(page, 'POST', `/batches/${repeatBatch}/approve`, { note: 'repeat nights' })).status).toBe(200);
