@@ -19,8 +19,9 @@ export default defineConfig({
     root: process.cwd(),
     include: ['tests/**/*.test.ts'],
     environment: 'node',
-    testTimeout: 30_000,
-    hookTimeout: 60_000,
+    // sized for a loaded 2-core machine; browser tests raise their own (tests/helpers/browser.ts)
+    testTimeout: 60_000,
+    hookTimeout: 180_000,
     pool: 'forks',
     fileParallelism: true,
   },

@@ -254,7 +254,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
     await page.getByRole('button', { name: 'Upload and check' }).click();
     const bar = page.getByRole('progressbar', { name: 'Sending the file' });
     await bar.waitFor();
-    await expect.poll(async () => Number(await bar.getAttribute('aria-valuenow')), { timeout: 10_000 }).toBeGreaterThan(0);
+    await expect.poll(async () => Number(await bar.getAttribute('aria-valuenow')), { timeout: 30_000 }).toBeGreaterThan(0);
     const created = (await (await answer).json()) as ApiBatch;
     expect(created.state).toBe('checking');
     await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
@@ -278,7 +278,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
     const loaded = async () => Number(((await page.getByText(/rows loaded/).textContent()) ?? '').split(' of ')[0].replace(/,/g, ''));
     expect(await loaded()).toBe(500); // the first page
     await scroller.evaluate((el) => el.scrollTo({ top: el.scrollHeight }));
-    await expect.poll(loaded, { timeout: 15_000 }).toBeGreaterThan(500); // the next page, asked for by scrolling
+    await expect.poll(loaded, { timeout: 30_000 }).toBeGreaterThan(500); // the next page, asked for by scrolling
     await ctx.close();
   });
 });

@@ -232,14 +232,14 @@ describe.runIf(run)('tomography pages in a real browser', () => {
     await bigRow.waitFor();
     // progress: cells done of the total, and the time left
     const progress = page.getByTestId('run-progress');
-    await expect.poll(async () => Number((await progress.getAttribute('data-done').catch(() => null)) ?? 0), { timeout: 10_000, interval: 100 }).toBeGreaterThan(0);
+    await expect.poll(async () => Number((await progress.getAttribute('data-done').catch(() => null)) ?? 0), { timeout: 30_000, interval: 100 }).toBeGreaterThan(0);
     const total = Number(await progress.getAttribute('data-total'));
     expect(total).toBeGreaterThan(0);
     expect(await progress.textContent()).toMatch(new RegExp(`of ${total.toLocaleString('en')} cells`));
     expect(await progress.getByRole('progressbar').getAttribute('aria-valuenow')).not.toBeNull();
     await page.screenshot({ path: path.join(SCREENSHOTS, 'runs-progress.png') });
     await page.getByRole('button', { name: `Cancel run ${big.id}` }).click();
-    await expect.poll(() => bigRow.getAttribute('data-state'), { timeout: 15_000 }).toBe('cancelled');
+    await expect.poll(() => bigRow.getAttribute('data-state'), { timeout: 30_000 }).toBe('cancelled');
     const bigEnd = await apiGet<ApiRun>(page, `/tomography/runs/${big.id}`);
     expect(bigEnd.state).toBe('cancelled');
     expect(bigEnd.progress.cellsDone).toBeLessThan(bigEnd.progress.cellsTotal);

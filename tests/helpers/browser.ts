@@ -3,10 +3,22 @@ import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
-import { expect } from 'vitest';
+import { expect, vi } from 'vitest';
 import { DEMO } from './app.js';
 import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 import { makeTestApp, type TestApp } from './app.js';
+
+/**
+ * Timeouts for browser tests, sized for a loaded 2-core machine (a seeded server, a tomography
+ * run and Chromium sharing two cores with other work): every file that imports this helper gets
+ * them (vi.setConfig applies to the importing test file). Tests wait on conditions (expect.poll,
+ * locator.waitFor), never on fixed sleeps; these limits only bound how long a stuck test hangs.
+ */
+export const E2E_TEST_TIMEOUT_MS = 180_000;
+export const E2E_HOOK_TIMEOUT_MS = 300_000;
+/** Playwright's own waits (locators, navigation): its default of 30 s is too tight under load. */
+export const E2E_ACTION_TIMEOUT_MS = 60_000;
+vi.setConfig({ testTimeout: E2E_TEST_TIMEOUT_MS, hookTimeout: E2E_HOOK_TIMEOUT_MS });
 
 export const CHROMIUM = process.env.STARVEIL_CHROMIUM ?? '/usr/bin/chromium';
 /** the built client; STARVEIL_TEST_DIST lets parallel work build to a folder of its own */
@@ -65,6 +77,8 @@ export const SCREENSHOTS = path.resolve('tests/e2e/screenshots');
 /** A fresh browser context signed in through the sign-in page as a demo role. */
 export async function signInPage(browser: Browser, url: string, role: keyof typeof DEMO, viewport = { width: 1280, height: 900 }): Promise<{ ctx: BrowserContext; page: Page }> {
   const ctx = await browser.newContext({ viewport });
+  ctx.setDefaultTimeout(E2E_ACTION_TIMEOUT_MS);
+  ctx.setDefaultNavigationTimeout(E2E_ACTION_TIMEOUT_MS);
   const page = await ctx.newPage();
   await page.goto(`${url}/sign-in`);
   await page.getByLabel('E-mail').fill(DEMO[role]);
