@@ -55,7 +55,21 @@ export function authRoutes(deps: { auth: AuthService; passport: passport.Passpor
     res.json(req.user);
   });
 
-  r.post('/me/password', guard('signed-in'), validateBody('api/password-change'), async (req, res) => {
+  // Wrong current passwords count per account like failed sign-ins, so a borrowed session cannot
+  // guess the password here without the sign-in limit.
+  const passwordChangeLimiter = rateLimit({
+    windowMs: config.loginRateLimit.windowMs,
+    limit: config.loginRateLimit.max,
+    skipSuccessfulRequests: true,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => `password-change|${(req.user as SessionUser | undefined)?.id ?? ''}`,
+    handler: (_req, res, _next, options) => {
+      res.status(options.statusCode).json({ error: { code: 'rate_limited', message: 'Too many wrong current passwords; wait a few minutes and try again.' } });
+    },
+  });
+
+  r.post('/me/password', guard('signed-in'), passwordChangeLimiter, validateBody('api/password-change'), async (req, res) => {
     await auth.changePassword(req.user!.id, req.body.currentPassword, req.body.newPassword, req.sessionID);
     res.status(204).end();
   });

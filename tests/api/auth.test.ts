@@ -216,6 +216,17 @@ describe('sign-in limits', () => {
 });
 
 describe('password change ends other access', () => {
+  it('wrong current passwords are limited like failed sign-ins', async () => {
+    const admin = await signedIn(t.app, 'admin');
+    await admin.post('/api/v1/admin/users').send({ email: 'guess@kestrel.example', name: 'Guess', role: 'modeler', password: 'guess-password-1' });
+    const agent = browserLikeAgent(t.app);
+    expect((await agent.post('/api/v1/auth/login').send({ email: 'guess@kestrel.example', password: 'guess-password-1' })).status).toBe(200);
+    const codes: number[] = [];
+    for (let i = 0; i < 6; i++) codes.push((await agent.post('/api/v1/me/password').send({ currentPassword: `guess-${i}`, newPassword: 'guess-password-2' })).status);
+    expect(codes).toEqual([400, 400, 400, 400, 400, 429]); // limit 5 in this app
+    expect((await agent.post('/api/v1/me/password').send({ currentPassword: 'guess-password-1', newPassword: 'guess-password-2' })).status).toBe(429);
+  });
+
   it('other sessions end, this one stays, API tokens are revoked, older reset links die', async () => {
     const admin = await signedIn(t.app, 'admin');
     const email = 'rotate@kestrel.example';
