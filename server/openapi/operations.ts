@@ -363,10 +363,10 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/tomography/runs', tag: 'Tomography', who: CUR,
     summary: 'Start a tomography run',
-    description: 'Queued, then fitted on worker threads off the request path; poll GET /tomography/runs/{id}. Parameters left out take their defaults.',
-    body: { schema: 'api/tomography-run', required: false },
+    description: 'Queued, then fitted on worker threads off the request path; poll GET /tomography/runs/{id}. Send a JSON object: parameters left out take their defaults (`{}` = all defaults); no body is a 400 naming `body`. Limits: at most 2 runs queued or running per person (429), and at most 2,000,000 Monte Carlo draws × cells per run, cells counted as at most (approved stars in the band and region ÷ minStars) (400 naming `draws`). A run the server was fitting when it stopped is `interrupted` on the next start (its reason in `error`, no cells kept); a queued one is queued again.',
+    body: { schema: 'api/tomography-run', required: true },
     responses: { 202: { description: 'queued', schema: 'responses/tomography-run' } },
-    errors: [400],
+    errors: [400, 429],
   },
   {
     method: 'get', path: '/tomography/runs', tag: 'Tomography', who: 'signed-in',
@@ -382,7 +382,7 @@ export const OPERATIONS: Operation[] = [
   },
   {
     method: 'post', path: '/tomography/runs/:id/cancel', tag: 'Tomography', who: CUR,
-    summary: 'Stop a queued or running run; nothing of it is stored',
+    summary: 'End a queued or running run (also one left open by a restart); nothing of it is stored',
     params: [idPath('run')],
     responses: { 200: { description: 'the run, cancelled (or stopping)', schema: 'responses/tomography-run' } },
     errors: [400, 404, 409],
@@ -398,13 +398,13 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'get', path: '/sightlines', tag: 'Tomography', who: 'signed-in',
     summary: 'Dust layers per cell: by pixel or in a cone',
-    description: 'Give either `nside` and `ipix` (nested, in the run’s coordinate system) or `ra`, `dec` and `radius` (ICRS). Per cell: star count, number of layers and its support, layers (distance, Stokes, angle), jumps between successive layers and the run it came from; criteria parameters keep only the cells that meet them. Starlight polarization is parallel to the plane-of-sky magnetic field; dust emission is polarized perpendicular to it, so add 90° to a layer angle before comparing it with an emission map.',
+    description: 'Give either `nside` and `ipix` (nested, in the run’s coordinate system) or `ra`, `dec` and `radius` (ICRS). A cone returns every cell of the run that overlaps it — the cell containing the point always among them, even when its centre is outside the cone — each with `separationDeg` (cone centre to cell centre), nearest first; the cells are found through the HEALPix index (an inclusive disc query gives candidate pixel ranges; each candidate is then tested exactly, refined to 1/64 of a cell at the cone’s edge), never by reading the whole run. Per cell: star count, number of layers and its support, layers (distance, Stokes, angle), jumps between successive layers and the run it came from; criteria parameters keep only the cells that meet them. Starlight polarization is parallel to the plane-of-sky magnetic field; dust emission is polarized perpendicular to it, so add 90° to a layer angle before comparing it with an emission map.',
     params: [
       query('nside', 'HEALPix NSIDE; must be the run’s NSIDE (with ipix)', { type: 'integer', enum: [16, 32, 64, 128, 256] }),
       query('ipix', 'HEALPix pixel index, nested ordering, 0 to 12·nside² − 1 (with nside)', { type: 'integer', minimum: 0 }),
       ...coneQuery(30, '; instead of nside and ipix'),
       ...runChoiceQuery,
-      query('include', 'stars: also the stars of each cell as the run used them (first 50 cells)', { enum: ['stars'] }),
+      query('include', 'stars: also the stars of each cell as the run used them; only for cones of radius ≤ 5° touching at most 50 cells (else 400 naming include)', { enum: ['stars'] }),
       ...criteriaQuery(0),
       conventionQuery,
       formatQuery(['json', 'csv'], 'json (default) or csv: one row per layer with a units header'),
@@ -483,7 +483,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'get', path: '/masks', tag: 'Sky and masks', who: 'signed-in',
     summary: 'Sky mask of the cells that meet every criterion (by default: more than one cloud)',
-    description: 'Where two clouds with differently oriented fields overlap, a single-layer dust model fails; the mask flags those sightlines. Formats: fits (default) — a full-sky HEALPix map in the run’s frame, nested ordering, readable by the standard HEALPix libraries (columns MASK, MAX_JUMP in deg, N_LAYERS); moc-json and moc-ascii — an IVOA MOC of the flagged cells, always ICRS; csv — the flagged pixels with a units header; json — a summary with every cell.',
+    description: 'Where two clouds with differently oriented fields overlap, a single-layer dust model fails; the mask flags those sightlines. Formats: fits (default) — a full-sky HEALPix map in the run’s frame, nested ordering, readable by the standard HEALPix libraries (columns MASK, MAX_JUMP in deg, N_LAYERS); moc-json and moc-ascii — an IVOA MOC of the flagged cells, always ICRS; csv — the flagged pixels with a units header, streamed, at most 1,000,000 rows (else 400 naming format and the limit; header Starveil-Rows gives the count), text cells formula-safe; json — a summary with every cell.',
     params: [
       formatQuery(['fits', 'moc-json', 'moc-ascii', 'csv', 'json'], 'fits (default), moc-json, moc-ascii, csv or json'),
       query('nside', 'HEALPix NSIDE of the mask: a power of two from the run’s NSIDE up to 512 (default the run’s)', { type: 'integer', minimum: 1, maximum: 512 }),

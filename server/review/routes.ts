@@ -58,7 +58,7 @@ export function reviewRoutes(deps: { db: Knex; review: ReviewService; measuremen
       const b = await db('batches').where({ id: m.batch_id }).first('uploaded_by');
       if (b?.uploaded_by !== req.user!.id) throw notFound('Measurement');
     }
-    res.json({ history: await review.history('measurement', id) });
+    res.json({ history: await review.history('measurement', id, req.user!) });
   });
 
   r.post('/measurements/approve', curator, validateBody('api/measurement-ids'), async (req, res) => {

@@ -140,9 +140,34 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       return { id: batchId, state: decision, note, counts: result.counts };
     },
 
-    async history(entityType: string, entityId: number) {
+    /**
+     * The audit trail of one entity. For an observer, ids of measurements and stars they may not
+     * know of (a curator settled a conflict against another observer's unapproved row) become null.
+     */
+    async history(entityType: string, entityId: number, user?: SessionUser) {
       const rows = await auditFor(readDb, entityType, entityId);
-      return rows.map((a) => ({ id: a.id, at: a.at, action: a.action, actor: a.actor_id ? { id: a.actor_id, name: a.actor_name, email: a.actor_email } : null, before: a.before_json ? JSON.parse(a.before_json) : null, after: a.after_json ? JSON.parse(a.after_json) : null, reason: a.reason }));
+      const entries = rows.map((a) => ({ id: a.id, at: a.at, action: a.action, actor: a.actor_id ? { id: a.actor_id, name: a.actor_name, email: a.actor_email } : null, before: a.before_json ? JSON.parse(a.before_json) : null, after: a.after_json ? JSON.parse(a.after_json) : null, reason: a.reason as string | null }));
+      if (!user || hasRole(user, ['curator'])) return entries;
+      const MEASUREMENT_KEYS = ['conflictsWith', 'conflicts_with', 'kept', 'rejected'];
+      const STAR_KEYS = ['starId', 'star_id'];
+      const mIds = new Set<number>(), sIds = new Set<number>();
+      for (const e of entries) for (const side of [e.before, e.after]) {
+        if (!side || typeof side !== 'object') continue;
+        for (const k of MEASUREMENT_KEYS) if (typeof side[k] === 'number') mIds.add(side[k]);
+        for (const k of STAR_KEYS) if (typeof side[k] === 'number') sIds.add(side[k]);
+      }
+      for (const e of entries) for (const m of /conflict with (\d+)/.exec(e.reason ?? '')?.slice(1) ?? []) mIds.add(Number(m));
+      const seenM = new Set<number>(mIds.size ? await visibleMeasurements(readDb, user).whereIn('measurements.id', [...mIds]).pluck('measurements.id') : []);
+      const seenS = new Set<number>(sIds.size ? await whereStarVisible(readDb('stars').whereIn('stars.id', [...sIds]), readDb, user).pluck('stars.id') : []);
+      for (const e of entries) {
+        for (const side of [e.before, e.after]) {
+          if (!side || typeof side !== 'object') continue;
+          for (const k of MEASUREMENT_KEYS) if (typeof side[k] === 'number' && !seenM.has(side[k])) side[k] = null;
+          for (const k of STAR_KEYS) if (typeof side[k] === 'number' && !seenS.has(side[k])) side[k] = null;
+        }
+        if (e.reason) e.reason = e.reason.replace(/conflict with (\d+)/g, (all, id) => (seenM.has(Number(id)) ? all : 'conflict with another measurement'));
+      }
+      return entries;
     },
   };
 }

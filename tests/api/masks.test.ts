@@ -371,3 +371,34 @@ describe('released answers', () => {
     expect(JSON.parse(before[2].toString()).release).toBe('KRPS-MASK-T1');
   }, 120_000);
 });
+
+describe('large CSV answers', () => {
+  it('nside=512 with minLayers=0 is streamed: every flagged cell × 256 children, counted in Starveil-Rows', async () => {
+    const summary = (await modeler.get(`/api/v1/masks?run=${runId}&format=json&minLayers=0`)).body;
+    const res = await modeler.get(`/api/v1/masks?run=${runId}&format=csv&nside=512&minLayers=0`);
+    expect(res.status).toBe(200);
+    const expected = summary.counts.flagged * 256; // (512 / 32)² NESTED children per run cell
+    expect(Number(res.headers['starveil-rows'])).toBe(expected);
+    const lines = res.text.split('\n').filter((l: string) => l && !l.startsWith('#'));
+    expect(lines[0]).toMatch(/^nside,ipix,lon_deg,/);
+    expect(lines.length - 1).toBe(expected);
+    // a negative number is written as a number, never with the formula guard
+    expect(res.text).not.toMatch(/(^|,)'-/m);
+    expect(lines.slice(1).some((l: string) => /,-\d/.test(l))).toBe(true);
+  }, 120_000);
+
+  it('a mask CSV over 1,000,000 rows is a 400 naming format and the limit', async () => {
+    const { assertMaskCsvSize, MAX_MASK_CSV_ROWS } = await import('../../server/masks/mask.js');
+    const run = { id: 1, params: { nside: 16 }, fingerprint: null, finishedAt: null, release: null } as never;
+    // 1,000 flagged cells at NSIDE 16 written at NSIDE 512: 1,000 × 4^5 = 1,024,000 rows
+    const cells = Array.from({ length: 1000 }, (_, i) => ({ ipix: i, flagged: true })) as never;
+    expect(() => assertMaskCsvSize(run, cells, 512)).toThrow(/1,024,000 rows; the limit is 1,000,000/);
+    try {
+      assertMaskCsvSize(run, cells, 512);
+    } catch (e) {
+      expect((e as { details: { fields: { field: string }[] } }).details.fields[0].field).toBe('format');
+    }
+    expect(assertMaskCsvSize(run, cells, 256)).toBe(256_000);
+    expect(MAX_MASK_CSV_ROWS).toBe(1_000_000);
+  });
+});
