@@ -10,9 +10,9 @@ export const MIGRATIONS_DIR = path.join(root, 'migrations');
 export type Db = Knex;
 
 /** Open the embedded SQLite database (creating its folder). */
-export function openDb(dbFile: string): Db {
+export function openDb(dbFile: string, opts: { role?: 'request' | 'background' } = {}): Db {
   if (dbFile !== ':memory:') fs.mkdirSync(path.dirname(dbFile), { recursive: true });
-  return knexFactory(sqliteConnectionOptions(dbFile));
+  return knexFactory(sqliteConnectionOptions(dbFile, opts));
 }
 
 /**

@@ -16,7 +16,12 @@ import type { Knex } from 'knex';
  * The one place that knows which SQL engine is underneath. Everything else uses portable Knex
  * query building; anything engine-specific (pragmas, upsert quirks, JSON functions) goes here.
  */
-export function sqliteConnectionOptions(filename: string): Knex.Config {
+export function sqliteConnectionOptions(filename: string, opts: { role?: 'request' | 'background' } = {}): Knex.Config {
+  // Checkpoints (copying the WAL into the database file) run inside the COMMIT that crosses the
+  // threshold. A connection of the request thread never runs them (a session write would copy a
+  // background check's pages while a person waits); background connections do, in large steps;
+  // checkpointIdle() runs the small remainder when nothing is being checked.
+  const autoCheckpoint = opts.role === 'background' ? 10_000 : 0;
   return {
     client: 'better-sqlite3',
     connection: { filename },
@@ -30,6 +35,7 @@ export function sqliteConnectionOptions(filename: string): Knex.Config {
         conn.pragma('busy_timeout = 10000');
         conn.pragma('synchronous = NORMAL');
         conn.pragma('cache_size = -65536'); // 64 MiB: the index pages a large batch touches stay cached
+        if (filename !== ':memory:') conn.pragma(`wal_autocheckpoint = ${autoCheckpoint}`);
         done(null, conn);
       },
     },
@@ -262,4 +268,9 @@ export async function reserveIds(db: Knex, table: string, n: number): Promise<nu
     else await trx('sqlite_sequence').insert({ name: table, seq: last + n });
     return last + 1;
   });
+}
+
+/** Copy the WAL into the database file without waiting for anyone (SQLite; a no-op elsewhere). */
+export async function checkpointPassive(db: Knex): Promise<void> {
+  if (isSqlite(db)) await db.raw('PRAGMA wal_checkpoint(PASSIVE)');
 }

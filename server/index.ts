@@ -1,6 +1,7 @@
 // Start Starveil: migrate, seed the demo into an empty database, serve the API and the built client.
 import { loadConfig } from './config.js';
 import { openDb, migrateLatest } from './db.js';
+import { checkpointPassive } from './dialect.js';
 import { seedDemoIfEmpty } from './seed.js';
 import { createApp } from './app.js';
 import { DEMO_ACCOUNTS } from '../seeds/demo-scenario.js';
@@ -17,6 +18,11 @@ const seeded = config.seedDemo ? await seedDemoIfEmpty(db, config) : false;
 const readDb = openDb(config.dbFile);
 const app = createApp({ db, readDb, config });
 const resumed = await app.services.intake.resumeInterrupted();
+// The request thread's connections never checkpoint inside a COMMIT (server/dialect.ts); the
+// small WAL left by ordinary work is copied into the database file here while no check runs.
+setInterval(() => {
+  if (!app.services.intake.busy()) void checkpointPassive(db).catch((e) => console.error('checkpoint', e));
+}, 20_000).unref();
 if (resumed) console.log(`checking ${resumed} batch(es) again that a restart interrupted`);
 const server = app.listen(config.port, () => {
   const addr = server.address();

@@ -4,6 +4,7 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { openDb } from '../db.js';
+import { checkpointPassive } from '../dialect.js';
 import { checkBatch, type CheckOptions, type CheckProgress } from './check.js';
 
 export type ToRunner =
@@ -15,7 +16,7 @@ export type ToWorker = { kind: 'check'; batchId: number };
 if (!parentPort) throw new Error('check-worker.ts must run as a worker thread');
 const port = parentPort;
 const { dbFile, opts } = workerData as { dbFile: string; opts: CheckOptions };
-const db = openDb(dbFile);
+const db = openDb(dbFile, { role: 'background' });
 const send = (m: ToRunner) => port.postMessage(m);
 
 const queue: number[] = [];
@@ -27,6 +28,7 @@ async function drain() {
     const batchId = queue.shift()!;
     try {
       await checkBatch(db, batchId, opts, (p) => send({ kind: 'progress', ...p }));
+      await checkpointPassive(db).catch((e) => console.error('intake worker: checkpoint', e));
       send({ kind: 'done', batchId });
     } catch (e) {
       // checkBatch records its own failures; this is a failure to record one (e.g. the database is gone)

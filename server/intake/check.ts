@@ -40,6 +40,14 @@ export interface CheckProgress {
   rowsTotal: number | null;
 }
 
+/**
+ * Work per write transaction (ms of inserts; the COMMIT adds about as much again): the single
+ * SQLite writer is held for tens of milliseconds at a time, then free for sign-ins, session
+ * writes and curator edits. Smaller steps cost throughput (each COMMIT rewrites the index pages
+ * it touched), larger ones delay everyone else.
+ */
+const WRITE_BUDGET_MS = 40;
+
 /** Files at least this large are parsed on a second worker thread, overlapping the matching and writing. */
 export const PARSE_WORKER_MIN_BYTES = 1 << 20;
 
@@ -294,7 +302,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         { table: 'batch_rows', cols: ROW_COLS, rows: rowsOut },
         { table: 'measurements', cols: MEAS_COLS, rows: measOut },
       ],
-      25,
+      WRITE_BUDGET_MS,
       [{ sql: 'UPDATE batches SET rows_done = ?, bytes_done = ? WHERE id = ?', params: [counts.rows, bytesDone, batchId] }],
     );
     if (Date.now() - lastReport > 250) {

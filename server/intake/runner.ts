@@ -47,6 +47,11 @@ export class CheckRunner {
     return this.current?.batchId === batchId || this.queue.some((j) => j.batchId === batchId);
   }
 
+  /** A check is queued or running. */
+  busy(): boolean {
+    return this.current !== null || this.queue.length > 0;
+  }
+
   /** Resolves when nothing is queued or running. */
   idle(): Promise<void> {
     if (!this.current && !this.queue.length) return Promise.resolve();

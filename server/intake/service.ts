@@ -264,6 +264,11 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
       await runner.idle();
     },
 
+    /** A check is queued or running (the request thread then leaves WAL checkpoints to the worker). */
+    busy(): boolean {
+      return runner.busy();
+    },
+
     /** End the worker thread (shutdown). */
     async close(): Promise<void> {
       await runner.close();

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { browserLikeAgent, makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
+import { recordAudit } from '../../server/audit/service.js';
 
 // Two observers. B uploads a new star SECRET-B2-STAR awaiting review; A uploads a row at the same
 // position (0.1″ away) and a copy of B's row. Until a curator approves B's batch, nothing A can read
@@ -151,5 +152,23 @@ describe("another observer's unapproved star", () => {
     expect(ids((await observerA.get('/api/v1/stars?q=SECRET')).body)).not.toContain(bStar);
     expect(ids((await modeler.get('/api/v1/stars?q=SECRET')).body)).not.toContain(bStar);
     expect((await modeler.get(`/api/v1/stars/${bStar}`)).status).toBe(404);
+  });
+
+  it('the audit trail of A’s own measurement does not name B’s measurement or star', async () => {
+    const mine = await t.db('measurements').where({ batch_id: aBatch }).orderBy('id').first();
+    await recordAudit(t.db, [
+      { actorId: null, action: 'measurement.resolve', entityType: 'measurement', entityId: mine.id, before: { state: 'conflict', conflictsWith: bMeasurement }, after: { kept: mine.id, rejected: bMeasurement } },
+      { actorId: null, action: 'measurement.attach', entityType: 'measurement', entityId: mine.id, before: { state: 'ambiguous', starId: null }, after: { state: 'pending', starId: bStar }, reason: `conflict with ${bMeasurement} resolved` },
+    ]);
+    const hist = (await observerA.get(`/api/v1/measurements/${mine.id}/history`)).body.history;
+    const resolve = hist.find((h: { action: string }) => h.action === 'measurement.resolve');
+    expect(resolve.before.conflictsWith).toBeNull();
+    expect(resolve.after).toEqual({ kept: mine.id, rejected: null });
+    const attach = hist.find((h: { action: string }) => h.action === 'measurement.attach');
+    expect(attach.after.starId).toBeNull();
+    expect(attach.reason).toBe('conflict with another measurement resolved');
+    const cur = (await curator.get(`/api/v1/measurements/${mine.id}/history`)).body.history;
+    expect(cur.find((h: { action: string }) => h.action === 'measurement.resolve').after.rejected).toBe(bMeasurement);
+    expect(cur.find((h: { action: string }) => h.action === 'measurement.attach').after.starId).toBe(bStar);
   });
 });

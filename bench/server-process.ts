@@ -1,0 +1,88 @@
+// A Starveil server in a child process of its own (benchmarks measure it from outside), and a
+// small cookie-keeping HTTP client.
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import net from 'node:net';
+import path from 'node:path';
+
+export interface ServerProcess {
+  base: string;
+  child: ChildProcess;
+  /** resident set size of the server process, MB (from /proc) */
+  rssMb: () => number;
+  /** highest RSS sampled every 100 ms since start, MB */
+  peakRssMb: () => number;
+  stop: () => Promise<void>;
+}
+
+async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.listen(0, () => {
+      const p = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(p));
+    });
+    s.on('error', reject);
+  });
+}
+
+function rssOf(pid: number): number {
+  try {
+    const status = fs.readFileSync(`/proc/${pid}/status`, 'utf8');
+    const m = /VmRSS:\s+(\d+) kB/.exec(status);
+    return m ? Number(m[1]) / 1024 : 0;
+  } catch {
+    return 0;
+  }
+}
+
+export async function startServer(dataDir: string, env: Record<string, string> = {}): Promise<ServerProcess> {
+  const port = await freePort();
+  const base = `http://127.0.0.1:${port}`;
+  const child = spawn(process.execPath, ['--import', 'tsx', path.resolve('server/index.ts')], {
+    env: { ...process.env, NODE_ENV: 'development', PORT: String(port), STARVEIL_DATA_DIR: dataDir, STARVEIL_DIST: path.join(dataDir, 'no-dist'), PUBLIC_URL: base, UPLOAD_MAX_BYTES: String(2 ** 31), LOGIN_RATE_MAX: '1000', ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let log = '';
+  child.stdout!.on('data', (d) => (log = (log + d).slice(-20000)));
+  child.stderr!.on('data', (d) => (log = (log + d).slice(-20000)));
+  let peak = 0;
+  const sampler = setInterval(() => (peak = Math.max(peak, rssOf(child.pid!))), 100);
+  const end = Date.now() + 180_000;
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`the server exited (${child.exitCode}):\n${log}`);
+    try {
+      if ((await fetch(`${base}/api/v1/health`)).ok) break;
+    } catch {
+      /* not listening yet */
+    }
+    if (Date.now() > end) throw new Error(`the server did not start:\n${log}`);
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  return {
+    base,
+    child,
+    rssMb: () => rssOf(child.pid!),
+    peakRssMb: () => peak,
+    stop: async () => {
+      clearInterval(sampler);
+      if (child.exitCode === null) {
+        child.kill('SIGTERM');
+        await new Promise((r) => child.once('exit', r));
+      }
+    },
+  };
+}
+
+/** A signed-in client: keeps the session cookie, sends the Origin header cookie writes need. */
+export async function client(base: string, email: string, password: string) {
+  const res = await fetch(`${base}/api/v1/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email, password }) });
+  if (res.status !== 200) throw new Error(`sign-in as ${email}: ${res.status} ${await res.text()}`);
+  const cookie = res.headers.get('set-cookie')!.split(';')[0];
+  return (p: string, init: RequestInit = {}) => fetch(`${base}/api/v1${p}`, { ...init, headers: { ...(init.headers as Record<string, string> | undefined), cookie, origin: base } });
+}
+
+export function quantile(sorted: number[], q: number): number {
+  if (!sorted.length) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(q * sorted.length) - 1))];
+}
