@@ -5,6 +5,7 @@ import { hasRole, type SessionUser } from '../auth/roles.js';
 import { visibleMeasurements, whereStarVisible } from '../catalog/service.js';
 import { hiddenBatchIds } from '../intake/visibility.js';
 import { plausibilityService } from '../calibration/plausibility.js';
+import { angularSeparationDeg } from '../science/separation.js';
 
 export const MEASUREMENT_SORTS = ['line', 'state', 'band', 'instrument', 'mjd', 'q', 'u', 'p', 'p_debiased', 'theta_deg', 'theta_err_deg', 'distance_pc', 'star_name'] as const;
 const FILTERABLE = ['state', 'band', 'instrument', 'distance_method'] as const;
@@ -62,6 +63,7 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
         'measurements.q', 'measurements.u', 'measurements.q_err', 'measurements.u_err', 'measurements.p', 'measurements.p_err', 'measurements.p_debiased', 'measurements.theta_deg', 'measurements.theta_err_deg',
         'measurements.theta_gal_deg', 'measurements.parallax_mas', 'measurements.parallax_err_mas', 'measurements.distance_pc', 'measurements.distance_lo_pc', 'measurements.distance_hi_pc', 'measurements.distance_method', 'measurements.ebv',
         'measurements.flags_json', 'measurements.conflicts_with', 'batch_rows.line', 'batch_rows.warnings_json', 'batch_rows.candidates_json', 'stars.id as star_id', 'stars.name as star_name', 'stars.source_id as star_source_id',
+        'stars.ra_deg as star_ra_deg', 'stars.dec_deg as star_dec_deg',
       );
       // conflicts and ambiguous matches carry what competes with them
       const otherIds = rows.filter((r) => r.conflicts_with).map((r) => r.conflicts_with);
@@ -81,7 +83,7 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
       }
       return {
         total: Number(n),
-        rows: await plausibility.annotate(rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, ...r }) => {
+        rows: await plausibility.annotate(rows.map(({ flags_json, warnings_json, candidates_json, star_source_id, star_ra_deg, star_dec_deg, ...r }) => {
           const starShown = r.star_id === null || visibleStar(r.star_id);
           const competing = r.conflicts_with ? byId.get(r.conflicts_with) ?? null : null;
           return {
@@ -89,6 +91,8 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
             star_id: starShown ? r.star_id : null,
             star_name: starShown ? r.star_name : null,
             star_source_id: starShown ? star_source_id : null,
+            // how far the measured position lies from the tied star (an edited position is re-matched)
+            star_separation_arcsec: starShown && r.star_id !== null && star_ra_deg !== null ? angularSeparationDeg(r.ra_deg, r.dec_deg, star_ra_deg, star_dec_deg) * 3600 : null,
             conflicts_with: competing || !restricted ? r.conflicts_with : null,
             flags: flags_json ? JSON.parse(flags_json) : [],
             warnings: warnings_json ? JSON.parse(warnings_json) : [],

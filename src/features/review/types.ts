@@ -44,6 +44,8 @@ export interface Competing {
   p: number;
   theta_deg: number;
   batch_id: number;
+  /** line of the earlier row in its uploaded file (the row is named "batch N, line M") */
+  line?: number | null;
 }
 
 export interface RowWarning {
@@ -85,6 +87,8 @@ export interface ReviewRow {
   star_name: string | null;
   /** 64-bit identifier, text end to end */
   star_source_id: string | null;
+  /** arcsec from the measured position to the tied star (absent from older answers) */
+  star_separation_arcsec?: number | null;
   flags: string[];
   warnings: RowWarning[];
   candidates: Candidate[];

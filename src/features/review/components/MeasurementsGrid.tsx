@@ -1,7 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { flexRender, getCoreRowModel, useReactTable, type Row, type RowSelectionState, type SortingState, type VisibilityState } from '@tanstack/react-table';
 import { useVirtualizer } from '@tanstack/react-virtual';
-import { memo, useCallback, useEffect, useMemo, useRef, useState, type KeyboardEvent, type MouseEvent } from 'react';
+import { memo, useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type CSSProperties, type KeyboardEvent, type MouseEvent } from 'react';
 import { Notice } from '../../../components/ui/primitives';
 import { formatCount } from '../../intake/format';
 import { patchCachedRow, rowPatchFromStored } from '../api/cache';
@@ -11,7 +11,7 @@ import { useResolveMeasurement, type Resolution } from '../api/resolveMeasuremen
 import { cellNotes, editText, FIELD_BY_KEY, isEditableField, parseEdit, type FieldKey } from '../fields';
 import type { MeasurementFilters, MeasurementListParams, MeasurementState, ReviewRow, StoredMeasurement } from '../types';
 import { BulkBar } from './BulkBar';
-import { buildColumns, COLUMN_INFO, COLUMN_TITLES, formatField, HISTORY_COLUMN, INITIAL_VISIBILITY, RESOLVE_COLUMN, SELECT_COLUMN } from './gridColumns';
+import { buildColumns, COLUMN_INFO, COLUMN_TITLES, formatField, frozenOffsets, HISTORY_COLUMN, INITIAL_VISIBILITY, RESOLVE_COLUMN, SELECT_COLUMN } from './gridColumns';
 import { ColumnsMenu, GridFilters } from './GridToolbar';
 import { HistoryPanel } from './HistoryPanel';
 import { ResolveControls } from './ResolveControls';
@@ -233,6 +233,8 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
   const navigable = useMemo(() => visibleColumns.filter((c) => COLUMN_INFO[c.id]?.navigable).map((c) => c.id), [visibleColumns]);
   const template = visibleColumns.map((c) => `${c.getSize()}px`).join(' ');
   const width = table.getTotalSize();
+  // line, state and star stay in place while scrolling sideways (sticky cells with an opaque ground)
+  const frozen = useMemo(() => frozenOffsets(visibleColumns.map((c) => ({ id: c.id, size: c.getSize() }))), [visibleColumns, template]); // eslint-disable-line react-hooks/exhaustive-deps
 
   // Ask for the next page as the rows in view reach the end of what is loaded.
   const lastIndex = items.length ? items[items.length - 1].index : -1;
@@ -461,6 +463,8 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
                       key={h.id}
                       aria-sort={h.column.getCanSort() ? ariaSort(!!sorted, sorted === 'desc' ? 'desc' : 'asc') : undefined}
                       data-col={h.column.id}
+                      data-frozen={h.column.id in frozen.left || undefined}
+                      style={h.column.id in frozen.left ? { position: 'sticky', left: frozen.left[h.column.id], zIndex: 2, background: 'var(--color-paper)', boxShadow: frozen.last === h.column.id ? FROZEN_EDGE : undefined } : undefined}
                       className={`relative flex items-center px-2 text-[11px] font-semibold leading-tight text-muted ${info?.align === 'right' ? 'justify-end text-right' : ''}`}
                       title={title}
                     >
@@ -516,6 +520,8 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
                   selected={row.getIsSelected()}
                   activeCol={isActiveRow ? active.col : null}
                   editing={editing && editing.row === vi.index ? editing : null}
+                  anyEditing={!!editing}
+                  frozen={frozen}
                   problems={problems}
                   latestProblem={latestProblem}
                   saving={saving}
@@ -618,8 +624,12 @@ interface GridRowProps {
   readOnly: boolean;
   batchId: number;
   measure: (el: Element | null) => void;
-  /** among the last rows: a refusal opens above the cell, where there is room */
+  /** among the last rows (kept for the memo comparison; the popover measures its own room) */
   nearEnd: boolean;
+  /** some cell is being typed in: refusal popovers step aside (the list below the grid keeps them) */
+  anyEditing: boolean;
+  /** left offsets of the frozen columns */
+  frozen: ReturnType<typeof frozenOffsets>;
   /** not compared: always the grid's current handlers */
   handlers: { current: RowHandlers };
 }
@@ -628,7 +638,18 @@ interface GridRowProps {
 const sameRow = (a: GridRowProps, b: GridRowProps) =>
   (Object.keys(a) as (keyof GridRowProps)[]).every((k) => k === 'tableRow' || k === 'handlers' || a[k] === b[k]);
 
-const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activeCol, editing, problems, latestProblem, saving, template, width, readOnly, batchId, measure, nearEnd, handlers }: GridRowProps) {
+/** Opaque grounds for frozen cells (the row's tint composed on white), so scrolled cells never show through. */
+function frozenGround(m: ReviewRow, index: number, selected: boolean, active: boolean, problem: boolean): string {
+  if (problem) return '#f7ebed';
+  if (active) return '#eeeffc';
+  if (selected) return '#fef8ec';
+  if (m.state === 'conflict') return '#fcfaf6';
+  if (m.state === 'ambiguous') return '#fefbf4';
+  return index % 2 ? '#fbfaf7' : '#ffffff';
+}
+const FROZEN_EDGE = '6px 0 6px -4px rgba(19, 24, 58, 0.18)';
+
+const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activeCol, editing, anyEditing, frozen, problems, latestProblem, saving, template, width, readOnly, batchId, measure, handlers }: GridRowProps) {
   const rowHasPopover = Object.keys(problems).some((k) => k.startsWith(`${m.id}:`) && (k === latestProblem || k === problemKey(m.id, activeCol ?? '')));
   const fixedHeight = estimateRow(m) === ROW_H;
   return (
@@ -656,6 +677,9 @@ const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activ
         const isSaving = !!saving[key];
         const notes = spec ? cellNotes(m, spec.key) : [];
         const state = problem ? (problem.kind === 'stale' ? 'stale' : 'refused') : isSaving ? 'saving' : notes.length ? 'warning' : 'ok';
+        const left = frozen.left[colId];
+        const sticky: CSSProperties | undefined =
+          left === undefined ? undefined : { position: 'sticky', left, zIndex: 5, backgroundColor: frozenGround(m, index, selected, isActive, !!problem), boxShadow: frozen.last === colId && !isActive && !problem ? FROZEN_EDGE : undefined };
         return (
           <div
             role="gridcell"
@@ -668,7 +692,8 @@ const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activ
             data-cell-state={state}
             title={spec ? cellTitle(spec.key, m, notes) : undefined}
             onClick={() => handlers.current.onCellClick({ row: index, col: colId })}
-            style={{ scrollMarginTop: HEADER_H }}
+            data-frozen={left !== undefined || undefined}
+            style={{ scrollMarginTop: HEADER_H, scrollMarginLeft: left === undefined ? frozen.width : undefined, ...sticky }}
             className={`relative flex min-w-0 items-center px-2 py-1 ${info?.align === 'right' ? 'justify-end text-right' : ''} ${isEditing ? 'p-0' : ''} ${
               problem ? 'bg-bad/10 ring-2 ring-inset ring-bad' : isActive ? 'bg-veil-soft/70 ring-2 ring-inset ring-veil' : ''
             } ${isSaving ? 'italic text-muted' : ''} ${spec?.editable && !readOnly ? 'cursor-cell' : ''}`}
@@ -686,8 +711,8 @@ const GridRow = memo(function GridRow({ index, top, m, tableRow, selected, activ
               flexRender(cell.column.columnDef.cell, cell.getContext())
             )}
             {!isEditing && notes.length > 0 && !problem && <span aria-hidden data-testid="cell-note" className="pointer-events-none absolute right-0 top-0 h-0 w-0 border-l-[7px] border-t-[7px] border-l-transparent border-t-amber" />}
-            {problem && !isEditing && (key === latestProblem || isActive) && (
-              <ProblemPopover problem={problem} alignRight={info?.align === 'right'} above={nearEnd} onDismiss={() => handlers.current.dropProblem(key)} onReload={() => handlers.current.reloadRow(problem, key)} />
+            {problem && !isEditing && !anyEditing && (key === latestProblem || isActive) && (
+              <ProblemPopover problem={problem} alignRight={info?.align === 'right'} onDismiss={() => handlers.current.dropProblem(key)} onReload={() => handlers.current.reloadRow(problem, key)} />
             )}
           </div>
         );
@@ -742,15 +767,59 @@ function CellEditor({ initial, selectAll, label, numeric, onCommit, onCancel }: 
   );
 }
 
-function ProblemPopover({ problem, alignRight, above, onDismiss, onReload }: { problem: Problem; alignRight: boolean; above: boolean; onDismiss: () => void; onReload: () => void }) {
+
+type Rect = { left: number; top: number; right: number; bottom: number };
+const overlaps = (a: Rect, b: Rect) => a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
+
+/**
+ * Where a refusal opens: below, above, right or left of its cell — the first place that lies wholly inside
+ * the grid's visible area (under the sticky header) and does not cover the active cell.
+ */
+function placePopover(cell: Rect, pop: { w: number; h: number }, area: Rect, avoid: Rect | null, alignRight: boolean): CSSProperties {
+  const gap = 2;
+  const cw = cell.right - cell.left, ch = cell.bottom - cell.top;
+  const xAligned = alignRight ? cell.right - pop.w : cell.left;
+  const candidates: [CSSProperties, Rect][] = [
+    [{ top: ch + gap, [alignRight ? 'right' : 'left']: 0 }, { left: xAligned, top: cell.bottom + gap, right: xAligned + pop.w, bottom: cell.bottom + gap + pop.h }],
+    [{ bottom: ch + gap, [alignRight ? 'right' : 'left']: 0 }, { left: xAligned, top: cell.top - gap - pop.h, right: xAligned + pop.w, bottom: cell.top - gap }],
+    [{ top: 0, left: cw + gap }, { left: cell.right + gap, top: cell.top, right: cell.right + gap + pop.w, bottom: cell.top + pop.h }],
+    [{ top: 0, right: cw + gap }, { left: cell.left - gap - pop.w, top: cell.top, right: cell.left - gap, bottom: cell.top + pop.h }],
+  ];
+  const inside = (r: Rect) => r.left >= area.left && r.right <= area.right && r.top >= area.top && r.bottom <= area.bottom;
+  const fits = candidates.find(([, r]) => inside(r) && !(avoid && overlaps(r, avoid))) ?? candidates.find(([, r]) => !(avoid && overlaps(r, avoid))) ?? candidates[0];
+  // keep it within the grid's sides even when no place fits wholly
+  const [style, r] = fits;
+  const shift = r.right > area.right ? area.right - r.right : r.left < area.left ? area.left - r.left : 0;
+  return shift ? { ...style, transform: `translateX(${shift}px)` } : style;
+}
+
+function ProblemPopover({ problem, alignRight, onDismiss, onReload }: { problem: Problem; alignRight: boolean; onDismiss: () => void; onReload: () => void }) {
   const spec = FIELD_BY_KEY.get(problem.field);
+  const ref = useRef<HTMLDivElement>(null);
+  const [place, setPlace] = useState<CSSProperties>({ top: '100%', visibility: 'hidden' });
+  useLayoutEffect(() => {
+    const el = ref.current;
+    const cellEl = el?.parentElement;
+    const grid = el?.closest('[role="grid"]');
+    if (!el || !cellEl || !grid) return;
+    const g = grid.getBoundingClientRect();
+    const header = grid.querySelector('[role="rowgroup"]')?.getBoundingClientRect();
+    const area = { left: g.left + 2, right: g.left + grid.clientWidth - 2, top: (header?.bottom ?? g.top) + 2, bottom: g.top + grid.clientHeight - 2 };
+    const cell = cellEl.getBoundingClientRect();
+    const id = grid.getAttribute('aria-activedescendant');
+    const activeEl = id ? document.getElementById(id) : null;
+    const avoid = activeEl && activeEl !== cellEl ? activeEl.getBoundingClientRect() : null;
+    setPlace(placePopover(cell, { w: el.offsetWidth, h: el.offsetHeight }, area, avoid, alignRight));
+  }, [alignRight, problem]);
   return (
     <div
+      ref={ref}
       role="alert"
       data-testid="cell-problem"
       data-kind={problem.kind}
       onClick={(e) => e.stopPropagation()}
-      className={`absolute ${alignRight ? 'right-0' : 'left-0'} ${above ? 'bottom-full mb-0.5' : 'top-full mt-0.5'} z-30 w-80 whitespace-normal rounded-md border border-bad/50 bg-card p-2.5 text-left text-xs not-italic leading-snug text-ink shadow-lg`}
+      style={place}
+      className="absolute z-30 w-80 max-w-[min(20rem,80vw)] whitespace-normal rounded-md border border-bad/50 bg-card p-2.5 text-left text-xs not-italic leading-snug text-ink shadow-lg"
     >
       {problem.kind === 'refused' ? (
         <p>

@@ -1,5 +1,8 @@
 import type { Resolution } from '../api/resolveMeasurement';
-import type { ReviewRow } from '../types';
+import type { Competing, ReviewRow } from '../types';
+
+/** The other row of a conflict as a person finds it: "batch N, line M" (its uploaded file's line). */
+export const competingName = (c: Competing) => (c.line != null ? `batch ${c.batch_id}, line ${c.line}` : `batch ${c.batch_id} (measurement ${c.id})`);
 
 const small = 'rounded border px-1.5 text-[11px] leading-4 transition disabled:opacity-40';
 
@@ -10,7 +13,7 @@ const small = 'rounded border px-1.5 text-[11px] leading-4 transition disabled:o
 export function ResolveControls({ row, readOnly, busy, onResolve }: { row: ReviewRow; readOnly: boolean; busy: boolean; onResolve: (row: ReviewRow, r: Resolution) => void }) {
   if (row.state === 'conflict' && row.competing) {
     const c = row.competing;
-    const earlier = `earlier #${c.id} · batch ${c.batch_id}${c.mjd != null ? ` · MJD ${c.mjd}` : ''} · ${c.state}`;
+    const earlier = `${competingName(c)}${c.mjd != null ? ` · MJD ${c.mjd}` : ''} · ${c.state}`;
     return (
       <div className="leading-4">
         <div className="truncate text-[11px] text-warn" title={earlier}>

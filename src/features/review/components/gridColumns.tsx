@@ -4,6 +4,7 @@ import { fixed } from '../../intake/format';
 import { FIELDS, type FieldSpec } from '../fields';
 import type { Competing, MeasurementSort, ReviewRow } from '../types';
 import { MeasurementStateBadge } from './MeasurementStateBadge';
+import { competingName } from './ResolveControls';
 
 const col = createColumnHelper<ReviewRow>();
 
@@ -22,6 +23,26 @@ export interface GridColumnInfo {
 export const SELECT_COLUMN = 'select';
 export const HISTORY_COLUMN = 'history';
 export const RESOLVE_COLUMN = 'resolve';
+
+/** Columns that stay in place while the table scrolls sideways, so one always knows which row is edited. */
+export const FROZEN_COLUMNS = new Set([SELECT_COLUMN, 'line', 'state', 'star']);
+
+/**
+ * Left offsets (px) of the frozen columns among the visible ones: only a leading run of frozen
+ * columns can stay put; `last` is the rightmost, which draws the edge shadow.
+ */
+export function frozenOffsets(visible: { id: string; size: number }[]): { left: Record<string, number>; last: string | null; width: number } {
+  const left: Record<string, number> = {};
+  let x = 0;
+  let last: string | null = null;
+  for (const c of visible) {
+    if (!FROZEN_COLUMNS.has(c.id)) break;
+    left[c.id] = x;
+    x += c.size;
+    last = c.id;
+  }
+  return { left, last, width: x };
+}
 
 export const COLUMN_INFO: Record<string, GridColumnInfo> = {
   [SELECT_COLUMN]: { navigable: false, fixed: true },
@@ -63,7 +84,7 @@ function FieldValue({ spec, row }: { spec: FieldSpec; row: ReviewRow }) {
         {formatField(spec, v)}
       </div>
       {earlier !== undefined && (
-        <div className={`num truncate font-mono text-[11px] ${differs ? 'text-warn' : 'text-muted'}`} data-testid="competing-value" title={`The earlier measurement ${row.competing!.id} (batch ${row.competing!.batch_id}) has ${String(earlier)}`}>
+        <div className={`num truncate font-mono text-[11px] ${differs ? 'text-warn' : 'text-muted'}`} data-testid="competing-value" title={`The earlier row (${competingName(row.competing!)}) has ${String(earlier)}`}>
           {differs ? 'was ' : '= '}
           {formatField(spec, earlier)}
         </div>
@@ -86,9 +107,12 @@ function StarValue({ row }: { row: ReviewRow }) {
     );
   }
   if (!row.star_name) return <span className="text-muted">—</span>;
+  const sep = row.star_separation_arcsec;
+  const sepText = sep == null ? null : sep >= 3600 ? `${(sep / 3600).toFixed(2)}°` : sep >= 60 ? `${(sep / 60).toFixed(2)}′` : `${sep.toFixed(2)}″`;
   return (
-    <div className="min-w-0 truncate leading-4" title={row.star_source_id ? `source_id ${row.star_source_id}` : 'no source_id'}>
-      <span className="text-night">{row.star_name}</span>
+    <div className="flex min-w-0 items-baseline gap-1.5 leading-4" title={`${row.star_source_id ? `source_id ${row.star_source_id}` : 'no source_id'}${sepText ? ` · ${sepText} from the measured position` : ''}`}>
+      <span className="truncate text-night">{row.star_name}</span>
+      {sepText && <span className="num shrink-0 text-[11px] text-muted" data-testid="star-separation">{sepText}</span>}
     </div>
   );
 }
