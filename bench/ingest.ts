@@ -1,4 +1,9 @@
 // Intake benchmark (prints figures; not a test).
+//   npm run bench:ingest -- --yardstick [--rows 300000]
+//     generates batch A (N new stars) and batch B (N rows, half re-observing A) with
+//     ../shared/bench/make_big_csv.py, runs the yardstick ../shared/bench/ingest_peer.py on them, then
+//     through the HTTP API of a server in its own process: batch A upload + approve, batch B upload
+//     → awaiting_review; prints both rates for batch B and the ratio, and the server's peak RSS.
 //   npm run bench:ingest -- [--rows 1000000] [--catalog 1000000]
 // Generates N synthetic rows against a catalog of M stars and times the whole intake path
 // (parse → validate → derive → cross-match → de-duplicate → insert, in one transaction) through
@@ -15,11 +20,18 @@ import { mulberry32 } from '../server/science/random.js';
 import { ang2pixNest } from '../server/science/healpix.js';
 import { icrsToGalactic } from '../server/science/frames.js';
 import { INDEX_NSIDE } from '../server/measurements/derive.js';
+import { execFileSync } from 'node:child_process';
+import { DEMO_PASSWORD } from '../server/auth/passwords.js';
+import { client, startServer } from './server-process.js';
 
 const arg = (name: string, fallback: number) => {
   const i = process.argv.indexOf(`--${name}`);
   return i > 0 ? Number(process.argv[i + 1]) : fallback;
 };
+if (process.argv.includes('--yardstick')) {
+  await yardstick(arg('rows', 300_000));
+  process.exit(0);
+}
 const N = arg('rows', 1_000_000);
 const M = arg('catalog', 1_000_000);
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-bench-'));
@@ -137,3 +149,59 @@ console.log(`bare better-sqlite3 prepared INSERT of the same ${sample.length.toL
 console.log(`ratio end-to-end / bare: ${((100 * e2eRate) / bareRate).toFixed(1)} %   (target ≥ 40 %)`);
 console.log(`peak RSS during the intake run: ${(peakE2E / 2 ** 20).toFixed(0)} MB   (target < 1024 MB)`);
 fs.rmSync(dir, { recursive: true, force: true });
+
+/** Starveil (HTTP API, server in its own process) against the practitioner's yardstick, same files, same run. */
+async function yardstick(n: number): Promise<void> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-yardstick-'));
+  const files = path.join(dir, 'files');
+  fs.mkdirSync(files);
+  console.log(`intake against the yardstick: batch A ${n.toLocaleString('en')} new stars, batch B ${n.toLocaleString('en')} rows (half new epochs of A within 0.2″) (Node ${process.version}, ${os.cpus().length} cores)`);
+  execFileSync('/usr/bin/python3', [path.resolve('../shared/bench/make_big_csv.py'), String(n), files], { stdio: 'inherit' });
+  const peerOut = execFileSync('/usr/bin/python3', [path.resolve('../shared/bench/ingest_peer.py'), files], { encoding: 'utf8' });
+  process.stdout.write(`yardstick (pandas + astropy + sqlite3):\n${peerOut.replace(/^/gm, '  ')}`);
+  const rateOf = (name: string) => Number((new RegExp(`${name}: \\d+ rows in [\\d.]+ s = ([\\d,]+) rows/s`).exec(peerOut)?.[1] ?? 'NaN').replace(/,/g, ''));
+  const peerB = rateOf('batch-b.csv');
+  fs.rmSync(path.join(files, 'peer.sqlite'), { force: true });
+  fs.rmSync(path.join(files, 'peer.sqlite-wal'), { force: true });
+  fs.rmSync(path.join(files, 'peer.sqlite-shm'), { force: true });
+
+  const server = await startServer(path.join(dir, 'data'));
+  try {
+    const admin = await client(server.base, 'admin@kestrel.example', DEMO_PASSWORD);
+    const observer = await client(server.base, 'observer@kestrel.example', DEMO_PASSWORD);
+    const curator = await client(server.base, 'curator@kestrel.example', DEMO_PASSWORD);
+    const reg = await admin('/instruments', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ code: 'KR-bench', name: 'Benchmark camera', bands: ['V', 'R'] }) });
+    if (reg.status !== 201) throw new Error(`registering KR-bench: ${reg.status} ${await reg.text()}`);
+    const uploadAndWait = async (file: string) => {
+      const form = new FormData();
+      form.append('file', new Blob([fs.readFileSync(file)]), path.basename(file));
+      const t0 = performance.now();
+      const up = await observer('/batches', { method: 'POST', body: form });
+      let b = await up.json();
+      if (up.status !== 201) throw new Error(`upload ${file}: ${up.status} ${JSON.stringify(b)}`);
+      while (b.state === 'checking' || b.state === 'received') {
+        await new Promise((r) => setTimeout(r, 100));
+        b = await (await observer(`/batches/${b.id}`)).json();
+      }
+      const s = (performance.now() - t0) / 1000;
+      if (b.state !== 'awaiting_review') throw new Error(`batch ${b.id} ended ${b.state}: ${b.failure}`);
+      return { b, s };
+    };
+    const a = await uploadAndWait(path.join(files, 'batch-a.csv'));
+    console.log(`Starveil batch A: ${a.s.toFixed(1)} s = ${Math.round(n / a.s).toLocaleString('en')} rows/s`, a.b.counts);
+    const t0 = performance.now();
+    const ap = await curator(`/batches/${a.b.id}/approve`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ note: 'benchmark' }) });
+    if (ap.status !== 200) throw new Error(`approving batch A: ${ap.status} ${await ap.text()}`);
+    console.log(`batch A approved in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+    const rssBefore = server.peakRssMb();
+    const b = await uploadAndWait(path.join(files, 'batch-b.csv'));
+    const oursB = n / b.s;
+    console.log(`Starveil batch B: ${b.s.toFixed(1)} s = ${Math.round(oursB).toLocaleString('en')} rows/s (upload request to awaiting_review)`, b.b.counts);
+    console.log('');
+    console.log(`batch B rows/s: Starveil ${Math.round(oursB).toLocaleString('en')}, yardstick ${Math.round(peerB).toLocaleString('en')}; ratio ${(oursB / peerB).toFixed(2)}×   (target ≥ 1.5×)`);
+    console.log(`server peak RSS: ${server.peakRssMb().toFixed(0)} MB (${rssBefore.toFixed(0)} MB before batch B)   (target < 1024 MB)`);
+  } finally {
+    await server.stop();
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
