@@ -2,6 +2,8 @@ import { ConnectSessionKnexStore } from 'connect-session-knex';
 import type { SessionData } from 'express-session';
 import type { Knex } from 'knex';
 
+const TOUCH_EVERY_MS = 60_000;
+
 /**
  * The session store, on a connection of its own. connect-session-knex hands an error to the
  * callback and then also rethrows it from the promise nobody awaits (get, set, destroy, …), and
@@ -40,7 +42,20 @@ export class SessionStore extends ConnectSessionKnexStore {
   override all(callback: (err: any, obj?: SessionData[] | { [sid: string]: SessionData } | null) => void) {
     return SessionStore.quiet('all', super.all(callback), []);
   }
+  /** sid → when its expiry was last written: a rolling session is written at most once a minute */
+  private touched = new Map<string, number>();
+
   override async touch(sid: string, session: SessionData, callback?: (err?: any) => void): Promise<void> {
+    // every signed-in response touches its session; writing each one would queue every read
+    // behind the single SQLite writer while a background check holds it (8 h sessions lose nothing)
+    const now = Date.now();
+    const last = this.touched.get(sid);
+    if (last !== undefined && now - last < TOUCH_EVERY_MS) {
+      callback?.();
+      return;
+    }
+    if (this.touched.size > 100_000) this.touched.clear();
+    this.touched.set(sid, now);
     try {
       await super.touch(sid, session);
     } catch (e) {
