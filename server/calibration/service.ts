@@ -135,6 +135,9 @@ export function calibrationService(db: Knex, readDb: Knex = db) {
     const batch = await k('batches').where({ id: batchId }).first();
     if (!batch) throw notFound(`Batch ${batchId}`);
     const mapping = batch.mapping_json ? (JSON.parse(batch.mapping_json) as Record<string, string>) : {};
+    // the raw row is kept as received: an array in header order (or, in older batches, header → text)
+    const headers: string[] = batch.proposal_json ? (JSON.parse(batch.proposal_json).headers ?? []) : [];
+    const nameIndex = mapping.name ? headers.indexOf(mapping.name) : -1;
     const rows = await k('measurements as m')
       .join('batch_rows as r', 'r.id', 'm.batch_row_id')
       .leftJoin('stars as s', 's.id', 'm.star_id')
@@ -144,8 +147,8 @@ export function calibrationService(db: Knex, readDb: Knex = db) {
     return {
       batch,
       rows: rows.map((r: any) => {
-        const values = JSON.parse(r.values_json) as Record<string, string>;
-        const given = mapping.name ? values[mapping.name] : undefined;
+        const values = JSON.parse(r.values_json) as string[] | Record<string, string>;
+        const given = Array.isArray(values) ? (nameIndex >= 0 ? values[nameIndex] : undefined) : mapping.name ? values[mapping.name] : undefined;
         const { values_json: _v, ...rest } = r;
         return { ...rest, given_name: given && given.trim() ? given.trim() : null } as Meas & { line: number; given_name: string | null; star_name: string | null };
       }),

@@ -45,6 +45,31 @@ export function countsTable(counts: MailBatchCounts | null | undefined): string 
   return lines.map(([l, n]) => `  ${l.padEnd(labelWidth)}  ${n.padStart(numWidth)}`).join('\n');
 }
 
+const DECISION_LINES: [string, string][] = [
+  ['approved', 'approved'],
+  ['rejected', 'rejected'],
+  ['withdrawn', 'withdrawn from the catalog'],
+  ['conflict', 'still held: conflicts'],
+  ['ambiguous', 'still held: ambiguous star match'],
+  ['pending', 'pending'],
+];
+
+/** The batch's measurements by state after the decision, as an aligned table; null when there are none. */
+async function decisionTable(db: Knex, batchId: number): Promise<string | null> {
+  try {
+    const rows = (await db('measurements').where({ batch_id: batchId }).select('state').count({ n: '*' }).groupBy('state')) as { state: string; n: number }[];
+    const by = new Map(rows.map((r) => [r.state, Number(r.n)]));
+    const lines = DECISION_LINES.filter(([k]) => by.get(k)).map(([k, label]) => [label, by.get(k)!.toLocaleString('en-US')] as const);
+    if (!lines.length) return null;
+    const w = Math.max(...lines.map(([l]) => l.length));
+    const nw = Math.max(...lines.map(([, n]) => n.length));
+    return lines.map(([l, n]) => `  ${l.padEnd(w)}  ${n.padStart(nw)}`).join('\n');
+  } catch (e) {
+    console.error(`mail: could not count the decision of batch ${batchId}: ${e instanceof Error ? e.message : e}`);
+    return null;
+  }
+}
+
 const FOOTER = '\n\n-- \nStarveil · sent automatically, replies are not read.';
 
 /**
@@ -107,11 +132,13 @@ export async function notifyObserverOfReview(
     ? 'has been approved by a curator.'
     : 'has been returned to you by a curator for changes. The note below and the batch page say what needs fixing.';
   const noteText = note && note.trim() ? note.trim().split('\n').map((l) => `  ${l}`).join('\n') : '  (the curator left no note)';
+  const decided = await decisionTable(db, batch.id);
   const text =
     `Hello ${batch.uploadedBy.name},\n\n` +
     `Your batch "${batch.filename}" (batch #${batch.id}) ${what}\n\n` +
     `Curator's note:\n${noteText}\n\n` +
-    `Row counts:\n${countsTable(counts)}\n\n` +
+    (decided ? `The decision, measurement by measurement:\n${decided}\n\n` : '') +
+    `Row counts at intake:\n${countsTable(counts)}\n\n` +
     `See the batch:\n${link}` +
     FOOTER;
   return { to: batch.uploadedBy.email, ...(await mailer.send({ to: batch.uploadedBy.email, subject, text })) };

@@ -305,3 +305,31 @@ describe('the demo standards night', () => {
     expect(Math.abs(c.instrumentalU + 0.0011)).toBeLessThan(3 * c.instrumentalUErr);
   });
 });
+
+describe('the decision e-mail', () => {
+  it('gives the decision’s counts, measurement by measurement', async () => {
+    // the standards night was approved above (band normalisation); the mail goes out after the commit
+    let body = '';
+    for (let i = 0; i < 100 && !body; i++) {
+      const row = await t.db('outbox').where('subject', 'like', `Batch #${batchId} approved%`).first();
+      if (row) body = row.text_body;
+      else await new Promise((r) => setTimeout(r, 100));
+    }
+    expect(body).toContain('The decision, measurement by measurement:');
+    expect(body).toMatch(/approved\s+7\n/);
+    expect(body).toMatch(/Row counts at intake:/);
+  });
+});
+
+describe('recognition by the name in the file', () => {
+  it('a row tied by position to a catalog star of another name is still a standard by its own name', async () => {
+    // at the position of KRS SCIENCE B (a star created above), so the row is tied to that star
+    const csv = [HEADER, ['HD  204827', 100.3, -30.4, 'V', 0.03, 0.04, 0.0004, 0.0004, 2.0, 0.05, 61040.2, 'KR-HAWK'].join(',')].join('\n');
+    const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(csv), 'named.csv');
+    expect(up.status).toBeLessThan(300);
+    const ms = (await curator.get(`/api/v1/batches/${up.body.id}/measurements`)).body.rows;
+    expect(ms[0].star_name).toBe('KRS SCIENCE B');
+    const cal = (await curator.get(`/api/v1/batches/${up.body.id}/calibration`)).body;
+    expect(cal.calibrations[0].standards[0]).toMatchObject({ name: 'HD  204827', standardName: 'HD 204827', matchedBy: 'name' });
+  });
+});
