@@ -119,7 +119,8 @@ describe('review table, conflicts and ambiguous matches', () => {
     expect((await t.db('measurements').where({ id: rows[0].id }).first()).state).toBe('pending');
     expect((await t.db('measurements').where({ id: rows[0].competing.id }).first()).state).toBe('rejected');
 
-    await up(['tw1,,201.0,10.0,V,0.01,0.0,0.001,0.001,1,0.05,61000,KR-HAWK', 'tw2,,201.0,10.0002,V,0.01,0.0,0.001,0.001,1,0.05,61000,KR-HAWK'], 'tw.csv');
+    // two distinct stars 0.72″ apart (distinct source_ids: rows of one batch that close without them are one star repeated)
+    await up(['tw1,9000000000000000001,201.0,10.0,V,0.01,0.0,0.001,0.001,1,0.05,61000,KR-HAWK', 'tw2,9000000000000000002,201.0,10.0002,V,0.01,0.0,0.001,0.001,1,0.05,61000,KR-HAWK'], 'tw.csv');
     const amb = await up(['which,,201.0,10.0001,V,0.01,0.0,0.001,0.001,1,0.05,61002,KR-HAWK'], 'tw-which.csv');
     const arow = (await curator.get(`/api/v1/batches/${amb.id}/measurements`)).body.rows[0];
     expect(arow.state).toBe('ambiguous');
