@@ -35,6 +35,7 @@ import { skyService } from './masks/service.js';
 import { maskRoutes } from './masks/routes.js';
 import { apiDocsPage, openApiRoutes } from './openapi/routes.js';
 import { calibrationRoutes, calibrationService, plausibilityService } from './calibration/index.js';
+import { decisionRoutes } from './review/decision.js';
 
 export interface AppDeps {
   db: Knex;
@@ -134,6 +135,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(tokenRoutes({ tokens }));
   api.use(maskRoutes({ sky }));
   api.use(calibrationRoutes({ db, calibration: calibrationService(db, deps.readDb ?? db), plausibility: plausibilityService(db, deps.readDb ?? db) }));
+  api.use(decisionRoutes({ db }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
   app.use('/api/v1', api);

@@ -571,4 +571,21 @@ export const OPERATIONS: Operation[] = [
     responses: { 200: { description: 'the settings after the change', schema: 'responses/calibration-plausibility' } },
     errors: [400],
   },
+  {
+    method: 'get', path: '/batches/:id/decision', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'The curator’s decision and note on a batch, as its uploader reads it',
+    description: 'The note a curator wrote when approving or returning the batch, who decided and when, the measurements by state after the decision, and the corrected files linked to it.',
+    params: [idPath('batch')],
+    responses: { 200: { description: 'the decision', schema: 'responses/calibration-decision' } },
+    errors: [400, 404],
+  },
+  {
+    method: 'post', path: '/batches/:id/replaces', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'Link this upload as the corrected file of a returned batch',
+    description: 'Send the corrected file with POST /batches first, then link it here to the returned batch it replaces (`batchId`). 409 when that batch is not returned (`not_returned`) or this one already replaces another (`already_linked`). Audited.',
+    params: [idPath('batch')],
+    body: { schema: 'api/calibration-replaces', required: true },
+    responses: { 200: { description: 'the new batch’s decision record, naming the batch it replaces', schema: 'responses/calibration-decision' } },
+    errors: [400, 404, 409],
+  },
 ];

@@ -587,6 +587,15 @@ describe('live answers match the document (drift)', () => {
     await hit(observer, 'get', '/instruments/KR-HAWK/calibrations', '/instruments/:code/calibrations', 200);
     await hit(curator, 'post', `/batches/${id}/calibration/revert`, '/batches/:id/calibration/revert', 200, {});
     await hit(observer, 'get', '/instruments/KR-NOPE/calibrations', '/instruments/:code/calibrations', 404);
+    // the decision as the uploader reads it, and a corrected file for a returned batch
+    await hit(observer, 'get', `/batches/${id}/decision`, '/batches/:id/decision', 200);
+    await hit(observer, 'get', '/batches/999999/decision', '/batches/:id/decision', 404);
+    expect((await curator.post(`/api/v1/batches/${id}/reject`).send({ note: 'Line 3: the angle is in radians.' })).status).toBe(200);
+    const fixed = await observer.post('/api/v1/batches').attach('file', Buffer.from(csv.replace('0.01,0.004', '0.011,0.004')), 'drift-standards-fixed.csv');
+    expect(fixed.status).toBe(201);
+    await hit(observer, 'post', `/batches/${fixed.body.id}/replaces`, '/batches/:id/replaces', 200, { batchId: id });
+    await hit(observer, 'post', `/batches/${fixed.body.id}/replaces`, '/batches/:id/replaces', 409, { batchId: id });
+    await hit(observer, 'post', `/batches/${fixed.body.id}/replaces`, '/batches/:id/replaces', 400, { batchId: 'one' });
     await hit(modeler, 'get', '/plausibility', '/plausibility', 200);
     await hit(curator, 'patch', '/plausibility', '/plausibility', 200, { pCeiling: 0.15 });
     await hit(curator, 'patch', '/plausibility', '/plausibility', 400, { pCeiling: -1 });

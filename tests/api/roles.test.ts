@@ -73,6 +73,8 @@ const MATRIX: Record<string, Who> = {
   'GET /instruments/:code/calibrations': 'signed-in',
   'GET /plausibility': 'signed-in',
   'PATCH /plausibility': CUR,
+  'GET /batches/:id/decision': OBS_CUR,
+  'POST /batches/:id/replaces': OBS_CUR,
 };
 
 let t: TestApp;
