@@ -2,6 +2,7 @@ import { Link, useLocation, useParams } from 'react-router-dom';
 import { Notice } from '../../../components/ui/primitives';
 import { useBatchesLabel } from '../components/BatchesNavLabel';
 import { BatchDetail } from '../components/BatchDetail';
+import { DecisionNote } from '../../review/components/DecisionNote';
 
 export function BatchPage() {
   const { id } = useParams();
@@ -14,6 +15,7 @@ export function BatchPage() {
       <Link to="/batches" className="text-sm text-veil underline-offset-2 hover:underline">
         ← {label}
       </Link>
+      {Number.isInteger(n) && n > 0 && <DecisionNote batchId={n} />}
       {Number.isInteger(n) && n > 0 ? <BatchDetail id={n} seenBefore={seenBefore} /> : <Notice tone="bad">“{id}” is not a batch number.</Notice>}
     </div>
   );
