@@ -281,4 +281,38 @@ describe.runIf(run)('a large batch checked in the background', () => {
     await expect.poll(loaded, { timeout: 30_000 }).toBeGreaterThan(500); // the next page, asked for by scrolling
     await ctx.close();
   });
+  it('the upload page shows the rows checked moving while a large night is checked', async () => {
+    const { ctx, page } = await signIn(browser, url, 'observer');
+    const big = path.join(tmp, 'progress-night.csv');
+    const lines = ['name,source_id,ra_deg,dec_deg,band,q,u,q_err,u_err,parallax_mas,parallax_err_mas,mjd,instrument'];
+    const n = 60_000;
+    for (let i = 0; i < n; i++) lines.push(`Progress star ${i},,${(150 + (i % 400) * 0.05).toFixed(5)},${(-60 + Math.floor(i / 400) * 0.05).toFixed(5)},V,0.0100,0.0020,0.0005,0.0005,2.0,0.05,61500.5,KR-HAWK`);
+    fs.writeFileSync(big, lines.join('\n') + '\n');
+    await page.goto(`${url}/upload`);
+    await page.getByLabel('CSV file').setInputFiles(big);
+    await page.getByRole('button', { name: 'Upload and check' }).click();
+    // the upload page follows the check (rows checked of rows in the file), then opens the batch
+    const seen = new Set<number>();
+    let shot = false;
+    await expect
+      .poll(
+        async () => {
+          if (/\/batches\/\d+$/.test(new URL(page.url()).pathname)) return page.getByTestId('batch-state').getAttribute('data-state', { timeout: 1000 }).catch(() => null);
+          const v = Number((await page.getByTestId('rows-done').textContent({ timeout: 500 }).catch(() => '')) || NaN);
+          if (Number.isFinite(v)) seen.add(v);
+          if (!shot && v > 0) {
+            shot = true;
+            await page.screenshot({ path: path.join(SCREENSHOTS, 'upload-checking-progress.png') });
+          }
+          return 'checking';
+        },
+        { timeout: 170_000, intervals: [250] },
+      )
+      .toBe('awaiting_review');
+    // at least two different figures while it was checked: the number moved
+    expect([...seen].filter((v) => v > 0).length, `rows done seen: ${[...seen].join(', ')}`).toBeGreaterThanOrEqual(1);
+    expect(seen.size).toBeGreaterThanOrEqual(2);
+    expect(await figure(page, 'rows')).toBe(n);
+    await ctx.close();
+  });
 });
