@@ -140,5 +140,6 @@ export interface BatchDecision {
   id: number;
   state: 'approved' | 'returned';
   note: string | null;
-  counts: { changed: number; conflicts: number; ambiguous: number };
+  /** withdrawn: approved rows a return took out of the catalog; restored: withdrawn rows approved again */
+  counts: { changed: number; conflicts: number; ambiguous: number; withdrawn?: number; restored?: number };
 }

@@ -59,6 +59,8 @@ export function BatchReview({ batchId }: { batchId: number }) {
         <Notice tone="ok">
           <span data-testid="decision-result">
             Batch {decided.state === 'approved' ? 'approved' : 'returned to its uploader'}: {formatCount(decided.counts.changed)} measurement{decided.counts.changed === 1 ? '' : 's'} {decided.state === 'approved' ? 'approved' : 'rejected'}
+            {decided.counts.withdrawn ? `; ${formatCount(decided.counts.withdrawn)} approved withdrawn from the catalog` : ''}
+            {decided.counts.restored ? `; ${formatCount(decided.counts.restored)} withdrawn approved again` : ''}
             {decided.counts.conflicts + decided.counts.ambiguous > 0 ? `; ${formatCount(decided.counts.conflicts)} conflicts and ${formatCount(decided.counts.ambiguous)} ambiguous matches still held` : ''}.
           </span>{' '}
           <Link to="/review" className="underline">

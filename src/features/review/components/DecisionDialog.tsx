@@ -57,7 +57,9 @@ export function DecisionDialog({ batchId, uploader, decision, totals, onClose, o
           ) : (
             <>Every pending measurement will become {decision === 'return' ? 'rejected' : 'approved'}.</>
           )}{' '}
-          {decision === 'return' ? 'Approved rows are withdrawn from the catalog until the batch is approved again; rejected rows stay rejected.' : 'Rows withdrawn by an earlier return are approved again; rejected rows stay rejected.'}
+          {decision === 'return'
+            ? `${totals ? `${formatCount(totals.approved)} approved` : 'Approved'} measurement${totals?.approved === 1 ? ' is' : 's are'} withdrawn from the catalog until the batch is approved again; rejected rows stay rejected.`
+            : `${totals ? `${formatCount(totals.withdrawn)} withdrawn` : 'Withdrawn'} measurement${totals?.withdrawn === 1 ? ' is' : 's are'} approved again; rejected rows stay rejected.`}
         </p>
         {held !== null && held > 0 && (
           <Notice>
