@@ -31,7 +31,7 @@ export function Layout() {
                 key={n.to}
                 to={n.to}
                 end={n.to === '/'}
-                className={({ isActive }) => `whitespace-nowrap rounded-md px-2.5 py-1.5 text-sm ${isActive ? 'bg-night-2 text-amber' : 'text-veil-soft/85 hover:bg-night-2 hover:text-white'}`}
+                className={({ isActive }) => `whitespace-nowrap rounded-md px-2 py-1.5 text-sm ${isActive ? 'bg-night-2 text-amber' : 'text-veil-soft/85 hover:bg-night-2 hover:text-white'}`}
               >
                 {n.label}
               </NavLink>

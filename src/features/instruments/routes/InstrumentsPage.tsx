@@ -32,7 +32,7 @@ export function InstrumentsPage() {
 
 function BandPicker({ value, onChange, label }: { value: Band[]; onChange: (b: Band[]) => void; label: string }) {
   return (
-    <div className="flex gap-3" role="group" aria-label={label}>
+    <div className="flex flex-wrap gap-x-3 gap-y-1" role="group" aria-label={label}>
       {BANDS.map((b) => (
         <label key={b} className="flex items-center gap-1 text-sm">
           <input type="checkbox" checked={value.includes(b)} onChange={(e) => onChange(e.target.checked ? BANDS.filter((x) => x === b || value.includes(x)) : value.filter((x) => x !== b))} />
@@ -50,9 +50,9 @@ function InstrumentRow({ instrument, editable }: { instrument: RegisteredInstrum
   if (editing) {
     return (
       <tr className="border-b border-line/60 align-top">
-        <td className="py-2 font-mono">{instrument.code}</td>
+        <td className="whitespace-nowrap py-2 pr-3 font-mono">{instrument.code}</td>
         <td><TextInput aria-label={`Name of ${instrument.code}`} value={form.name} onChange={(e) => setForm({ ...form, name: e.target.value })} /></td>
-        <td><BandPicker label={`Bands of ${instrument.code}`} value={form.bands} onChange={(bands) => setForm({ ...form, bands })} /></td>
+        <td className="min-w-40 pr-3"><BandPicker label={`Bands of ${instrument.code}`} value={form.bands} onChange={(bands) => setForm({ ...form, bands })} /></td>
         <td><TextInput aria-label={`Description of ${instrument.code}`} value={form.description} onChange={(e) => setForm({ ...form, description: e.target.value })} /></td>
         <td className="num text-right">{instrument.measurements.toLocaleString('en')}</td>
         <td className="space-y-1 text-right">
@@ -70,7 +70,7 @@ function InstrumentRow({ instrument, editable }: { instrument: RegisteredInstrum
   }
   return (
     <tr className="border-b border-line/60">
-      <td className="py-2 font-mono font-medium text-night">{instrument.code}</td>
+      <td className="whitespace-nowrap py-2 pr-3 font-mono font-medium text-night">{instrument.code}</td>
       <td>{instrument.name}</td>
       <td>{instrument.bands.join(', ')}</td>
       <td className="text-muted">{instrument.description ?? '—'}</td>
