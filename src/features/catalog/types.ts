@@ -22,14 +22,19 @@ export type StarSort = 'id' | 'name' | 'source_id' | 'ra_deg' | 'dec_deg' | 'glo
 
 /** A cone search as typed (degrees, ICRS); the server checks the ranges and names a bad field. */
 export interface Cone {
+  /** RA (ICRS, degrees or sexagesimal hours) — or Galactic l in degrees when frame is galactic */
   ra: string;
+  /** Dec (ICRS, degrees or sexagesimal) — or Galactic b in degrees when frame is galactic */
   dec: string;
   radius: string;
+  frame?: 'icrs' | 'galactic';
 }
 
 export interface StarListParams {
   q?: string;
   cone?: Cone;
+  /** only stars with a measurement carrying this quality or plausibility flag */
+  flag?: string;
   sort: StarSort;
   order: 'asc' | 'desc';
   limit: number;

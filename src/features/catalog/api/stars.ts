@@ -6,10 +6,12 @@ export function getStars(p: StarListParams) {
   const qs = new URLSearchParams({ sort: p.sort, order: p.order, limit: String(p.limit), offset: String(p.offset) });
   if (p.q) qs.set('q', p.q);
   if (p.cone) {
-    qs.set('ra', p.cone.ra);
-    qs.set('dec', p.cone.dec);
+    const gal = p.cone.frame === 'galactic';
+    qs.set(gal ? 'l' : 'ra', p.cone.ra);
+    qs.set(gal ? 'b' : 'dec', p.cone.dec);
     qs.set('radius', p.cone.radius);
   }
+  if (p.flag) qs.set('flag', p.flag);
   return api.get<{ stars: Star[]; total: number }>(`/stars?${qs}`);
 }
 

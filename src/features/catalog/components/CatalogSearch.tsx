@@ -7,20 +7,22 @@ export interface FieldProblem {
   message: string;
 }
 
-const FIELD_LABEL: Record<string, string> = { ra: 'RA', dec: 'Dec', radius: 'Radius' };
+const FIELD_LABEL: Record<string, string> = { ra: 'RA', dec: 'Dec', l: 'l', b: 'b', radius: 'Radius' };
 
 /** Search by name or source_id, and a cone search around a position. */
 export function CatalogSearch({ q, cone, problems, onSearch, onCone, onClear }: { q: string; cone: Cone | null; problems: FieldProblem[]; onSearch: (q: string) => void; onCone: (c: Cone) => void; onClear: () => void }) {
   const [text, setText] = useState(q);
-  const [c, setC] = useState<Cone>(cone ?? { ra: '', dec: '', radius: '0.5' });
-  const problem = (f: string) => problems.find((p) => p.field === f);
+  const [c, setC] = useState<Cone>(cone ?? { ra: '', dec: '', radius: '0.5', frame: 'icrs' });
+  const gal = c.frame === 'galactic';
+  const problem = (f: string) => problems.find((p) => p.field === f || (gal && ((f === 'ra' && p.field === 'l') || (f === 'dec' && p.field === 'b'))));
+  const labelOf = (f: 'ra' | 'dec' | 'radius') => (f === 'radius' ? 'Radius [deg]' : gal ? (f === 'ra' ? 'l [deg]' : 'b [deg]') : f === 'ra' ? 'RA [deg]' : 'Dec [deg]');
   const submitText = (e: FormEvent) => {
     e.preventDefault();
     onSearch(text.trim());
   };
   const submitCone = (e: FormEvent) => {
     e.preventDefault();
-    onCone({ ra: c.ra.trim(), dec: c.dec.trim(), radius: c.radius.trim() });
+    onCone({ ra: c.ra.trim(), dec: c.dec.trim(), radius: c.radius.trim(), frame: c.frame ?? 'icrs' });
   };
   const input = 'w-full rounded-md border bg-white px-3 py-2 text-sm outline-none focus:border-veil focus:ring-2 focus:ring-veil/30';
   return (
@@ -37,21 +39,27 @@ export function CatalogSearch({ q, cone, problems, onSearch, onCone, onClear }: 
       </form>
       <div className="hidden items-center text-xs uppercase tracking-wide text-muted lg:flex">or</div>
       <form onSubmit={submitCone} aria-label="Cone search" className="space-y-1">
-        <span className="text-sm font-medium text-ink">Cone search (ICRS, degrees)</span>
+        <div className="flex items-center gap-3">
+          <span className="text-sm font-medium text-ink">Cone search</span>
+          <select aria-label="Centre given in" value={c.frame ?? 'icrs'} onChange={(e) => setC({ ...c, frame: e.target.value as Cone['frame'] })} className="rounded-md border border-line bg-white px-2 py-1 text-xs">
+            <option value="icrs">RA, Dec (ICRS)</option>
+            <option value="galactic">Galactic l, b</option>
+          </select>
+        </div>
         <div className="flex flex-wrap items-start gap-2">
           {(['ra', 'dec', 'radius'] as const).map((f) => {
             const p = problem(f);
             return (
-              <label key={f} className="w-28 space-y-0.5">
-                <span className="text-xs text-muted">{f === 'ra' ? 'RA [deg]' : f === 'dec' ? 'Dec [deg]' : 'radius [deg]'}</span>
+              <label key={f} className={`${f === 'radius' ? 'w-24' : 'w-36'} space-y-0.5`}>
+                <span className="text-xs text-muted">{labelOf(f)}</span>
                 <input
-                  aria-label={f === 'ra' ? 'RA [deg]' : f === 'dec' ? 'Dec [deg]' : 'Radius [deg]'}
+                  aria-label={labelOf(f)}
                   inputMode="decimal"
                   value={c[f]}
                   aria-invalid={p ? true : undefined}
                   onChange={(e) => setC({ ...c, [f]: e.target.value })}
                   className={`${input} num font-mono ${p ? 'border-bad' : 'border-line'}`}
-                  placeholder={f === 'ra' ? '0 – 360' : f === 'dec' ? '−90 – 90' : '≤ 30'}
+                  placeholder={f === 'radius' ? '≤ 30' : gal ? (f === 'ra' ? '0 – 360' : '−90 – 90') : f === 'ra' ? '217.4 or 14:29:42.6' : '-18.3 or -18:18:24'}
                 />
               </label>
             );

@@ -2,6 +2,7 @@ import { useSearchParams } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
 import { useStars } from '../api/stars';
+import { usePlausibility } from '../../calibration/api/plausibility';
 import { CatalogSearch, type FieldProblem } from '../components/CatalogSearch';
 import { PAGE_SIZES, StarsTable } from '../components/StarsTable';
 import type { Cone, StarSort } from '../types';
@@ -12,12 +13,17 @@ const SORTS: StarSort[] = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon
 export function CatalogPage() {
   const [sp, setSp] = useSearchParams();
   const q = sp.get('q') ?? '';
-  const cone: Cone | null = sp.has('ra') || sp.has('dec') || sp.has('radius') ? { ra: sp.get('ra') ?? '', dec: sp.get('dec') ?? '', radius: sp.get('radius') ?? '' } : null;
+  const galactic = sp.has('l') || sp.has('b');
+  const cone: Cone | null = galactic
+    ? { ra: sp.get('l') ?? '', dec: sp.get('b') ?? '', radius: sp.get('radius') ?? '', frame: 'galactic' }
+    : sp.has('ra') || sp.has('dec') || sp.has('radius') ? { ra: sp.get('ra') ?? '', dec: sp.get('dec') ?? '', radius: sp.get('radius') ?? '', frame: 'icrs' } : null;
+  const flag = sp.get('flag') ?? '';
+  const plausibility = usePlausibility();
   const sort = (SORTS.includes(sp.get('sort') as StarSort) ? sp.get('sort') : 'id') as StarSort;
   const order = sp.get('order') === 'desc' ? 'desc' : 'asc';
   const pageSize = PAGE_SIZES.includes(Number(sp.get('per'))) ? Number(sp.get('per')) : 50;
   const page = Math.max(0, Math.floor(Number(sp.get('page') ?? 1)) - 1 || 0);
-  const stars = useStars({ q: q || undefined, cone: cone ?? undefined, sort, order, limit: pageSize, offset: page * pageSize });
+  const stars = useStars({ q: q || undefined, cone: cone ?? undefined, flag: flag || undefined, sort, order, limit: pageSize, offset: page * pageSize });
 
   const update = (changes: Record<string, string | null>, keepPage = false) => {
     const next = new URLSearchParams(sp);
@@ -40,14 +46,34 @@ export function CatalogPage() {
           q={q}
           cone={cone}
           problems={problems}
-          onSearch={(text) => update({ q: text, ra: null, dec: null, radius: null })}
-          onCone={(c) => (c.ra === '' && c.dec === '' && c.radius === '' ? update({ ra: null, dec: null, radius: null }) : update({ q: null, ra: c.ra, dec: c.dec, radius: c.radius, sort: null, order: null }))}
-          onClear={() => update({ q: null, ra: null, dec: null, radius: null })}
+          onSearch={(text) => update({ q: text, ra: null, dec: null, l: null, b: null, radius: null })}
+          onCone={(c) =>
+            c.ra === '' && c.dec === '' && c.radius === ''
+              ? update({ ra: null, dec: null, l: null, b: null, radius: null })
+              : c.frame === 'galactic'
+                ? update({ q: null, ra: null, dec: null, l: c.ra, b: c.dec, radius: c.radius, sort: null, order: null })
+                : update({ q: null, l: null, b: null, ra: c.ra, dec: c.dec, radius: c.radius, sort: null, order: null })
+          }
+          onClear={() => update({ q: null, ra: null, dec: null, l: null, b: null, radius: null })}
         />
+        <label className="mt-4 flex flex-wrap items-center gap-2 text-sm">
+          <span className="text-muted">Only stars with a flagged measurement:</span>
+          <select aria-label="Flag" value={flag} onChange={(e) => update({ flag: e.target.value || null })} className="rounded-md border border-line bg-white px-2 py-1 text-sm">
+            <option value="">any (no flag filter)</option>
+            {(plausibility.data?.flags ?? []).map((f) => (
+              <option key={f.flag} value={f.flag} title={f.description}>
+                {f.flag.replace(/_/g, ' ')}
+              </option>
+            ))}
+            <option value="low_parallax_snr">low parallax snr</option>
+            <option value="no_distance">no distance</option>
+          </select>
+          {flag && <span className="text-xs text-muted">{plausibility.data?.flags.find((f) => f.flag === flag)?.description}</span>}
+        </label>
       </Card>
       {stars.error && problems.length === 0 && <Notice tone="bad">{stars.error.message}</Notice>}
       {stars.error && problems.length > 0 && <Notice tone="bad">The search was refused: {stars.error.message}.</Notice>}
-      <Card title={cone && !stars.error ? `Stars within ${cone.radius}° of RA ${cone.ra}°, Dec ${cone.dec}°` : q ? `Stars matching “${q}”` : 'Stars'}>
+      <Card title={cone && !stars.error ? (cone.frame === 'galactic' ? `Stars within ${cone.radius}° of l ${cone.ra}°, b ${cone.dec}°` : `Stars within ${cone.radius}° of RA ${cone.ra}, Dec ${cone.dec}`) : q ? `Stars matching “${q}”` : 'Stars'}>
         {stars.isPending && <p className="text-sm text-muted">Loading…</p>}
         {data && (
           <StarsTable

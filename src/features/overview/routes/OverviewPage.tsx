@@ -1,3 +1,4 @@
+import { Link } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
 import { useMe } from '../../auth/api/me';
 import { useOverview } from '../api/overview';
@@ -16,6 +17,24 @@ export function OverviewPage() {
     <div className="space-y-6">
       <PageTitle sub={me ? ROLE_INTRO[me.role] : undefined}>{q.data?.survey ?? 'Overview'}</PageTitle>
       {q.error && <Notice tone="bad">{q.error.message}</Notice>}
+      {q.data?.todo && (
+        <Card title="Waiting for you">
+          {q.data.todo.length === 0 ? (
+            <p className="text-sm text-muted" data-testid="todo-empty">Nothing waits for you right now.</p>
+          ) : (
+            <ul className="space-y-2" data-testid="todo">
+              {q.data.todo.map((t) => (
+                <li key={t.kind} className="flex items-baseline gap-3">
+                  <span className="min-w-[2.5rem] text-right text-xl font-semibold text-night">{t.count.toLocaleString('en')}</span>
+                  <Link to={t.link} className="text-sm text-veil underline-offset-2 hover:underline" data-kind={t.kind}>
+                    {t.text.replace(/^\d[\d,]*\s/, '')}
+                  </Link>
+                </li>
+              ))}
+            </ul>
+          )}
+        </Card>
+      )}
       {q.data && (
         <div className="grid gap-4 md:grid-cols-3">
           <Card title="Catalog">
