@@ -87,7 +87,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   const mailer = createMailer(db, config);
   // e-mail is sent after the change has committed and never holds up the request
   const intake = intakeService(db, config, config.intake, deps.readDb ?? db, (batch) => notifyCuratorsOfNewBatch(mailer, db, batch));
-  const measurements = measurementService(db);
+  const measurements = measurementService(db, { crossmatchArcsec: config.intake.crossmatchArcsec });
   const review = reviewService(db, deps.readDb ?? db, (batch, decision, note, counts) => {
     void (async () => {
       const uploader = await db('users').where({ id: batch.uploaded_by }).first('name', 'email');

@@ -7,6 +7,7 @@ import { deriveMeasurement, INDEX_NSIDE, type Derived } from './derive.js';
 import { designation } from './designation.js';
 import { normaliseRow, type CanonicalRow } from './normalise.js';
 import { hiddenBatchIds } from '../intake/visibility.js';
+import { rematchPosition } from './rematch.js';
 
 /** The canonical fields a measurement can be edited in (equatorial frame, fractions, degrees). */
 export const EDITABLE = ['ra_deg', 'dec_deg', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'theta_deg', 'theta_err_deg', 'parallax_mas', 'parallax_err_mas', 'distance_pc', 'distance_err_pc', 'ebv'] as const;
@@ -42,7 +43,7 @@ export function derivedColumns(d: Derived) {
  * Owns a stored measurement's life after intake: validate an edit with the upload schema,
  * re-derive, persist with a version bump, audit — all in one transaction.
  */
-export function measurementService(db: Knex) {
+export function measurementService(db: Knex, opts: { crossmatchArcsec?: number } = {}) {
   async function load(trx: Knex | Knex.Transaction, id: number): Promise<MeasurementRow> {
     // a measurement of a batch still being checked (or failed) does not exist for anyone yet
     const m = await trx('measurements').where({ id }).whereNotIn('batch_id', hiddenBatchIds(trx)).first();
@@ -82,6 +83,20 @@ export function measurementService(db: Knex) {
       after[k] = changes[k];
     }
     await trx('measurements').where({ id: m.id }).update({ ...cols, version: m.version + 1, updated_at: new Date().toISOString(), updated_by: actorId });
+    // a new position re-runs the match: beyond the radius from its star the row is held, untied (server/measurements/rematch.ts)
+    if (('ra_deg' in changes || 'dec_deg' in changes) && m.star_id && m.state !== 'rejected') {
+      const moved = await rematchPosition(trx, { star_id: m.star_id as number }, derived.ra_deg, derived.dec_deg, opts.crossmatchArcsec ?? 1);
+      if (moved.held) {
+        const row = await trx('batch_rows').where({ id: m.batch_row_id }).first('warnings_json');
+        const kept = (row?.warnings_json ? (JSON.parse(row.warnings_json) as { field?: string; message: string }[]) : []).filter((w) => !/held for a curator/.test(w.message));
+        await trx('measurements').where({ id: m.id }).update({ star_id: null, state: 'ambiguous' });
+        await trx('batch_rows').where({ id: m.batch_row_id }).update({ star_id: null, star_match: null, candidates_json: JSON.stringify(moved.candidates), warnings_json: JSON.stringify([...kept, moved.warning]) });
+        before.starId = m.star_id;
+        before.state = m.state;
+        Object.assign(after, { starId: null, state: 'ambiguous', separationArcsec: moved.separationArcsec });
+        warnings.push({ field: 'ra_deg', message: moved.warning!.message });
+      }
+    }
     await recordAudit(trx, { actorId, action, entityType: 'measurement', entityId: m.id, before: { ...before, version: m.version }, after: { ...after, version: m.version + 1 }, reason });
     return { measurement: await load(trx, m.id), warnings };
   }
@@ -166,9 +181,13 @@ export function measurementService(db: Knex) {
           starId = newId as number;
           await recordAudit(trx, { actorId, action: 'star.create', entityType: 'star', entityId: starId, after: { fromMeasurement: id } });
         }
-        await trx('measurements').where({ id }).update({ star_id: starId, state: 'pending', version: m.version + 1, updated_at: new Date().toISOString(), updated_by: actorId });
-        await trx('batch_rows').where({ id: m.batch_row_id }).update({ star_id: starId, star_match: 'curator' });
-        await recordAudit(trx, { actorId, action: 'measurement.attach', entityType: 'measurement', entityId: id, before: { state: 'ambiguous', starId: null }, after: { state: 'pending', starId }, reason });
+        // re-derive with the chosen star: its catalog parallax gives the distance a row without one lacked
+        const { derived, warnings } = await rederive(trx, { ...m, star_id: starId }, {});
+        await trx('measurements').where({ id }).update({ ...derivedColumns(derived), star_id: starId, state: 'pending', version: m.version + 1, updated_at: new Date().toISOString(), updated_by: actorId });
+        const row = await trx('batch_rows').where({ id: m.batch_row_id }).first('warnings_json');
+        const others = (row?.warnings_json ? (JSON.parse(row.warnings_json) as { field?: string; message: string }[]) : []).filter((w) => w.field !== 'parallax_mas' && !/held for a curator/.test(w.message));
+        await trx('batch_rows').where({ id: m.batch_row_id }).update({ star_id: starId, star_match: 'curator', warnings_json: JSON.stringify([...others, ...warnings.filter((w) => w.field === 'parallax_mas')]) });
+        await recordAudit(trx, { actorId, action: 'measurement.attach', entityType: 'measurement', entityId: id, before: { state: 'ambiguous', starId: null, distance_pc: m.distance_pc, distance_method: m.distance_method }, after: { state: 'pending', starId, distance_pc: derived.distance_pc, distance_method: derived.distance_method }, reason });
         return load(trx, id);
       });
     },

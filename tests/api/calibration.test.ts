@@ -333,3 +333,51 @@ describe('recognition by the name in the file', () => {
     expect(cal.calibrations[0].standards[0]).toMatchObject({ name: 'HD  204827', standardName: 'HD 204827', matchedBy: 'name' });
   });
 });
+
+describe('a position edit re-runs the match; attaching a star recomputes the distance', () => {
+  const patch = async (id: number, changes: Record<string, unknown>) => {
+    const m = await t.db('measurements').where({ id }).first();
+    return curator.patch(`/api/v1/measurements/${id}`).send({ changes, version: m.version, reason: 'position check' });
+  };
+  const rowOf = async (batch: number, id: number) => (await curator.get(`/api/v1/batches/${batch}/measurements?limit=100`)).body.rows.find((r: any) => r.id === id);
+
+  it('a small move keeps the star and shows the separation; a large one holds the row, untied', async () => {
+    const id = idsByLine.get(7)!; // KRS SCIENCE B at (100.3, −30.4)
+    const small = await patch(id, { ra_deg: 100.3 + 0.5 / 3600 / Math.cos((30.4 * Math.PI) / 180) });
+    expect(small.status).toBe(200);
+    const r1 = await rowOf(batchId, id);
+    expect(r1.star_name).toBe('KRS SCIENCE B');
+    expect(r1.star_separation_arcsec).toBeCloseTo(0.5, 2); // 0.5″ east at δ = −30.4° (haversine; common practice)
+    expect(r1.state).not.toBe('ambiguous');
+    const far = await patch(id, { ra_deg: 2.5 });
+    expect(far.status).toBe(200);
+    expect(far.body.warnings.map((w: any) => w.message).join(' ')).toMatch(/from KRS SCIENCE B .*held for a curator/);
+    const r2 = await rowOf(batchId, id);
+    expect(r2).toMatchObject({ state: 'ambiguous', star_id: null, candidates: [] });
+    expect(r2.warnings.map((w: any) => w.message).join(' ')).toMatch(/held for a curator/);
+    const hist = (await curator.get(`/api/v1/measurements/${id}/history`)).body.history.at(-1);
+    expect(hist.before).toMatchObject({ ra_deg: expect.any(Number) });
+    expect(hist.after).toMatchObject({ ra_deg: 2.5, starId: null, state: 'ambiguous' });
+  });
+
+  it('attaching a held row without a parallax to a star with one gives it a distance', async () => {
+    const csv = ['name,ra_deg,dec_deg,band,q,u,q_err,u_err,mjd,instrument', 'KRS NOPLX,150.0,10.0,V,0.02,0.01,0.0004,0.0004,61050.2,KR-HAWK'].join('\n');
+    const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(csv), 'no-parallax.csv');
+    expect(up.status).toBeLessThan(300);
+    const [row] = (await curator.get(`/api/v1/batches/${up.body.id}/measurements`)).body.rows;
+    expect(row.distance_pc).toBeNull();
+    // moved onto KRS SCIENCE A (created above with ϖ = 2.0 ± 0.05 mas): held, with that star as the candidate
+    const moved = await patch(row.id, { ra_deg: 100.1, dec_deg: -30.2 });
+    expect(moved.status).toBe(200);
+    const held = await rowOf(up.body.id, row.id);
+    expect(held.state).toBe('ambiguous');
+    expect(held.candidates.map((c: any) => c.name)).toEqual(['KRS SCIENCE A']);
+    const attach = await curator.post(`/api/v1/measurements/${row.id}/resolve`).send({ starId: held.candidates[0].id });
+    expect(attach.status).toBe(200);
+    const after = await rowOf(up.body.id, row.id);
+    // inverse of the zero-point-corrected parallax, ϖ + 0.017 mas (Lindegren et al. 2021): 1000 / 2.017 pc
+    expect(after.distance_pc).toBeCloseTo(1000 / 2.017, 6);
+    expect(after.distance_method).toBe('inverse_parallax');
+    expect(after.warnings.map((w: any) => w.message).join(' ')).not.toMatch(/no parallax/);
+  });
+});
