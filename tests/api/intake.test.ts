@@ -3,6 +3,9 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
+import { icrsToGalactic } from '../../server/science/frames.js';
+import { ang2pixNest } from '../../server/science/healpix.js';
+import { INDEX_NSIDE } from '../../server/measurements/derive.js';
 
 const MESSY = fs.readFileSync(path.resolve('seeds/demo-batches/kestrel-night-messy.csv'));
 const HEADER = 'name,source_id,ra_deg,dec_deg,band,q,u,q_err,u_err,parallax_mas,parallax_err_mas,mjd,instrument';
@@ -141,8 +144,12 @@ describe('a clean batch', () => {
 
   it('two catalog stars within the tolerance → ambiguous, listed, never guessed', async () => {
     const agent = await signedIn(t.app, 'curator');
-    // two stars 0.6" apart, then a row between them without a source_id
-    await upload(agent, [HEADER, 'twin 1,,150.0,-10.0,V,0.01,0.0,0.001,0.001,1,0.05,61000,KR-HAWK', 'twin 2,,150.0,-9.99983,V,0.01,0.0,0.001,0.001,1,0.05,61000,KR-HAWK'].join('\n'), 'twins.csv');
+    // two catalog stars 0.6" apart (rows of one upload that close would be one star), then a row between them without a source_id
+    const now = new Date().toISOString();
+    for (const [name, dec] of [['twin 1', -10.0], ['twin 2', -9.99983]] as const) {
+      const g = icrsToGalactic(150.0, dec);
+      await t.db('stars').insert({ name, source_id: null, ra_deg: 150.0, dec_deg: dec, glon_deg: g.lDeg, glat_deg: g.bDeg, parallax_mas: 1, parallax_err_mas: 0.05, hpx15: ang2pixNest(INDEX_NSIDE, 150.0, dec), created_at: now });
+    }
     const res = await upload(agent, [HEADER, 'which,,150.0,-9.99992,V,0.01,0.0,0.001,0.001,1,0.05,61001,KR-HAWK'].join('\n'), 'which.csv');
     expect(res.body.counts).toMatchObject({ rows: 1, ambiguous: 1, accepted: 0 });
     const row = (await agent.get(`/api/v1/batches/${res.body.id}/rows`)).body.rows[0];
