@@ -1,6 +1,7 @@
 import { useState, type FormEvent } from 'react';
 import { Button, Card, Field, Notice, PageTitle, TextInput } from '../../../components/ui/primitives';
 import { useMe } from '../../auth/api/me';
+import { InstrumentCalibrations } from '../../calibration/components/InstrumentCalibrations';
 import { BANDS, useCreateInstrument, useRegisteredInstruments, useUpdateInstrument, type Band, type RegisteredInstrument } from '../api/instruments';
 
 /** The instrument registry: everyone reads it; admins register instruments and change their bands. */
@@ -25,6 +26,18 @@ export function InstrumentsPage() {
           </table>
         )}
       </Card>
+      {instruments.data && (
+        <Card title="Calibrations from standard stars" actions={<a href="/calibration/standards" className="text-sm text-veil underline-offset-2 hover:underline">Standard stars</a>}>
+          <div className="space-y-5">
+            {instruments.data.instruments.map((i) => (
+              <section key={i.code} className="space-y-1">
+                <h3 className="font-mono text-sm font-medium text-night">{i.code}</h3>
+                <InstrumentCalibrations code={i.code} />
+              </section>
+            ))}
+          </div>
+        </Card>
+      )}
       {isAdmin ? <NewInstrument /> : <p className="text-sm text-muted">An instrument that is not listed can be registered by an admin.</p>}
     </div>
   );
