@@ -7,6 +7,7 @@ import { deriveMeasurement, INDEX_NSIDE, type Derived } from './derive.js';
 import { designation } from './designation.js';
 import { normaliseRow, type CanonicalRow } from './normalise.js';
 import { hiddenBatchIds } from '../intake/visibility.js';
+import { derivedColumns } from './stored.js';
 import { rematchPosition } from './rematch.js';
 
 /** The canonical fields a measurement can be edited in (equatorial frame, fractions, degrees). */
@@ -33,11 +34,8 @@ function canonicalOf(m: MeasurementRow, usePForm: boolean): Record<string, unkno
 
 const toText = (v: unknown) => (v === null || v === undefined ? undefined : String(v));
 
-/** Persisted columns of a derived measurement. */
-export function derivedColumns(d: Derived) {
-  const { flags, ...values } = d;
-  return { ...values, flags_json: flags.length ? JSON.stringify(flags) : null };
-}
+/** Persisted columns of a derived measurement: the one list in stored.ts, shared with intake's bulk writes. */
+export { derivedColumns } from './stored.js';
 
 /**
  * Owns a stored measurement's life after intake: validate an edit with the upload schema,

@@ -1,4 +1,5 @@
 import { NUM, NUM_SLOTS, type PreparedChunk } from '../intake/prepare.js';
+import type { Derived } from './derive.js';
 
 /**
  * The one list of stored columns of a measurement (and of the star and batch row intake writes
@@ -24,4 +25,21 @@ export function measurementValues(c: PreparedChunk, i: number, id: number, starI
     v.push(Number.isNaN(x) ? null : x);
   }
   return v;
+}
+
+/** Text columns of a measurement that come from derivation (the rest of MEAS_COLS is numeric or bookkeeping). */
+export const MEAS_DERIVED_TEXT = ['band', 'instrument', 'distance_method', 'flags_json'] as const;
+
+/**
+ * The stored columns of one derived measurement (a single edit, an attach, a calibration): the
+ * same columns intake writes in bulk (MEAS_NUM + MEAS_DERIVED_TEXT), never more.
+ */
+export function derivedColumns(d: Derived): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  for (const k of MEAS_NUM) out[k] = (d as unknown as Record<string, unknown>)[k] ?? null;
+  out.band = d.band;
+  out.instrument = d.instrument;
+  out.distance_method = d.distance_method;
+  out.flags_json = d.flags.length ? JSON.stringify(d.flags) : null;
+  return out;
 }

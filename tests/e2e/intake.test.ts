@@ -306,7 +306,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
           }
           return 'checking';
         },
-        { timeout: 170_000, intervals: [250] },
+        { timeout: 170_000, interval: 250 },
       )
       .toBe('awaiting_review');
     // at least two different figures while it was checked: the number moved
