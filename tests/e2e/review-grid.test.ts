@@ -105,6 +105,7 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
     expect((await saved).status()).toBe(200);
     const row = grid(page).locator('[role="row"][data-line="8"]');
     await expect.poll(() => row.getAttribute('data-state')).toBe('ambiguous');
+    await cell(page, 8, 'star').getByTestId('held-untied').waitFor(); // no longer shown as tied to its old star
     const m = (await api<{ rows: { line: number; state: string; star_id: number | null; ra_deg: number; warnings: { message: string }[] }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 8)!;
     expect(m).toMatchObject({ state: 'ambiguous', star_id: null, ra_deg: 2.5 });
     expect(m.warnings.map((w) => w.message).join(' ')).toMatch(/from KRS J.* held for a curator/);

@@ -53,6 +53,11 @@ export function useEditMeasurement(batchId: number, callbacks: EditCallbacks = {
     },
     onSuccess: (answer, input) => {
       patchCachedRow(qc, batchId, input.id, (row) => ({ ...rowPatchFromStored(answer.measurement), warnings: mergeWarnings(row.warnings, input.field, answer.warnings ?? []) }));
+      // a new position re-runs the match on the server: the tied star, its separation and the candidates change with it
+      if ((input.field === 'ra_deg' || input.field === 'dec_deg') && answer.measurement.star_id !== undefined) {
+        patchCachedRow(qc, batchId, input.id, (row) => (answer.measurement.star_id === null && row.star_id !== null ? { ...row, star_id: null, star_name: null, star_source_id: null, star_separation_arcsec: null } : row));
+        void qc.invalidateQueries({ queryKey: ['review', 'measurements', batchId] });
+      }
       callbacks.onSaved?.(input, answer);
     },
     onSettled: (_a, _e, input) => {

@@ -785,12 +785,14 @@ function placePopover(cell: Rect, pop: { w: number; h: number }, area: Rect, avo
     [{ top: 0, left: cw + gap }, { left: cell.right + gap, top: cell.top, right: cell.right + gap + pop.w, bottom: cell.top + pop.h }],
     [{ top: 0, right: cw + gap }, { left: cell.left - gap - pop.w, top: cell.top, right: cell.left - gap, bottom: cell.top + pop.h }],
   ];
-  const inside = (r: Rect) => r.left >= area.left && r.right <= area.right && r.top >= area.top && r.bottom <= area.bottom;
-  const fits = candidates.find(([, r]) => inside(r) && !(avoid && overlaps(r, avoid))) ?? candidates.find(([, r]) => !(avoid && overlaps(r, avoid))) ?? candidates[0];
-  // keep it within the grid's sides even when no place fits wholly
-  const [style, r] = fits;
-  const shift = r.right > area.right ? area.right - r.right : r.left < area.left ? area.left - r.left : 0;
-  return shift ? { ...style, transform: `translateX(${shift}px)` } : style;
+  // how far a place reaches outside the visible area (0: wholly inside)
+  const overflow = (r: Rect) => Math.max(0, area.left - r.left) + Math.max(0, r.right - area.right) + Math.max(0, area.top - r.top) + Math.max(0, r.bottom - area.bottom);
+  const free = candidates.filter(([, r]) => !(avoid && overlaps(r, avoid)));
+  const [style, r] = (free.length ? free : candidates).reduce((best, c) => (overflow(c[1]) < overflow(best[1]) ? c : best));
+  // what still sticks out is moved back inside the grid
+  const dx = r.right > area.right ? area.right - r.right : r.left < area.left ? area.left - r.left : 0;
+  const dy = r.bottom > area.bottom ? area.bottom - r.bottom : r.top < area.top ? area.top - r.top : 0;
+  return dx || dy ? { ...style, transform: `translate(${dx}px, ${dy}px)` } : style;
 }
 
 function ProblemPopover({ problem, alignRight, onDismiss, onReload }: { problem: Problem; alignRight: boolean; onDismiss: () => void; onReload: () => void }) {
@@ -804,7 +806,7 @@ function ProblemPopover({ problem, alignRight, onDismiss, onReload }: { problem:
     if (!el || !cellEl || !grid) return;
     const g = grid.getBoundingClientRect();
     const header = grid.querySelector('[role="rowgroup"]')?.getBoundingClientRect();
-    const area = { left: g.left + 2, right: g.left + grid.clientWidth - 2, top: (header?.bottom ?? g.top) + 2, bottom: g.top + grid.clientHeight - 2 };
+    const area = { left: g.left + 1, right: g.left + grid.clientWidth - 1, top: (header?.bottom ?? g.top) - 1, bottom: g.top + grid.clientHeight - 1 };
     const cell = cellEl.getBoundingClientRect();
     const id = grid.getAttribute('aria-activedescendant');
     const activeEl = id ? document.getElementById(id) : null;

@@ -106,6 +106,7 @@ function StarValue({ row }: { row: ReviewRow }) {
       </div>
     );
   }
+  if (!row.star_name && row.state === 'ambiguous') return <span className="text-xs text-amber-deep" data-testid="held-untied">held: no star within reach — attach or make a new one</span>;
   if (!row.star_name) return <span className="text-muted">—</span>;
   const sep = row.star_separation_arcsec;
   const sepText = sep == null ? null : sep >= 3600 ? `${(sep / 3600).toFixed(2)}°` : sep >= 60 ? `${(sep / 60).toFixed(2)}′` : `${sep.toFixed(2)}″`;
