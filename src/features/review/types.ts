@@ -104,6 +104,8 @@ export interface MeasurementFilters {
   band?: string;
   instrument?: string;
   distance_method?: string;
+  /** a quality or plausibility flag (GET /plausibility) */
+  flag?: string;
   /** star name (part of it) or a whole source_id */
   search?: string;
 }

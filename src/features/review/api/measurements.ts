@@ -7,7 +7,7 @@ export const MEASUREMENTS_PAGE = 1000;
 
 export function getBatchMeasurements(batchId: number, p: MeasurementListParams & { offset: number; limit: number }) {
   const qs = new URLSearchParams({ offset: String(p.offset), limit: String(p.limit), sort: p.sort, order: p.order });
-  for (const k of ['state', 'band', 'instrument', 'distance_method'] as const) if (p[k]) qs.set(`filter.${k}`, p[k]!);
+  for (const k of ['state', 'band', 'instrument', 'distance_method', 'flag'] as const) if (p[k]) qs.set(`filter.${k}`, p[k]!);
   if (p.search?.trim()) qs.set('search', p.search.trim());
   return api.get<MeasurementPage>(`/batches/${batchId}/measurements?${qs}`);
 }

@@ -10,6 +10,9 @@ import { measurementStateLabel } from './MeasurementStateBadge';
 const BANDS = ['U', 'B', 'V', 'R', 'I'];
 
 /** Filters on the state, band, instrument and distance-method columns, and a star search. */
+
+/** Quality and plausibility flags the table can be filtered by (GET /plausibility describes them). */
+const REVIEW_FLAGS = ['above_efficiency_envelope', 'above_p_ceiling', 'low_p_snr', 'inconsistent_repeats', 'low_parallax_snr', 'no_distance'];
 export function GridFilters({ filters, onChange, totals }: { filters: MeasurementFilters; onChange: (f: MeasurementFilters) => void; totals?: Record<MeasurementState, number> }) {
   const instruments = useInstruments();
   const bands = instruments.data ? [...new Set(instruments.data.instruments.flatMap((i) => i.bands))].sort((a, b) => BANDS.indexOf(a) - BANDS.indexOf(b)) : BANDS;
@@ -59,6 +62,17 @@ export function GridFilters({ filters, onChange, totals }: { filters: Measuremen
           {DISTANCE_METHODS.map((m) => (
             <option key={m} value={m}>
               {m.replace(/_/g, ' ')}
+            </option>
+          ))}
+        </Select>
+      </label>
+      <label className={field}>
+        flag
+        <Select aria-label="Filter by flag" value={filters.flag ?? ''} onChange={(e) => set('flag')(e.target.value)}>
+          <option value="">any or none</option>
+          {REVIEW_FLAGS.map((f) => (
+            <option key={f} value={f}>
+              {f.replace(/_/g, ' ')}
             </option>
           ))}
         </Select>

@@ -74,9 +74,10 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
       band: filters.band,
       instrument: filters.instrument,
       distance_method: filters.distance_method,
+      flag: filters.flag,
       search: search || undefined,
     };
-  }, [sorting, filters.state, filters.band, filters.instrument, filters.distance_method, search]);
+  }, [sorting, filters.state, filters.band, filters.instrument, filters.distance_method, filters.flag, search]);
 
   const qc = useQueryClient();
   const q = useBatchMeasurements(batchId, params);
@@ -455,7 +456,7 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
                 {hg.headers.map((h) => {
                   const info = COLUMN_INFO[h.column.id];
                   const sorted = h.column.getIsSorted();
-                  const filtered = (h.column.id === 'state' && filters.state) || (h.column.id === 'band' && filters.band) || (h.column.id === 'instrument' && filters.instrument) || (h.column.id === 'distance_method' && filters.distance_method) || (h.column.id === 'star' && filters.search);
+                  const filtered = (h.column.id === 'state' && filters.state) || (h.column.id === 'band' && filters.band) || (h.column.id === 'instrument' && filters.instrument) || (h.column.id === 'distance_method' && filters.distance_method) || (h.column.id === 'star' && filters.search) || (h.column.id === 'notes' && filters.flag);
                   const title = info?.field ? `${info.field.description}${info.field.editable && !readOnly ? ' — editable' : ''}` : COLUMN_TITLES[h.column.id];
                   return (
                     <div
