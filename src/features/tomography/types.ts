@@ -25,6 +25,10 @@ export interface RunParams {
   jumpThresholdDeg: number;
   minSegmentLength: number;
   region: Cone | null;
+  /** every band brought to this one with the Serkowski law (λmax and K recorded beside it) */
+  referenceBand?: string | null;
+  lambdaMaxUm?: number;
+  serkowskiK?: number;
 }
 
 export interface Run {

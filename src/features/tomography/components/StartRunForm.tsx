@@ -29,6 +29,7 @@ const numberOf = (s: string) => (s.trim() === '' ? Number.NaN : Number(s));
 export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }) {
   const [f, setF] = useState<Form>(DEFAULTS);
   const [cone, setCone] = useState(false);
+  const [normalise, setNormalise] = useState(false);
   const start = useStartRun();
   const problems = problemsByField(start.error);
   const set = (k: keyof Form) => (e: { target: { value: string } }) => setF({ ...f, [k]: e.target.value });
@@ -43,6 +44,7 @@ export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }
       draws: numberOf(f.draws),
       jumpThresholdDeg: numberOf(f.jumpThresholdDeg),
       minSegmentLength: numberOf(f.minSegmentLength),
+      ...(normalise ? { referenceBand: f.band } : {}),
       ...(cone ? { region: { ra: numberOf(f.ra), dec: numberOf(f.dec), radius: numberOf(f.radius) } } : {}),
     };
     // JSON has no NaN: a blank number goes as null, which the server refuses naming the field
@@ -77,6 +79,13 @@ export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }
             ))}
           </Select>
         </Field>
+        <label className="flex items-start gap-2 self-end pb-1 text-sm">
+          <input type="checkbox" checked={normalise} onChange={(e) => setNormalise(e.target.checked)} className="mt-1" />
+          <span>
+            Use every band, brought to this one
+            <span className="block text-xs text-muted">Serkowski law, λmax 0.55 µm, K = 0.01 + 1.66 λmax (Whittet et al. 1992); recorded with the run</span>
+          </span>
+        </label>
         <Field label="Min stars per cell" hint="4 to 1000; fewer: skipped" error={problems.minStars}>
           <TextInput inputMode="numeric" value={f.minStars} onChange={set('minStars')} />
         </Field>
