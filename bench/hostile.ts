@@ -22,6 +22,14 @@ async function measure(label: string, f: () => Promise<{ status: number; detail?
 }
 
 try {
+  // the same measure around cheap requests: the stalls the process has anyway (GC, background work)
+  for (let i = 0; i < 3; i++) {
+    await measure('baseline: GET /me, three times in a row', async () => {
+      let status = 0;
+      for (let k = 0; k < 3; k++) status = (await modeler.get('/api/v1/me')).status;
+      return { status };
+    });
+  }
   const cell = `${'1'.repeat(60000)}e${'1'.repeat(60000)}x`;
   const hostile = `${HEADER}\nH,,10.5,20.25,V,${cell},0.01,0.001,0.001,1,0.1,61000,KR-HAWK\nF,,10.6,20.25,V,${cell},0.01,0.001,0.001,1,0.1,61000,KR-HAWK\n`;
   await measure(`upload: two ${Math.round(cell.length / 1000)} KB number cells (${Math.round(hostile.length / 1024)} KB file)`, async () => {

@@ -205,7 +205,7 @@ export interface CsvColumn<R> {
 }
 
 /** Rows per piece of a streamed CSV: the event loop gets a turn between pieces. */
-export const CSV_ROWS_PER_CHUNK = 2000;
+export const CSV_ROWS_PER_CHUNK = 500;
 
 /**
  * A CSV with '# ' comment lines first (provenance, then one line per column with its unit), then

@@ -2,6 +2,8 @@ import type { Knex } from 'knex';
 import { presentCell, type TomographyService } from '../tomography/service.js';
 import { cellMeetsCriteria, type CellCriteria, type CellForOutput, type RunForOutput } from './format.js';
 
+/** Cells whose stored JSON is parsed per event-loop turn. */
+const PARSE_PER_TURN = 200;
 /** Rows read per query while a filtered page is being filled. */
 const SCAN_CHUNK = 2000;
 
@@ -33,10 +35,20 @@ export function skyService(readDb: Knex, tomography: TomographyService) {
       }
     },
 
-    /** Every cell of the run, in ipix order. */
+    /**
+     * Every cell of the run, in ipix order. Each cell's stored result is parsed JSON (layers,
+     * jumps, segments): a large run is parsed a few hundred cells per event-loop turn, so other
+     * requests are answered in between.
+     */
     async allCells(run: RunForOutput): Promise<CellForOutput[]> {
       const rows = await readDb('tomography_cells').where({ run_id: run.id }).orderBy('ipix');
-      return rows.map((r) => presentCell(r) as unknown as CellForOutput);
+      const out: CellForOutput[] = new Array(rows.length);
+      for (let i = 0; i < rows.length; i++) {
+        out[i] = presentCell(rows[i]) as unknown as CellForOutput;
+        rows[i] = null;
+        if (i % PARSE_PER_TURN === PARSE_PER_TURN - 1) await new Promise((r) => setImmediate(r));
+      }
+      return out;
     },
   };
 }
