@@ -61,7 +61,7 @@ import type {
 export interface ResolvedFitOptions {
   method: 'survey' | 'classic';
   placeMinParallaxSnr: number;
-  stepPenaltyParams: number;
+  stepFamilyAlpha: number;
   draws: number;
   minSegmentLength: number;
   jumpThresholdDeg: number;
@@ -78,7 +78,7 @@ export interface ResolvedFitOptions {
 export const DEFAULT_FIT_OPTIONS: Readonly<Omit<ResolvedFitOptions, 'cellId'>> = {
   method: 'survey',
   placeMinParallaxSnr: 5,
-  stepPenaltyParams: 3,
+  stepFamilyAlpha: 0.01,
   draws: 100,
   minSegmentLength: 3,
   jumpThresholdDeg: 30,
@@ -94,7 +94,7 @@ export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
   const r: ResolvedFitOptions = {
     method: o.method ?? DEFAULT_FIT_OPTIONS.method,
     placeMinParallaxSnr: o.placeMinParallaxSnr ?? DEFAULT_FIT_OPTIONS.placeMinParallaxSnr,
-    stepPenaltyParams: o.stepPenaltyParams ?? DEFAULT_FIT_OPTIONS.stepPenaltyParams,
+    stepFamilyAlpha: o.stepFamilyAlpha ?? DEFAULT_FIT_OPTIONS.stepFamilyAlpha,
     draws: o.draws ?? DEFAULT_FIT_OPTIONS.draws,
     minSegmentLength: o.minSegmentLength ?? DEFAULT_FIT_OPTIONS.minSegmentLength,
     jumpThresholdDeg: o.jumpThresholdDeg ?? DEFAULT_FIT_OPTIONS.jumpThresholdDeg,
@@ -124,7 +124,7 @@ export function resolveFitOptions(o: FitOptions = {}): ResolvedFitOptions {
   check('blendAlpha', r.blendAlpha, r.blendAlpha > 0 && r.blendAlpha < 1, 'a number in (0, 1)');
   check('foregroundPenaltyParams', r.foregroundPenaltyParams, r.foregroundPenaltyParams >= 0, 'a number ≥ 0');
   check('placeMinParallaxSnr', r.placeMinParallaxSnr, r.placeMinParallaxSnr >= 0, 'a number ≥ 0');
-  check('stepPenaltyParams', r.stepPenaltyParams, r.stepPenaltyParams >= 0, 'a number ≥ 0');
+  check('stepFamilyAlpha', r.stepFamilyAlpha, r.stepFamilyAlpha > 0 && r.stepFamilyAlpha < 1, 'a number in (0, 1)');
   return r;
 }
 

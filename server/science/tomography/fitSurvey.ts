@@ -20,18 +20,25 @@
  * 3. A break is a layer only when its step is significant. After PELT and blend merging, in every
  *    ordering, the boundary with the smallest step statistic
  *      χ²_step = Δq̄²/(var q̄_a + var q̄_b) + Δū²/(var ū_a + var ū_b)
- *    (the Wald / likelihood-ratio statistic for equal means of two Gaussian samples, 2 dof; var of
- *    each mean from its segment's fitted scatter, 1/Σ 1/(σ_i² + s²)) is removed while it is below
- *    stepPenaltyParams·ln(n) (default 3·ln n: the BIC price, Schwarz 1978, Ann. Stat. 6, 461, of
- *    the parameters a layer adds — its position and its two Stokes amplitudes; the scatter is left
- *    out because a change of scatter alone is not a layer). PELT's own penalty counts the total
- *    cost gain, which a change of scatter with the same mean can pay for (reproduction b); this
- *    test looks at the means only.
+ *    (the Wald statistic for equal means of two Gaussian samples, χ² with 2 dof under no step;
+ *    e.g. Wasserman 2004, All of Statistics, §10.4) is removed while it is below the threshold
+ *    x = 2·ln((n − 1)/α), α = stepFamilyAlpha (default 0.05): the χ²₂ tail is exp(−x/2), so this
+ *    is a test at level α with a Bonferroni correction (Bonferroni 1936) for the n − 1 places a
+ *    break could have been put. The variance of each side's mean is taken at the larger of the two
+ *    sides' fitted scatters, 1/Σ 1/(σ_i² + max(s_a², s_b²)): so a change of scatter alone (the
+ *    quieter side's small variance) cannot make a small difference of means significant, and a
+ *    short segment's maximum-likelihood scatter, biased low, does not inflate the statistic.
+ *    PELT's own penalty counts the total cost gain, which a change of scatter with the same mean
+ *    can pay for (reproduction b); this test looks at the means only.
+ *    The nearest segment is read as polarized (a 'foreground' layer) only when its mean passes the
+ *    same test against zero (and the classic fit's 2·ln n rule): a foreground layer is a layer
+ *    like any other and needs the same evidence.
  * 4. One or two unpolarized stars in front of a cloud. PELT's minimum segment length (3) forces
- *    them into a segment with polarized stars, moving the cloud behind them (reproduction c). So
- *    the nearest segment may be split once more at j < minSegmentLength stars when the first j
- *    stars are consistent with zero polarization (the same χ² test as the clear-foreground test)
- *    and the split pays the BIC penalty; the step test (3) then keeps or removes that break.
+ *    them into a segment with polarized stars, moving the cloud behind them (reproduction c), or
+ *    read the whole nearest segment as polarized, drawing a foreground layer in front of an
+ *    unpolarized nearest star. So the nearest segment is split once more at j < minSegmentLength
+ *    stars when the first j stars are consistent with zero polarization (the clear-foreground
+ *    test) and the step from them to the rest passes the step test (3).
  * 5. Distances. Per layer, the 16/50/84 % points of the break position over the draws with the
  *    reported count and foreground reading (uniform within the gap between the straddling stars,
  *    as in the classic fit). A 'foreground' layer (the nearest placed stars already polarized) is
@@ -102,8 +109,8 @@ class SurveyOrderingFitter {
     this.sigma = new Float64Array(table.n);
     this.solver = new PeltSolver(table.n);
     const lnN = Math.log(Math.max(2, table.n));
-    this.stepThreshold = opt.stepPenaltyParams * lnN;
-    this.clearThreshold = opt.foregroundPenaltyParams * lnN;
+    this.stepThreshold = stepChi2Threshold(table.n, opt.stepFamilyAlpha);
+    this.clearThreshold = Math.max(this.stepThreshold, opt.foregroundPenaltyParams * lnN);
   }
 
   run(): void {
@@ -115,8 +122,11 @@ class SurveyOrderingFitter {
     for (const x of this.breaks) b.push(x);
     b.push(n);
     this.blendsMerged = mergeBlends(this.table, b, this.dist, this.sigma, this.opt);
+    // Split before merging (a mixed nearest segment's large scatter would hide the steps behind
+    // it), and again after (merging can leave the unpolarized stars inside a longer segment).
     this.splitNearest();
     this.mergeWeakSteps();
+    if (this.splitNearest()) this.mergeWeakSteps();
   }
 
   /** χ² of the mean of [a, b) against zero (q̄²/var q̄ + ū²/var ū at the fitted scatter). */
@@ -125,28 +135,64 @@ class SurveyOrderingFitter {
     return (t.selMeanQ * t.selMeanQ) / t.selVarMeanQ + (t.selMeanU * t.selMeanU) / t.selVarMeanU;
   }
 
-  /** χ²_step between [a, b) and [b, c) (2 dof). */
+  /**
+   * 1/Σ 1/(σ_i² + s2) over [a, b) for q and u, into varQ / varU, times m/(m − 1) for m > 1 stars:
+   * the fitted scatter is a maximum-likelihood estimate, which for a mean fitted from the same m
+   * stars understates the variance by (m − 1)/m (Bessel's correction; the REML/ML ratio for a
+   * common mean), and the short segments between true steps are where that matters.
+   */
+  private varMeansAt(a: number, b: number, s2: number): void {
+    const t = this.table;
+    let wq = 0, wu = 0;
+    for (let i = a; i < b; i++) { wq += 1 / (t.vq[i] + s2); wu += 1 / (t.vu[i] + s2); }
+    const m = b - a;
+    const bessel = m > 1 && s2 > 0 ? m / (m - 1) : 1;
+    this.varQ = bessel / wq;
+    this.varU = bessel / wu;
+  }
+  private varQ = 0;
+  private varU = 0;
+
+  /** χ²_step between [a, b) and [b, c) (2 dof), variances at the larger fitted scatter. */
   stepChi2(a: number, b: number, c: number): number {
     const t = this.table.select(a, b);
-    const mq = t.selMeanQ, mu = t.selMeanU, vq = t.selVarMeanQ, vu = t.selVarMeanU;
+    const mq = t.selMeanQ, mu = t.selMeanU, sa = t.selScatterVar;
     t.select(b, c);
-    const dq = t.selMeanQ - mq, du = t.selMeanU - mu;
-    return (dq * dq) / (vq + t.selVarMeanQ) + (du * du) / (vu + t.selVarMeanU);
+    const dq = t.selMeanQ - mq, du = t.selMeanU - mu, sb = t.selScatterVar;
+    this.varMeansAt(a, b, sa);
+    const vqa = this.varQ, vua = this.varU;
+    this.varMeansAt(b, c, sb);
+    return (dq * dq) / (vqa + this.varQ) + (du * du) / (vua + this.varU);
   }
 
-  /** Choice 4: split off j < minSegmentLength unpolarized nearest stars when it pays. */
-  private splitNearest(): void {
+  /**
+   * Choice 4: split off the j < minSegmentLength nearest stars when they are consistent with zero
+   * and the step from them to the rest of the nearest segment passes the step test (the j with
+   * the largest step). PELT's cost gain is not asked for: the segment behind can absorb one or two
+   * unpolarized stars into a larger fitted scatter, which is exactly the case to undo.
+   */
+  private splitNearest(): boolean {
     const b1 = this.bounds[1];
     const m = this.opt.minSegmentLength;
-    if (b1 < 2 || m < 2) return;
-    const whole = this.table.cost(0, b1);
+    if (b1 < 2 || m < 2) return false;
+    const wholePolarized = this.chi2VsZero(0, b1) > this.clearThreshold;
     let best = -1;
-    let bestGain = 0;
+    let bestJoin = false;
+    let bestChi2 = this.stepThreshold;
     for (let j = 1; j < m && j < b1; j++) {
-      const gain = whole - this.table.cost(0, j) - this.table.cost(j, b1) - this.penalty;
-      if (gain > bestGain && this.chi2VsZero(0, j) <= this.clearThreshold) { bestGain = gain; best = j; }
+      if (this.chi2VsZero(0, j) > this.clearThreshold) continue;
+      // With fewer than m stars left of the nearest segment, and those polarized, they belong
+      // with the next segment (the minimum length had forced them in front): test against, and
+      // join, that one. Otherwise the nearest segment as a whole must read as polarized.
+      const join = b1 - j < m && this.bounds.length > 2;
+      if (join ? !(this.chi2VsZero(j, b1) > this.clearThreshold) : !wholePolarized) continue;
+      const c = this.stepChi2(0, j, join ? this.bounds[2] : b1);
+      if (c >= bestChi2) { bestChi2 = c; best = j; bestJoin = join; }
     }
-    if (best > 0) this.bounds.splice(1, 0, best);
+    if (best < 0) return false;
+    if (bestJoin) this.bounds[1] = best;
+    else this.bounds.splice(1, 0, best);
+    return true;
   }
 
   /** Choice 3: remove the least significant boundary while its step is below the threshold. */
@@ -437,6 +483,11 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
     method: 'survey',
     starsNotPlaced,
   };
+}
+
+/** Choice 3: χ²₂ threshold 2·ln((n − 1)/α), Bonferroni over the n − 1 possible break places. */
+export function stepChi2Threshold(n: number, alpha: number): number {
+  return 2 * Math.log(Math.max(1, n - 1) / alpha);
 }
 
 /** Number of sorted values strictly below x. */

@@ -43,8 +43,11 @@ export interface FitOptions {
   method?: 'survey' | 'classic';
   /** 'survey': a star places breaks only when ϖ/σϖ (zero point applied) is at least this. Default 5. */
   placeMinParallaxSnr?: number;
-  /** 'survey': a break is a layer only when its step χ² (2 dof) exceeds this many times ln(n). Default 3. */
-  stepPenaltyParams?: number;
+  /**
+   * 'survey': family-wise level of the step test — a break is a layer only when its step χ² (2 dof)
+   * exceeds 2·ln((n − 1)/α) (Bonferroni over the n − 1 break places). Default 0.05.
+   */
+  stepFamilyAlpha?: number;
   /** Monte Carlo distance draws (0 = nominal fit only). Default 100. */
   draws?: number;
   /** Fewest stars in a segment. Default 3. */
