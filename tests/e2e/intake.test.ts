@@ -183,7 +183,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     fs.writeFileSync(headerOnly, 'name,ra_deg,dec_deg,band,q,u,q_err,u_err\n');
     await page.getByLabel('CSV file').setInputFiles(headerOnly);
     await page.getByRole('button', { name: 'Upload and check' }).click();
-    await expect.poll(() => page.getByTestId('upload-error').textContent()).toBe('The file has a header line but no data rows.');
+    await expect.poll(() => page.getByTestId('upload-error').textContent()).toMatch(/^The file has a header line but no data rows/);
     expect(page.url()).toMatch(/\/upload$/);
 
     const binary = path.join(tmp, 'night.csv');
