@@ -3,7 +3,7 @@
 // them with positions and parallaxes. Same seed → same sky on every machine.
 import { gaussian, mulberry32 } from '../server/science/random.js';
 import { designation } from '../server/measurements/designation.js';
-import { galacticToIcrs } from '../server/science/frames.js';
+import { galacticToIcrs, icrsToGalactic } from '../server/science/frames.js';
 import { ang2pixNest, npixForNside, pix2angNest } from '../server/science/healpix.js';
 
 export interface DemoCloud {
@@ -65,6 +65,7 @@ export function buildDemoSky(opts: { fields?: number; starsPerField?: number; se
     const key = `F${String(f + 1).padStart(3, '0')}`;
     const radiusDeg = 0.4;
     fields.push({ key, raDeg, decDeg, radiusDeg, clouds });
+    const firstStar = stars.length;
     for (let s = 0; s < perField; s++) {
       // position uniform in a small disc around the field centre
       // uniform in a small disc around the field centre, in Galactic coordinates, kept inside the cell
@@ -101,8 +102,63 @@ export function buildDemoSky(opts: { fields?: number; starsPerField?: number; se
         parallaxErrMas: Number(parallaxErrMas.toFixed(4)),
       });
     }
+    const placed = makeCloudsResolvable(clouds, stars.slice(firstStar).map((x) => x.distancePc));
+    clouds.splice(0, clouds.length, ...placed);
   }
   return { fields, stars };
+}
+
+/**
+ * Fewest stars of a field between two successive clouds (and behind the last one) for the demo to
+ * list a cloud: the fit needs a segment of at least 3 stars (minSegmentLength) to see a step, and
+ * one more absorbs a star misordered by its distance error. A demo cloud list the demo's own
+ * stars cannot resolve would show the fit "missing" clouds that no method could find.
+ */
+export const DEMO_MIN_STARS_BETWEEN_CLOUDS = 4;
+
+/**
+ * The demo's clouds moved, where needed, so that each one after the first has at least
+ * DEMO_MIN_STARS_BETWEEN_CLOUDS stars between it and the previous cloud (it is put midway between
+ * the 4th and 5th star behind the previous cloud, rounded to a parsec); a cloud with fewer stars
+ * than that behind it is dropped. The first cloud may have any number of stars in front (with
+ * none, the fit reports it as a 'foreground' layer). Uses no random numbers, so stars and every
+ * later field are unchanged.
+ */
+export function makeCloudsResolvable(clouds: DemoCloud[], starDistancesPc: number[], minBetween = DEMO_MIN_STARS_BETWEEN_CLOUDS): DemoCloud[] {
+  const d = [...starDistancesPc].sort((a, b) => a - b);
+  const out: DemoCloud[] = [];
+  for (const c of clouds) {
+    let at = c.distancePc;
+    const prev = out[out.length - 1];
+    if (prev) {
+      const behindPrev = d.filter((x) => x > prev.distancePc);
+      const between = behindPrev.filter((x) => x < at).length;
+      if (between < minBetween) {
+        if (behindPrev.length < minBetween + 1) break;
+        at = Math.round((behindPrev[minBetween - 1] + behindPrev[minBetween]) / 2);
+      }
+    }
+    if (d.filter((x) => x > at).length < minBetween) break;
+    out.push({ ...c, distancePc: at });
+  }
+  return out;
+}
+
+/**
+ * Agreement of a tomography run with the demo's own cloud list: a cell agrees when its layer count
+ * equals the number of clouds of the field in it. Over-split: more layers than clouds.
+ */
+export function demoCloudAgreement(fields: DemoSkyField[], layersByCell: Map<number, number>, nside = DEMO_FIELD_NSIDE) {
+  let agree = 0, over = 0, under = 0, missing = 0;
+  for (const f of fields) {
+    const g = icrsToGalactic(f.raDeg, f.decDeg);
+    const n = layersByCell.get(ang2pixNest(nside, g.lDeg, g.bDeg));
+    if (n === undefined) { missing++; continue; }
+    if (n === f.clouds.length) agree++;
+    else if (n > f.clouds.length) over++;
+    else under++;
+  }
+  return { fields: fields.length, agree, over, under, missing };
 }
 
 /**

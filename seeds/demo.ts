@@ -13,7 +13,7 @@ import { icrsToGalactic } from '../server/science/frames.js';
 import { ang2pixNest } from '../server/science/healpix.js';
 import { recordAudit } from '../server/audit/service.js';
 import { DEMO_ACCOUNTS, DEMO_INSTRUMENTS } from './demo-scenario.js';
-import { buildDemoSky } from './demo-sky.js';
+import { buildDemoSky, demoCloudAgreement } from './demo-sky.js';
 
 export const INDEX_NSIDE = 32768; // HEALPix order 15
 
@@ -77,8 +77,12 @@ export async function seed(knex: Knex, config: Config = loadConfig(), options: D
   const night = await knex('batches').where({ filename: 'kestrel-night-hawk-R.csv' }).first();
   await reviewService(knex).decide(curator.id, night.id, 'approved', 'Clean night; approved for the demo.');
   if (options.tomography) {
-    const { done } = await tomographyService(knex).start(curator.id, DEMO_TOMOGRAPHY);
+    const { id, done } = await tomographyService(knex).start(curator.id, DEMO_TOMOGRAPHY);
     await done;
+    // How well the run finds the demo's own clouds (seeds/demo-sky.ts), said in the log.
+    const cells = await knex('tomography_cells').where({ run_id: id }).select('ipix', 'n_layers');
+    const a = demoCloudAgreement(buildDemoSky().fields, new Map(cells.map((c) => [Number(c.ipix), Number(c.n_layers)])), DEMO_TOMOGRAPHY.nside);
+    console.log(`demo tomography run ${id}: layer count agrees with the demo's cloud list in ${a.agree} of ${a.fields} fields (${((100 * a.agree) / a.fields).toFixed(1)} %; ${a.over} over-split, ${a.under} under-split, ${a.missing} without a cell)`);
   }
 }
 
