@@ -139,4 +139,38 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
     await page.keyboard.press('Escape');
     await ctx.close();
   });
+
+  it('the Overview shows each role its to-do; the uploader reads the decision note and can send a corrected file', async () => {
+    const obs = await signInPage(browser, live.url, 'observer', { width: 1280, height: 900 });
+    await obs.page.goto(`${live.url}/`);
+    const todo = obs.page.getByTestId('todo');
+    await todo.waitFor();
+    const link = todo.locator('a[data-kind="needs_mapping"]');
+    expect(await link.textContent()).toBe('batch needs your column mapping');
+    expect(await todo.locator('li').filter({ has: obs.page.locator('a[data-kind="needs_mapping"]') }).textContent()).toBe('1batch needs your column mapping');
+    await obs.page.screenshot({ path: path.join(SCREENSHOTS, 'overview-observer.png') });
+    await link.click();
+    await obs.page.waitForURL(/\/batches\/\d+$/);
+
+    const cur = await signInPage(browser, live.url, 'curator', { width: 1280, height: 900 });
+    await cur.page.goto(`${live.url}/`);
+    await cur.page.getByTestId('todo').locator('a[data-kind="review"]').waitFor();
+    const returned = await api(cur.page, 'POST', `/batches/${batchId}/reject`, { note: 'Line 8: the RA was typed in degrees of the wrong field; please send the night again.' });
+    expect(returned.status).toBe(200);
+
+    await obs.page.goto(`${live.url}/batches/${batchId}`);
+    const note = obs.page.getByTestId('decision-note');
+    await note.waitFor();
+    expect(await obs.page.getByTestId('decision-note-text').textContent()).toBe('Line 8: the RA was typed in degrees of the wrong field; please send the night again.');
+    await note.getByRole('button', { name: 'Send a corrected file' }).waitFor();
+    await note.screenshot({ path: path.join(SCREENSHOTS, 'decision-note.png') });
+    const csv = fs.readFileSync(path.resolve('seeds/demo-batches/kestrel-standards-V.csv'), 'utf8').replace('61040.12000', '61040.12500');
+    const linked = obs.page.waitForResponse((r) => r.url().endsWith('/replaces'));
+    await obs.page.getByTestId('corrected-file').setInputFiles({ name: 'kestrel-standards-V-fixed.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) });
+    expect((await linked).status()).toBe(200);
+    await obs.page.waitForURL((u) => !u.pathname.endsWith(`/batches/${batchId}`));
+    await obs.page.getByText(`batch ${batchId} (kestrel-standards-V.csv)`).waitFor();
+    await obs.ctx.close();
+    await cur.ctx.close();
+  });
 });
