@@ -381,3 +381,19 @@ describe('a position edit re-runs the match; attaching a star recomputes the dis
     expect(after.warnings.map((w: any) => w.message).join(' ')).not.toMatch(/no parallax/);
   });
 });
+
+describe('recognition by position', () => {
+  it('a row within 5″ of a recorded position is that standard, whatever its name; 8″ away it is not', async () => {
+    const add = await curator.post('/api/v1/standard-stars').send({ name: 'KRS REF 1', band: 'V', pPct: 0.02, raDeg: 120.0, decDeg: 5.0, source: 'invented reference for this test' });
+    expect(add.status).toBe(201);
+    const off = (arcsec: number) => (120.0 + arcsec / 3600 / Math.cos((5 * Math.PI) / 180)).toFixed(7);
+    const csv = [HEADER, ['anonymous', off(3), 5.0, 'V', 0.001, 0.0005, 0.0003, 0.0003, 1.0, 0.05, 61060.2, 'KR-HAWK'].join(','), ['other', off(8), 5.0, 'V', 0.001, 0.0005, 0.0003, 0.0003, 1.0, 0.05, 61060.21, 'KR-HAWK'].join(',')].join('\n');
+    const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(csv), 'by-position.csv');
+    expect(up.status).toBeLessThan(300);
+    const cal = (await curator.get(`/api/v1/batches/${up.body.id}/calibration`)).body;
+    expect(cal.calibrations).toHaveLength(1);
+    expect(cal.calibrations[0].standards).toHaveLength(1);
+    expect(cal.calibrations[0].standards[0]).toMatchObject({ line: 2, standardName: 'KRS REF 1', matchedBy: 'position', kind: 'unpolarized' });
+    expect(cal.calibrations[0].instrumentalQ).toBeCloseTo(0.001, 12); // one unpolarized standard: its own (q, u)
+  });
+});
