@@ -95,7 +95,9 @@ export class CheckRunner {
   }
 
   private spawn(): Worker {
-    const w = startModuleWorker(import.meta.url, 'check-worker', { dbFile: this.dbFile, opts: this.opts });
+    // the check's memory is bounded by its chunk; a cap keeps V8 from growing its heap lazily
+    // on a million-row batch (a worker over it ends and the batch is checked again, then failed)
+    const w = startModuleWorker(import.meta.url, 'check-worker', { dbFile: this.dbFile, opts: this.opts }, { maxOldGenerationSizeMb: 384 });
     this.worker = w;
     w.on('message', (m: ToRunner) => {
       if (m.kind === 'progress') this.live.set(m.batchId, m);
