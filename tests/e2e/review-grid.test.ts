@@ -173,4 +173,26 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
     await obs.ctx.close();
     await cur.ctx.close();
   });
+
+  it('the standard stars page lists each reference with its source; the catalog cone takes Galactic l, b', async () => {
+    const { ctx, page } = await signInPage(browser, live.url, 'curator', { width: 1280, height: 900 });
+    await page.goto(`${live.url}/calibration/standards`);
+    const table = page.getByTestId('standards-table');
+    await table.locator('tr').filter({ hasText: 'BD+59 389' }).first().waitFor();
+    expect(await table.locator('tr').filter({ hasText: 'HD 204827' }).first().textContent()).toContain('from memory');
+    await page.screenshot({ path: path.join(SCREENSHOTS, 'standard-stars.png'), fullPage: true });
+    const star = await live.t.db('stars').orderBy('id').first();
+    await page.goto(`${live.url}/catalog`);
+    await page.getByLabel('Centre given in').selectOption('galactic');
+    await page.getByLabel('l [deg]').fill(star.glon_deg.toFixed(5));
+    await page.getByLabel('b [deg]').fill(star.glat_deg.toFixed(5));
+    await page.getByLabel('Radius [deg]').fill('0.01');
+    await page.getByRole('button', { name: 'Find stars' }).click();
+    await page.waitForURL(/[?&]l=/);
+    // the answer is the cone (a few stars, nearest first with their separation), not the whole list shown before it
+    await expect.poll(() => page.locator('table tbody tr').count()).toBeLessThan(5);
+    expect(await page.locator('table tbody tr').first().textContent()).toContain(star.name);
+    await page.screenshot({ path: path.join(SCREENSHOTS, 'catalog-galactic-cone.png') });
+    await ctx.close();
+  });
 });
