@@ -19,6 +19,7 @@ export default defineConfig({
     root: process.cwd(),
     include: ['tests/**/*.test.ts'],
     environment: 'node',
+    setupFiles: ['tests/helpers/setup.ts'],
     // sized for a loaded 2-core machine; browser tests raise their own (tests/helpers/browser.ts)
     testTimeout: 60_000,
     hookTimeout: 180_000,
