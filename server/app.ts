@@ -134,7 +134,10 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   api.use(mailRoutes({ db, mailer, config }));
   api.use(tokenRoutes({ tokens }));
   api.use(maskRoutes({ sky }));
-  api.use(calibrationRoutes({ db, calibration: calibrationService(db, deps.readDb ?? db), plausibility: plausibilityService(db, deps.readDb ?? db) }));
+  const calibration = calibrationService(db, deps.readDb ?? db);
+  // a calibration a stopped server left part-way applied (or reverted) is put right from its stored values
+  calibration.recover().catch((e) => console.error('calibration recovery', e));
+  api.use(calibrationRoutes({ db, calibration, plausibility: plausibilityService(db, deps.readDb ?? db) }));
   api.use(decisionRoutes({ db }));
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);

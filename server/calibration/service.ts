@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
+import { bulkInsertRows, isSqlite } from '../dialect.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import { deriveMeasurement, type Derived } from '../measurements/derive.js';
 import type { CanonicalRow } from '../measurements/normalise.js';
@@ -68,7 +69,7 @@ export interface StandardResidual {
 
 export interface CalibrationGroup {
   id: number | null;
-  state: 'derived' | 'applied' | 'reverted';
+  state: 'derived' | 'applied' | 'reverted' | 'applying' | 'reverting' | 'failed';
   instrument: string;
   band: string;
   night: string | null;
@@ -120,12 +121,33 @@ function canonicalWithStokes(m: Meas, s: { q: number; u: number; qErr: number; u
 const SNAPSHOT = ['q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'q_gal_err', 'u_gal_err', 'theta_gal_deg', 'flags_json', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'distance_method', 'parallax_mas', 'parallax_err_mas', 'version'];
 const snapshot = (m: Meas) => Object.fromEntries(SNAPSHOT.map((k) => [k, m[k] ?? null]));
 
+/** Rows per write transaction to start with; then sized to about CHUNK_BUDGET_MS each. */
+const FIRST_CHUNK_ROWS = 250;
+const MAX_CHUNK_ROWS = 2000;
+const CHUNK_BUDGET_MS = 25;
+
+/** Write transactions of apply, revert and recovery: how many and the longest (ms), for benches. */
+export const calibrationWriteStats = { transactions: 0, longestMs: 0, totalMs: 0 };
+
+/** Calibrations this process is applying or reverting now (per database), so recovery leaves them alone. */
+const activeByDb = new WeakMap<object, Set<number>>();
+const active = (db: Knex) => {
+  let s = activeByDb.get(db);
+  if (!s) activeByDb.set(db, (s = new Set()));
+  return s;
+};
+const recoveries = new WeakMap<object, Promise<void>>();
+const updateStatements = new WeakMap<object, Map<string, import('better-sqlite3').Statement>>();
+const sqliteValue = (v: unknown) => (v === undefined ? null : typeof v === 'boolean' ? (v ? 1 : 0) : v);
+
 /**
  * Calibration from standard stars: recognise a batch's standard rows, derive per instrument, band and
  * night the instrumental (q, u) and the angle zero-point, apply them to every row of that group as one
- * audited transformation (values before and after kept per row), and revert.
+ * audited transformation (values before and after kept per row), and revert. Rows are written in
+ * short transactions (see apply). `opts` (tests): the first chunk's row count, and a step awaited
+ * after each committed chunk.
  */
-export function calibrationService(db: Knex, readDb: Knex = db) {
+export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChunkRows?: number; afterChunk?: (rowsDone: number) => Promise<void> } = {}) {
   async function standards(k: Knex | Knex.Transaction = readDb): Promise<StandardStar[]> {
     return (await k('standard_stars').orderBy(['name_key', 'band'])).map(toStandard);
   }
@@ -262,6 +284,162 @@ export function calibrationService(db: Knex, readDb: Knex = db) {
     return new Map<number, string>(rows.map((u: any) => [u.id, u.name]));
   }
 
+  /** One short write transaction, timed (calibrationWriteStats). */
+  async function writeTx<T>(work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {
+    const t0 = performance.now();
+    try {
+      return await db.transaction(work);
+    } finally {
+      const ms = performance.now() - t0;
+      calibrationWriteStats.transactions++;
+      calibrationWriteStats.totalMs += ms;
+      calibrationWriteStats.longestMs = Math.max(calibrationWriteStats.longestMs, ms);
+    }
+  }
+
+  /**
+   * Work through items in short write transactions of about CHUNK_BUDGET_MS each (the chunk size
+   * follows the time the last one took), giving the event loop back between them.
+   */
+  async function inChunks<T>(items: T[], work: (trx: Knex.Transaction, chunk: T[]) => Promise<void>): Promise<void> {
+    let size = opts.firstChunkRows ?? FIRST_CHUNK_ROWS;
+    for (let i = 0; i < items.length; ) {
+      await new Promise((r) => setImmediate(r));
+      const chunk = items.slice(i, i + size);
+      const t0 = performance.now();
+      await writeTx((trx) => work(trx, chunk));
+      const ms = performance.now() - t0;
+      i += chunk.length;
+      size = Math.max(opts.firstChunkRows ?? 50, Math.min(MAX_CHUNK_ROWS, Math.round(chunk.length * Math.min(2, CHUNK_BUDGET_MS / Math.max(ms, 1)))));
+      if (opts.afterChunk) await opts.afterChunk(i);
+    }
+  }
+
+  function refuseBusy(batchId: number, c: any): never {
+    if (c.state === 'applied') throw new AppError(409, 'already_calibrated', `Batch ${batchId} is already calibrated (calibration ${c.id}, applied ${c.applied_at}); revert it first to apply again.`, { calibrationId: c.id });
+    throw new AppError(409, 'calibration_in_progress', `Batch ${batchId}'s calibration ${c.id} is being ${c.state === 'applying' ? 'applied' : 'reverted'} right now; try again when that has finished.`, { calibrationId: c.id, state: c.state });
+  }
+
+  const editedSince = (ids: number[]) =>
+    new AppError(409, 'edited_since', `${ids.length} calibrated measurement(s) were changed after the calibration (e.g. ${ids.slice(0, 5).join(', ')}); revert those edits first.`, { ids });
+
+  type Link = { id: number; calibration_id: number; measurement_id: number; before: Record<string, unknown> & { version: number }; after: Record<string, unknown> & { version: number } };
+
+  /** The rows a calibration changed, with their values before and after, read in pages (the event loop breathes between them). */
+  async function loadLinks(calIds: number[]): Promise<Link[]> {
+    const out: Link[] = [];
+    for (let last = 0; ; ) {
+      const page = await readDb('calibration_rows').whereIn('calibration_id', calIds).where('id', '>', last).orderBy('id').limit(2000);
+      for (const l of page) out.push({ id: l.id, calibration_id: l.calibration_id, measurement_id: l.measurement_id, before: JSON.parse(l.before_json), after: JSON.parse(l.after_json) });
+      if (page.length < 2000) return out;
+      last = page[page.length - 1].id;
+      await new Promise((r) => setImmediate(r));
+    }
+  }
+
+  /** UPDATE measurements by id, one prepared statement per column set (SQLite), else one query per row. */
+  async function updateMeasurements(trx: Knex.Transaction, rows: Record<string, unknown>[]) {
+    if (!rows.length) return;
+    if (!isSqlite(db)) {
+      for (const { id, ...values } of rows) await trx('measurements').where({ id }).update(values);
+      return;
+    }
+    const conn = (await (trx as any).client.acquireConnection()) as import('better-sqlite3').Database;
+    let cache = updateStatements.get(conn);
+    if (!cache) updateStatements.set(conn, (cache = new Map()));
+    for (const r of rows) {
+      const cols = Object.keys(r).filter((k) => k !== 'id');
+      const sql = `UPDATE "measurements" SET ${cols.map((c) => `"${c}" = ?`).join(', ')} WHERE "id" = ?`;
+      let stmt = cache.get(sql);
+      if (!stmt) cache.set(sql, (stmt = conn.prepare(sql)));
+      stmt.run([...cols.map((c) => sqliteValue(r[c])), r.id]);
+    }
+  }
+
+  /**
+   * Undo an apply that did not finish: rows still as the apply left them get their values before
+   * back; a row edited since is left as edited and named. The calibrations become `failed`.
+   */
+  async function rollBackApply(calIds: number[], why: string, actorId: number | null) {
+    const links = await loadLinks(calIds);
+    const left: number[] = [];
+    const now = new Date().toISOString();
+    await inChunks(links, async (trx, chunk) => {
+      const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
+      const updates: Record<string, unknown>[] = [];
+      const audits: Parameters<typeof recordAudit>[1] = [];
+      for (const l of chunk) {
+        const m = cur.get(l.measurement_id);
+        if (!m) continue;
+        if (m.calibration_id !== l.calibration_id || m.version !== l.after.version) {
+          left.push(l.measurement_id);
+          continue;
+        }
+        const { version: _v, ...values } = l.before;
+        updates.push({ ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
+        audits.push({ actorId, action: 'measurement.calibration_rollback', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: `calibration ${l.calibration_id} did not finish: ${why}` });
+      }
+      await updateMeasurements(trx, updates);
+      await recordAudit(trx, audits);
+    });
+    const reason = why + (left.length ? `; ${left.length} row(s) edited after being calibrated were left as edited (e.g. ${left.slice(0, 5).join(', ')})` : '');
+    await writeTx(async (trx) => {
+      await trx('calibrations').whereIn('id', calIds).where({ state: 'applying' }).update({ state: 'failed', failure_reason: reason });
+      await recordAudit(trx, calIds.map((id) => ({ actorId, action: 'calibration.fail', entityType: 'calibration', entityId: id, before: { state: 'applying' }, after: { state: 'failed', rowsRestored: links.length - left.length, rowsLeft: left }, reason })));
+    });
+  }
+
+  /**
+   * Undo a revert that did not finish: rows it restored get their calibrated values back (a
+   * version bump; the stored "after" follows, so a later revert checks against it); the calibrations are `applied` again.
+   */
+  async function rollBackRevert(calIds: number[], actorId: number | null, why: string) {
+    const links = await loadLinks(calIds);
+    const left: number[] = [];
+    const now = new Date().toISOString();
+    await inChunks(links, async (trx, chunk) => {
+      const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
+      const updates: Record<string, unknown>[] = [];
+      const audits: Parameters<typeof recordAudit>[1] = [];
+      for (const l of chunk) {
+        const m = cur.get(l.measurement_id);
+        if (!m || (m.calibration_id === l.calibration_id && m.version === l.after.version)) continue; // not reached by the revert
+        if (m.calibration_id !== null || m.version !== l.after.version + 1) {
+          left.push(l.measurement_id);
+          continue;
+        }
+        const { version: _v, ...values } = l.after;
+        const after = { ...l.after, version: m.version + 1 };
+        updates.push({ ...values, calibration_id: l.calibration_id, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
+        await trx('calibration_rows').where({ id: l.id }).update({ after_json: JSON.stringify(after) });
+        audits.push({ actorId, action: 'measurement.calibration_revert_undone', entityType: 'measurement', entityId: m.id, before: snapshot(m), after: { ...after, calibrationId: l.calibration_id }, reason: `revert of calibration ${l.calibration_id} did not finish: ${why}` });
+      }
+      await updateMeasurements(trx, updates);
+      await recordAudit(trx, audits);
+    });
+    const reason = why + (left.length ? `; ${left.length} row(s) edited after being restored were left as edited (e.g. ${left.slice(0, 5).join(', ')})` : '');
+    await writeTx(async (trx) => {
+      await trx('calibrations').whereIn('id', calIds).where({ state: 'reverting' }).update({ state: 'applied' });
+      await recordAudit(trx, calIds.map((id) => ({ actorId, action: 'calibration.revert_abandoned', entityType: 'calibration', entityId: id, before: { state: 'reverting' }, after: { state: 'applied', rowsLeft: left }, reason })));
+    });
+  }
+
+  /** Calibrations left `applying` or `reverting` by a process that is gone (not this one's own work) are put right, one recovery at a time. */
+  async function recoverStuck(batchId: number | null): Promise<void> {
+    const prev = recoveries.get(db) ?? Promise.resolve();
+    const run = prev.catch(() => undefined).then(async () => {
+      const q = db('calibrations').whereIn('state', ['applying', 'reverting']).orderBy('id');
+      if (batchId !== null) q.where({ batch_id: batchId });
+      const stuck = ((await q) as any[]).filter((c) => !active(db).has(c.id));
+      const applying = stuck.filter((c) => c.state === 'applying').map((c) => c.id as number);
+      const reverting = stuck.filter((c) => c.state === 'reverting').map((c) => c.id as number);
+      if (applying.length) await rollBackApply(applying, 'interrupted while applying (the server stopped part-way); the rows written were restored', null);
+      if (reverting.length) await rollBackRevert(reverting, null, 'interrupted while reverting (the server stopped part-way); the calibration stays applied');
+    });
+    recoveries.set(db, run);
+    return run;
+  }
+
   return {
     standards: () => standards(),
 
@@ -288,99 +466,184 @@ export function calibrationService(db: Knex, readDb: Knex = db) {
 
     /** GET …/calibration: the applied calibration if there is one, else what the standards give now. */
     async forBatch(batchId: number) {
-      const applied = await readDb('calibrations').where({ batch_id: batchId, state: 'applied' }).orderBy('id');
+      let moving = await readDb('calibrations').where({ batch_id: batchId }).whereIn('state', ['applying', 'reverting']).orderBy('id');
+      if (moving.some((c: any) => !active(db).has(c.id))) {
+        await recoverStuck(batchId);
+        moving = await readDb('calibrations').where({ batch_id: batchId }).whereIn('state', ['applying', 'reverting']).orderBy('id');
+      }
+      // being applied or reverted now: the stored calibrations with that state, never "applied"
+      // (the rows are part-way) and never derived afresh from part-calibrated values
+      const applied = moving.length ? moving : await readDb('calibrations').where({ batch_id: batchId, state: 'applied' }).orderBy('id');
       if (applied.length) {
         const users = await userNames(readDb, applied.map((c: any) => c.applied_by));
         const b = await readDb('batches').where({ id: batchId }).first('id');
         if (!b) throw notFound(`Batch ${batchId}`);
         const total = await readDb('measurements').where({ batch_id: batchId }).count({ n: '*' }).first();
         const calibrated = applied.reduce((s: number, c: any) => s + c.rows_calibrated, 0);
-        return { batchId, applied: true, calibrations: applied.map((c: any) => fromStored(c, users)), uncalibratedRows: Number(total?.n ?? 0) - calibrated };
+        return { batchId, applied: !moving.length, calibrations: applied.map((c: any) => fromStored(c, users)), uncalibratedRows: Number(total?.n ?? 0) - calibrated };
       }
       const { calibrations, uncalibrated } = await derive(readDb, batchId);
       return { batchId, applied: false, calibrations, uncalibratedRows: uncalibrated.reduce((s, u) => s + u.rows, 0) };
     },
 
-    /** Apply every derived calibration of the batch once, as one audited transaction. */
+    /**
+     * Apply every derived calibration of the batch once. The rows are written in short
+     * transactions (a calibration is `applying` meanwhile; a second apply is a 409), then the
+     * calibrations become `applied` in a last short one. A failure part-way rolls the written
+     * rows back from their stored values before and marks the calibration `failed`.
+     */
     async apply(actorId: number, batchId: number, reason: string | null) {
-      return db.transaction(async (trx) => {
-        const already = await trx('calibrations').where({ batch_id: batchId, state: 'applied' }).first();
-        if (already) throw new AppError(409, 'already_calibrated', `Batch ${batchId} is already calibrated (calibration ${already.id}, applied ${already.applied_at}); revert it first to apply again.`, { calibrationId: already.id });
-        const { groups, calibrations } = await derive(trx, batchId);
-        const usable = calibrations.filter((c) => c.zeroPointDeg !== null || c.instrumentalQ !== null);
-        if (!usable.length) throw new AppError(409, 'no_standards', `Batch ${batchId} has no usable standard-star rows: nothing to calibrate with (recognised standards: ${calibrations.reduce((s, c) => s + c.standards.length, 0)}).`);
-        const now = new Date().toISOString();
-        const audits: Parameters<typeof recordAudit>[1] = [];
-        const out: { id: number; instrument: string; band: string; night: string | null; rowsCalibrated: number }[] = [];
+      await recoverStuck(batchId);
+      const busy = await db('calibrations').where({ batch_id: batchId }).whereIn('state', ['applied', 'applying', 'reverting']).orderBy('id').first();
+      if (busy) refuseBusy(batchId, busy);
+      // derived outside any write transaction; the claim below checks nothing it used has moved
+      const { groups, calibrations } = await derive(readDb, batchId);
+      const usable = calibrations.filter((c) => c.zeroPointDeg !== null || c.instrumentalQ !== null);
+      if (!usable.length) throw new AppError(409, 'no_standards', `Batch ${batchId} has no usable standard-star rows: nothing to calibrate with (recognised standards: ${calibrations.reduce((s, c) => s + c.standards.length, 0)}).`);
+      const stdVersions = new Map<number, number>();
+      for (const c of usable) for (const s of c.standards) stdVersions.set(s.measurementId, groups.get(groupKey(c.instrument, c.band, c.night))!.rows.find((r) => r.id === s.measurementId)!.version);
+      const now = new Date().toISOString();
+      const mine = active(db);
+      const claimed = await writeTx(async (trx) => {
+        const again = await trx('calibrations').where({ batch_id: batchId }).whereIn('state', ['applied', 'applying', 'reverting']).orderBy('id').first();
+        if (again) refuseBusy(batchId, again);
+        const ids = [...stdVersions.keys()];
+        const current = ids.length ? await trx('measurements').whereIn('id', ids).select('id', 'version') : [];
+        if (current.some((m: any) => stdVersions.get(m.id) !== m.version)) throw new AppError(409, 'standards_changed', `A standard-star row of batch ${batchId} was edited while the calibration was being derived; apply again.`);
+        const out: { id: number; c: CalibrationGroup; rowIds: number[] }[] = [];
         for (const c of usable) {
           const g = groups.get(groupKey(c.instrument, c.band, c.night))!;
-          const terms: CalibrationTerms = {
-            instrumentalQ: c.instrumentalQ ?? 0, instrumentalU: c.instrumentalU ?? 0, instrumentalQErr: c.instrumentalQErr ?? 0, instrumentalUErr: c.instrumentalUErr ?? 0,
-            zeroPointDeg: c.zeroPointDeg ?? 0, zeroPointErrDeg: c.zeroPointErrDeg ?? 0,
-          };
           const [insId] = await trx('calibrations').insert({
             batch_id: batchId, instrument: c.instrument, band: c.band, night: c.night, zero_point_deg: c.zeroPointDeg, zero_point_err_deg: c.zeroPointErrDeg,
             instrumental_q: c.instrumentalQ, instrumental_u: c.instrumentalU, instrumental_q_err: c.instrumentalQErr, instrumental_u_err: c.instrumentalUErr,
             standards_json: JSON.stringify({ standards: c.standards, nPolarized: c.nPolarized, nUnpolarized: c.nUnpolarized, rows: c.rows, instrumentalChi2: c.instrumentalChi2, instrumentalDof: c.instrumentalDof, zeroPointScatterDeg: c.zeroPointScatterDeg }),
-            state: 'applied', rows_calibrated: g.rows.length, applied_by: actorId, applied_at: now,
+            state: 'applying', rows_calibrated: g.rows.length, applied_by: actorId, applied_at: now,
           });
-          const calId = typeof insId === 'object' ? (insId as any).id : (insId as number);
-          const starIds = [...new Set(g.rows.map((r) => r.star_id).filter((x): x is number => x !== null))];
-          const stars = new Map<number, any>();
-          for (let i = 0; i < starIds.length; i += 900) for (const s of await trx('stars').whereIn('id', starIds.slice(i, i + 900)).select('id', 'parallax_mas', 'parallax_err_mas')) stars.set(s.id, s);
-          const links: Record<string, unknown>[] = [];
-          for (const m of g.rows) {
-            const cal = applyCalibration({ q: m.q, u: m.u, qErr: m.q_err, uErr: m.u_err }, terms);
-            const star = m.star_id ? stars.get(m.star_id) : null;
-            const fallback = star && star.parallax_mas !== null && star.parallax_err_mas !== null ? { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas } : null;
-            const { derived } = deriveMeasurement(canonicalWithStokes(m, cal), fallback);
-            const cols = derivedColumns(derived);
-            const before = snapshot(m);
-            const afterRow = { ...m, ...cols, version: m.version + 1 };
-            const after = snapshot(afterRow);
-            await trx('measurements').where({ id: m.id }).update({ ...cols, calibration_id: calId, version: m.version + 1, updated_at: now, updated_by: actorId });
-            links.push({ calibration_id: calId, measurement_id: m.id, before_json: JSON.stringify(before), after_json: JSON.stringify(after) });
-            audits.push({ actorId, action: 'measurement.calibrate', entityType: 'measurement', entityId: m.id, before, after: { ...after, calibrationId: calId }, reason: reason ?? `calibration ${calId} of batch ${batchId} (${c.instrument} ${c.band} ${c.night ?? 'no epoch'})` });
-          }
-          await trx.batchInsert('calibration_rows', links as any[], 300);
-          audits.push({ actorId, action: 'calibration.apply', entityType: 'calibration', entityId: calId, after: { batchId, instrument: c.instrument, band: c.band, night: c.night, zeroPointDeg: c.zeroPointDeg, zeroPointErrDeg: c.zeroPointErrDeg, instrumentalQ: c.instrumentalQ, instrumentalU: c.instrumentalU, rows: g.rows.length }, reason });
-          out.push({ id: calId, instrument: c.instrument, band: c.band, night: c.night, rowsCalibrated: g.rows.length });
+          out.push({ id: typeof insId === 'object' ? (insId as any).id : (insId as number), c, rowIds: g.rows.map((r) => r.id) });
         }
-        audits.push({ actorId, action: 'batch.calibrate', entityType: 'batch', entityId: batchId, after: { calibrations: out.map((o) => o.id), rows: out.reduce((s, o) => s + o.rowsCalibrated, 0) }, reason });
-        await recordAudit(trx, audits);
-        return { batchId, applied: out, rowsCalibrated: out.reduce((s, o) => s + o.rowsCalibrated, 0) };
+        // ours before the commit makes them visible: a recovery never takes them for stuck
+        for (const x of out) mine.add(x.id);
+        return out;
       });
+      try {
+        for (const { id: calId, c, rowIds } of claimed) {
+          const terms: CalibrationTerms = {
+            instrumentalQ: c.instrumentalQ ?? 0, instrumentalU: c.instrumentalU ?? 0, instrumentalQErr: c.instrumentalQErr ?? 0, instrumentalUErr: c.instrumentalUErr ?? 0,
+            zeroPointDeg: c.zeroPointDeg ?? 0, zeroPointErrDeg: c.zeroPointErrDeg ?? 0,
+          };
+          const rowReason = reason ?? `calibration ${calId} of batch ${batchId} (${c.instrument} ${c.band} ${c.night ?? 'no epoch'})`;
+          await inChunks(rowIds, async (trx, ids) => {
+            // the rows as they are now (an edit between chunks is calibrated, not overwritten)
+            const ms = (await trx('measurements').whereIn('id', ids)) as Meas[];
+            const starIds = [...new Set(ms.map((m) => m.star_id).filter((x): x is number => x !== null))];
+            const stars = new Map<number, any>(starIds.length ? (await trx('stars').whereIn('id', starIds).select('id', 'parallax_mas', 'parallax_err_mas')).map((s: any) => [s.id, s]) : []);
+            const updates: Record<string, unknown>[] = [];
+            const links: unknown[][] = [];
+            const audits: Parameters<typeof recordAudit>[1] = [];
+            for (const m of ms) {
+              const cal = applyCalibration({ q: m.q, u: m.u, qErr: m.q_err, uErr: m.u_err }, terms);
+              const star = m.star_id ? stars.get(m.star_id) : null;
+              const fallback = star && star.parallax_mas !== null && star.parallax_err_mas !== null ? { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas } : null;
+              const { derived } = deriveMeasurement(canonicalWithStokes(m, cal), fallback);
+              const cols = derivedColumns(derived);
+              const before = snapshot(m);
+              const after = snapshot({ ...m, ...cols, version: m.version + 1 });
+              updates.push({ ...cols, calibration_id: calId, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
+              links.push([calId, m.id, JSON.stringify(before), JSON.stringify(after)]);
+              audits.push({ actorId, action: 'measurement.calibrate', entityType: 'measurement', entityId: m.id, before, after: { ...after, calibrationId: calId }, reason: rowReason });
+            }
+            await updateMeasurements(trx, updates);
+            await bulkInsertRows(trx, 'calibration_rows', ['calibration_id', 'measurement_id', 'before_json', 'after_json'], links);
+            await recordAudit(trx, audits);
+          });
+        }
+        await writeTx(async (trx) => {
+          const n = await trx('calibrations').whereIn('id', claimed.map((x) => x.id)).where({ state: 'applying' }).update({ state: 'applied' });
+          if (n !== claimed.length) throw new Error(`calibrations ${claimed.map((x) => x.id).join(', ')} left the applying state`);
+          const audits: Parameters<typeof recordAudit>[1] = claimed.map(({ id, c, rowIds }) => ({ actorId, action: 'calibration.apply', entityType: 'calibration', entityId: id, after: { batchId, instrument: c.instrument, band: c.band, night: c.night, zeroPointDeg: c.zeroPointDeg, zeroPointErrDeg: c.zeroPointErrDeg, instrumentalQ: c.instrumentalQ, instrumentalU: c.instrumentalU, rows: rowIds.length }, reason }));
+          audits.push({ actorId, action: 'batch.calibrate', entityType: 'batch', entityId: batchId, after: { calibrations: claimed.map((x) => x.id), rows: claimed.reduce((s, x) => s + x.rowIds.length, 0) }, reason });
+          await recordAudit(trx, audits);
+        });
+      } catch (err) {
+        await rollBackApply(claimed.map((x) => x.id), `the apply stopped part-way (${err instanceof Error ? err.message : String(err)}); the rows written were restored`, actorId);
+        throw err;
+      } finally {
+        for (const x of claimed) mine.delete(x.id);
+      }
+      const out = claimed.map(({ id, c, rowIds }) => ({ id, instrument: c.instrument, band: c.band, night: c.night, rowsCalibrated: rowIds.length }));
+      return { batchId, applied: out, rowsCalibrated: out.reduce((s, o) => s + o.rowsCalibrated, 0) };
     },
 
-    /** Restore every row of the batch's applied calibrations to its values before; refused if a row changed since. */
+    /**
+     * Restore every row of the batch's applied calibrations to its values before; refused if a row
+     * changed since. Written in short transactions (the calibrations are `reverting` meanwhile); a
+     * row edited part-way puts the rows already restored back to their calibrated values (409).
+     */
     async revert(actorId: number, batchId: number, reason: string | null) {
-      return db.transaction(async (trx) => {
-        const b = await trx('batches').where({ id: batchId }).first('id');
-        if (!b) throw notFound(`Batch ${batchId}`);
-        const cals = await trx('calibrations').where({ batch_id: batchId, state: 'applied' });
-        if (!cals.length) throw new AppError(409, 'not_calibrated', `Batch ${batchId} has no applied calibration to revert.`);
-        const links = await trx('calibration_rows').whereIn('calibration_id', cals.map((c: any) => c.id));
-        const ms = new Map<number, Meas>();
-        const ids = links.map((l: any) => l.measurement_id);
-        for (let i = 0; i < ids.length; i += 900) for (const m of await trx('measurements').whereIn('id', ids.slice(i, i + 900))) ms.set(m.id, m);
-        const moved = links.filter((l: any) => ms.get(l.measurement_id)?.version !== JSON.parse(l.after_json).version);
-        if (moved.length) throw new AppError(409, 'edited_since', `${moved.length} calibrated measurement(s) were changed after the calibration (e.g. ${moved.slice(0, 5).map((l: any) => l.measurement_id).join(', ')}); revert those edits first.`, { ids: moved.map((l: any) => l.measurement_id) });
-        const now = new Date().toISOString();
-        const audits: Parameters<typeof recordAudit>[1] = [];
-        for (const l of links) {
-          const m = ms.get(l.measurement_id)!;
-          const before = JSON.parse(l.before_json) as Record<string, unknown>;
-          const { version: _v, ...values } = before;
-          await trx('measurements').where({ id: m.id }).update({ ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId });
-          audits.push({ actorId, action: 'measurement.calibration_revert', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: reason ?? `revert of calibration ${l.calibration_id}` });
-        }
-        await trx('calibrations').whereIn('id', cals.map((c: any) => c.id)).update({ state: 'reverted', reverted_by: actorId, reverted_at: now });
-        for (const c of cals) audits.push({ actorId, action: 'calibration.revert', entityType: 'calibration', entityId: c.id, before: { state: 'applied' }, after: { state: 'reverted' }, reason });
-        audits.push({ actorId, action: 'batch.calibration_revert', entityType: 'batch', entityId: batchId, after: { calibrations: cals.map((c: any) => c.id), rows: links.length }, reason });
-        await recordAudit(trx, audits);
-        return { batchId, reverted: cals.map((c: any) => c.id), rowsRestored: links.length };
+      await recoverStuck(batchId);
+      const b = await db('batches').where({ id: batchId }).first('id');
+      if (!b) throw notFound(`Batch ${batchId}`);
+      const mine = active(db);
+      const cals = await writeTx(async (trx) => {
+        const moving = await trx('calibrations').where({ batch_id: batchId }).whereIn('state', ['applying', 'reverting']).first();
+        if (moving) refuseBusy(batchId, moving);
+        const found = await trx('calibrations').where({ batch_id: batchId, state: 'applied' }).orderBy('id');
+        if (!found.length) throw new AppError(409, 'not_calibrated', `Batch ${batchId} has no applied calibration to revert.`);
+        await trx('calibrations').whereIn('id', found.map((c: any) => c.id)).update({ state: 'reverting' });
+        for (const c of found) mine.add(c.id);
+        return found as any[];
       });
+      const calIds = cals.map((c) => c.id as number);
+      try {
+        const links = await loadLinks(calIds);
+        const ms = new Map<number, number>();
+        const ids = links.map((l) => l.measurement_id);
+        for (let i = 0; i < ids.length; i += 900) for (const m of await readDb('measurements').whereIn('id', ids.slice(i, i + 900)).select('id', 'version')) ms.set(m.id, m.version);
+        const moved = links.filter((l) => ms.get(l.measurement_id) !== l.after.version);
+        if (moved.length) {
+          await writeTx((trx) => trx('calibrations').whereIn('id', calIds).where({ state: 'reverting' }).update({ state: 'applied' }));
+          throw editedSince(moved.map((l) => l.measurement_id));
+        }
+        const now = new Date().toISOString();
+        try {
+          await inChunks(links, async (trx, chunk) => {
+            const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
+            const late = chunk.filter((l) => cur.get(l.measurement_id)?.version !== l.after.version);
+            if (late.length) throw editedSince(late.map((l) => l.measurement_id));
+            const updates: Record<string, unknown>[] = [];
+            const audits: Parameters<typeof recordAudit>[1] = [];
+            for (const l of chunk) {
+              const m = cur.get(l.measurement_id)!;
+              const { version: _v, ...values } = l.before;
+              updates.push({ ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
+              audits.push({ actorId, action: 'measurement.calibration_revert', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: reason ?? `revert of calibration ${l.calibration_id}` });
+            }
+            await updateMeasurements(trx, updates);
+            await recordAudit(trx, audits);
+          });
+        } catch (err) {
+          // a row was edited while the others were being restored: back to applied, as a whole
+          await rollBackRevert(calIds, actorId, `the revert stopped part-way (${err instanceof Error ? err.message : String(err)})`);
+          throw err;
+        }
+        await writeTx(async (trx) => {
+          await trx('calibrations').whereIn('id', calIds).where({ state: 'reverting' }).update({ state: 'reverted', reverted_by: actorId, reverted_at: now });
+          const audits: Parameters<typeof recordAudit>[1] = calIds.map((id) => ({ actorId, action: 'calibration.revert', entityType: 'calibration', entityId: id, before: { state: 'applied' }, after: { state: 'reverted' }, reason }));
+          audits.push({ actorId, action: 'batch.calibration_revert', entityType: 'batch', entityId: batchId, after: { calibrations: calIds, rows: links.length }, reason });
+          await recordAudit(trx, audits);
+        });
+        return { batchId, reverted: calIds, rowsRestored: links.length };
+      } finally {
+        for (const id of calIds) mine.delete(id);
+      }
     },
+
+    /**
+     * Put right what an interrupted apply or revert left (a crash, a stopped server): an `applying`
+     * calibration is rolled back from its stored values before and marked `failed`; a `reverting`
+     * one is put back to `applied`. Runs at start-up and before any calibration of such a batch is read or written.
+     */
+    recover: () => recoverStuck(null),
 
     /** Every calibration of an instrument, newest first (the instrument's history). */
     async history(code: string) {
@@ -392,7 +655,7 @@ export function calibrationService(db: Knex, readDb: Knex = db) {
         instrument: inst.code,
         calibrations: rows.map((c: any) => {
           const { standards: _s, ...rest } = fromStored(c, users);
-          return { ...rest, batchId: c.batch_id, filename: c.filename, revertedBy: c.reverted_by ? { id: c.reverted_by, name: users.get(c.reverted_by) ?? '' } : null };
+          return { ...rest, batchId: c.batch_id, filename: c.filename, revertedBy: c.reverted_by ? { id: c.reverted_by, name: users.get(c.reverted_by) ?? '' } : null, failureReason: c.failure_reason ?? null };
         }),
       };
     },

@@ -397,3 +397,131 @@ describe('recognition by position', () => {
     expect(cal.calibrations[0].instrumentalQ).toBeCloseTo(0.001, 12); // one unpolarized standard: its own (q, u)
   });
 });
+
+describe('apply and revert write in short transactions', () => {
+  // a night of its own (MJD 61070.2): the four standards and two science stars, as above
+  const night = (mjd: number) =>
+    [HEADER, row('HD 204827', 322.24, 58.74, 0.0532, 58.7, mjd), row('BD+59 389', 30.68, 60.26, 0.067, 98.1, mjd), row('HD 212311', 335.49, 56.53, 0, 0, mjd), row('HD 21447', 52.5, 55.45, 0, 0, mjd), row('KRS CHUNK A', 101.1, -31.2, 0.02, 30.0, mjd), row('KRS CHUNK B', 101.3, -31.4, 0.015, 150.0, mjd)].join('\n');
+  const COLS = ['q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'theta_gal_deg', 'calibration_id'];
+  const upload = async (mjd: number, name: string) => {
+    const up = await observer.post('/api/v1/batches').attach('file', Buffer.from(night(mjd)), name);
+    expect(up.status).toBeLessThan(300);
+    return up.body.id as number;
+  };
+  const values = async (batch: number) => (await t.db('measurements').where({ batch_id: batch }).orderBy('id').select('id', ...COLS)) as Record<string, unknown>[];
+  const waitFor = async (cond: () => Promise<boolean>) => {
+    for (let i = 0; i < 600 && !(await cond()); i++) await new Promise((r) => setTimeout(r, 50));
+    expect(await cond()).toBe(true);
+  };
+
+  it('a second apply while the first is still writing is a 409; readers see "applying", not applied', async () => {
+    const { calibrationService } = await import('../../server/calibration/service.js');
+    const id = await upload(61070.2, 'chunked-night.csv');
+    let release!: () => void;
+    const gate = new Promise<void>((r) => (release = r));
+    // the same database handle as the app: one process, the first apply paused after its first chunk of 2 rows
+    const slow = calibrationService(t.db, t.db, { firstChunkRows: 2, afterChunk: () => gate });
+    const curatorId = (await t.db('users').where({ email: 'curator@kestrel.example' }).first()).id;
+    const first = slow.apply(curatorId, id, 'first apply');
+    await waitFor(async () => Boolean(await t.db('calibrations').where({ batch_id: id, state: 'applying' }).first()));
+    const second = await curator.post(`/api/v1/batches/${id}/calibration/apply`).send({});
+    expect(second.status).toBe(409);
+    expect(second.body.error.code).toBe('calibration_in_progress');
+    expect((await curator.post(`/api/v1/batches/${id}/calibration/revert`).send({})).status).toBe(409);
+    const shown = await curator.get(`/api/v1/batches/${id}/calibration`);
+    expect(shown.status).toBe(200);
+    expect(shown.body.applied).toBe(false);
+    expect(shown.body.calibrations[0].state).toBe('applying');
+    // two rows written so far (one short transaction), four not yet
+    expect((await t.db('measurements').where({ batch_id: id }).whereNotNull('calibration_id')).length).toBe(2);
+    release();
+    expect((await first).rowsCalibrated).toBe(6);
+    const done = await curator.get(`/api/v1/batches/${id}/calibration`);
+    expect(done.body).toMatchObject({ applied: true, calibrations: [{ state: 'applied' }] });
+    expect((await t.db('measurements').where({ batch_id: id }).whereNull('calibration_id')).length).toBe(0);
+  });
+
+  it('an apply stopped part-way (the server gone) is rolled back from the stored values and marked failed', async () => {
+    const { calibrationService } = await import('../../server/calibration/service.js');
+    const { openDb } = await import('../../server/db.js');
+    const id = await upload(61080.2, 'interrupted-night.csv');
+    const before = await values(id);
+    // another handle on the same file stands for the process that stops: it commits 2 rows, then never goes on
+    const gone = openDb(t.config.dbFile);
+    const curatorId = (await t.db('users').where({ email: 'curator@kestrel.example' }).first()).id;
+    void calibrationService(gone, gone, { firstChunkRows: 2, afterChunk: () => new Promise<void>(() => {}) }).apply(curatorId, id, 'stopped apply');
+    await waitFor(async () => (await t.db('measurements').where({ batch_id: id }).whereNotNull('calibration_id')).length === 2);
+    const stuck = await t.db('calibrations').where({ batch_id: id }).first();
+    expect(stuck.state).toBe('applying');
+    expect((await t.db('calibration_rows').where({ calibration_id: stuck.id })).length).toBe(2);
+    const half = await values(id);
+    expect(half.filter((r, i) => r.theta_deg !== before[i].theta_deg)).toHaveLength(2);
+
+    // the service starting again puts it right
+    await calibrationService(t.db, t.db).recover();
+    const after = await values(id);
+    expect(after).toEqual(before); // every value as uploaded, no calibration id
+    const cal = await t.db('calibrations').where({ id: stuck.id }).first();
+    expect(cal.state).toBe('failed');
+    expect(cal.failure_reason).toMatch(/interrupted while applying/);
+    const hist = (await curator.get('/api/v1/instruments/KR-HAWK/calibrations')).body.calibrations.find((c: any) => c.id === stuck.id);
+    expect(hist).toMatchObject({ state: 'failed', failureReason: expect.stringMatching(/restored/) });
+    const rolled = await t.db('audit_log').where({ action: 'measurement.calibration_rollback' }).whereIn('entity_id', after.map((r) => String(r.id)));
+    expect(rolled).toHaveLength(2);
+    // nothing is left looking calibrated: the batch derives afresh and applies normally
+    const shown = await curator.get(`/api/v1/batches/${id}/calibration`);
+    expect(shown.body).toMatchObject({ applied: false, calibrations: [{ state: 'derived' }] });
+    const again = await curator.post(`/api/v1/batches/${id}/calibration/apply`).send({});
+    expect(again.status).toBe(200);
+    expect(again.body.rowsCalibrated).toBe(6);
+    await gone.destroy();
+  });
+
+  it('a row edited while a revert is under way stops it: the rows restored so far go back to calibrated (409)', async () => {
+    const { calibrationService } = await import('../../server/calibration/service.js');
+    const id = await upload(61100.2, 'edited-during-revert.csv');
+    expect((await curator.post(`/api/v1/batches/${id}/calibration/apply`).send({})).status).toBe(200);
+    const applied = await values(id);
+    let release!: () => void;
+    const gate = new Promise<void>((r) => (release = r));
+    const curatorId = (await t.db('users').where({ email: 'curator@kestrel.example' }).first()).id;
+    const reverting = calibrationService(t.db, t.db, { firstChunkRows: 2, afterChunk: () => gate }).revert(curatorId, id, null);
+    await waitFor(async () => (await t.db('measurements').where({ batch_id: id }).whereNull('calibration_id')).length === 2);
+    // the last row (not restored yet) is edited meanwhile
+    const last = applied[applied.length - 1].id as number;
+    const m = await t.db('measurements').where({ id: last }).first();
+    const edit = await curator.patch(`/api/v1/measurements/${last}`).send({ changes: { mjd: 61100.21 }, version: m.version, reason: 'epoch fix' });
+    expect(edit.status).toBe(200);
+    release();
+    await expect(reverting).rejects.toMatchObject({ status: 409, code: 'edited_since' });
+    expect((await t.db('calibrations').where({ batch_id: id }).first()).state).toBe('applied');
+    const now = await values(id);
+    for (const c of COLS) expect(now.map((r) => r[c])).toEqual(applied.map((r) => r[c])); // every row calibrated again (the edit kept q, u)
+    const again = await curator.post(`/api/v1/batches/${id}/calibration/revert`).send({});
+    expect(again.status).toBe(409);
+    expect(again.body.error.details.ids).toEqual([last]);
+  });
+
+  it('a revert stopped part-way is put back to applied, and a later revert still works', async () => {
+    const { calibrationService } = await import('../../server/calibration/service.js');
+    const { openDb } = await import('../../server/db.js');
+    const id = await upload(61090.2, 'interrupted-revert.csv');
+    expect((await curator.post(`/api/v1/batches/${id}/calibration/apply`).send({})).status).toBe(200);
+    const applied = await values(id);
+    const gone = openDb(t.config.dbFile);
+    const curatorId = (await t.db('users').where({ email: 'curator@kestrel.example' }).first()).id;
+    void calibrationService(gone, gone, { firstChunkRows: 2, afterChunk: () => new Promise<void>(() => {}) }).revert(curatorId, id, null);
+    await waitFor(async () => (await t.db('measurements').where({ batch_id: id }).whereNull('calibration_id')).length === 2);
+    expect((await t.db('calibrations').where({ batch_id: id, state: 'reverting' })).length).toBe(1);
+    // read lazily: the GET puts it right first
+    const shown = await curator.get(`/api/v1/batches/${id}/calibration`);
+    expect(shown.body).toMatchObject({ applied: true, calibrations: [{ state: 'applied' }] });
+    const now = await values(id);
+    for (const c of COLS) expect(now.map((r) => r[c])).toEqual(applied.map((r) => r[c]));
+    const res = await curator.post(`/api/v1/batches/${id}/calibration/revert`).send({});
+    expect(res.status).toBe(200);
+    expect(res.body.rowsRestored).toBe(6);
+    expect((await t.db('measurements').where({ batch_id: id }).whereNotNull('calibration_id')).length).toBe(0);
+    await gone.destroy();
+  });
+});
