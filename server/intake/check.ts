@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
-import { deleteInShortTransactions, reserveIds, selectWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
+import { deleteInShortTransactions, reserveIds, writeStats, selectWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
 import { AppError } from '../errors.js';
 import { deriveMeasurement } from '../measurements/derive.js';
 import type { ColumnMapping } from '../measurements/mapping.js';
@@ -46,7 +46,7 @@ export interface CheckProgress {
  * writes and curator edits. Smaller steps cost throughput (each COMMIT rewrites the index pages
  * it touched), larger ones delay everyone else.
  */
-const WRITE_BUDGET_MS = 40;
+const WRITE_BUDGET_MS = 60;
 
 /** Files at least this large are parsed on a second worker thread, overlapping the matching and writing. */
 export const PARSE_WORKER_MIN_BYTES = 1 << 20;
@@ -169,11 +169,20 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   let lastReport = 0;
 
   const ctx: PrepareContext = { headers, mapping, batchInstrument: b.instrument, instruments: [...instruments], crossmatchArcsec: opts.crossmatchArcsec };
+  const T: Record<string, number> = { wait: 0, ids: 0, prefetch: 0, match: 0, known: 0, rows: 0, write: 0 };
+  let tt = performance.now();
+  const lap = (k: string) => {
+    const t = performance.now();
+    T[k] += t - tt;
+    tt = t;
+  };
   for await (const c of preparedChunks(b.stored_path, proposal.delimiter, ctx, (x) => (bytesDone = x), Number(b.size_bytes) >= PARSE_WORKER_MIN_BYTES)) {
     const n = c.n;
     const num = c.num;
+    lap('wait');
     onLines([c.lines[0], c.lines[n - 1]]);
     await Promise.all([starIds.ensure(n), rowIds.ensure(n), measIds.ensure(n)]);
+    lap('ids');
     const queries: (MatchQuery | null)[] = new Array(n);
     for (let i = 0; i < n; i++) {
       if (!c.ok[i]) {
@@ -188,6 +197,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     }
     matcher.resetChunk();
     await matcher.prefetch(queries.filter((q): q is MatchQuery => q !== null));
+    lap('prefetch');
     const toLoad = new Set<number>();
     const matches: (MatchResult | null)[] = queries.map((q) => {
       if (!q) return null;
@@ -195,6 +205,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
       if (m.kind === 'source_id' || m.kind === 'position') toLoad.add(m.star.id);
       return m;
     });
+    lap('match');
     // measurements the uploader may see of the matched stars, for de-duplication
     type Known = { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number; line?: number };
     const known = new Map<string, Known[]>();
@@ -206,6 +217,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
       else known.set(k, [r]);
     }
 
+    lap('known');
     const newStars: unknown[][] = [];
     const rowsOut: unknown[][] = [];
     const measOut: unknown[][] = [];
@@ -295,6 +307,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
       rowsOut.push([rowId, batchId, line, c.valuesJson[i], state, null, warningsJson, candidatesJson, starMatch, starId, measId, duplicateOf, notes.length ? notes.join('; ') : null]);
       measOut.push(measurementValues(c, i, measId, starId, batchId, rowId, measState, now, state === 'conflict' ? duplicateOf : null));
     }
+    lap('rows');
     await writeInShortTransactions(
       db,
       [
@@ -305,11 +318,13 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
       WRITE_BUDGET_MS,
       [{ sql: 'UPDATE batches SET rows_done = ?, bytes_done = ? WHERE id = ?', params: [counts.rows, bytesDone, batchId] }],
     );
+    lap('write');
     if (Date.now() - lastReport > 250) {
       lastReport = Date.now();
       report({ batchId, rowsDone: counts.rows, bytesDone, rowsTotal: Math.max(rowsTotal, counts.rows) });
     }
   }
+  if (process.env.STARVEIL_INTAKE_TIMING) fs.appendFileSync(process.env.STARVEIL_INTAKE_TIMING, `batch ${batchId} ${counts.rows} rows: ${Object.entries(T).map(([k, v]) => `${k} ${(v / 1000).toFixed(1)}s`).join(', ')}; ${JSON.stringify(writeStats)}\n`);
   counts.matchedStars = matched.size;
   await syncIdSequences(db, ['stars', 'batch_rows', 'measurements']);
   return counts;

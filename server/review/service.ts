@@ -131,13 +131,17 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
         const counts = { changed: pending.length, conflicts: 0, ambiguous: 0, [decision === 'approved' ? 'restored' : 'withdrawn']: moved.length } as Record<string, number>;
         for (const h of held as { state: string; n: number }[]) counts[h.state === 'conflict' ? 'conflicts' : 'ambiguous'] = Number(h.n);
         await trx('batches').where({ id: batchId }).update({ state: decision, reviewed_by: actorId, reviewed_at: now, review_note: note, updated_at: now });
-        await recordAudit(trx, [
-          { actorId, action: `batch.${decision === 'approved' ? 'approve' : 'return'}`, entityType: 'batch', entityId: batchId, before: { state: b.state }, after: { state: decision, ...counts }, reason: note },
-          ...pending.map((id: number) => ({ actorId, action: `measurement.${decision === 'approved' ? 'approve' : 'reject'}`, entityType: 'measurement', entityId: id, before: { state: 'pending' }, after: { state: target }, reason: `batch ${batchId} ${decision}` })),
-          ...moved.map((id: number) => decision === 'approved'
+        await recordAudit(trx, { actorId, action: `batch.${decision === 'approved' ? 'approve' : 'return'}`, entityType: 'batch', entityId: batchId, before: { state: b.state }, after: { state: decision, ...counts }, reason: note });
+        // one entry per measurement, built and written a slice at a time (a million-row batch
+        // never holds a million audit objects at once)
+        for (let i = 0; i < pending.length; i += 5000) {
+          await recordAudit(trx, pending.slice(i, i + 5000).map((id: number) => ({ actorId, action: `measurement.${decision === 'approved' ? 'approve' : 'reject'}`, entityType: 'measurement', entityId: id, before: { state: 'pending' }, after: { state: target }, reason: `batch ${batchId} ${decision}` })));
+        }
+        for (let i = 0; i < moved.length; i += 5000) {
+          await recordAudit(trx, moved.slice(i, i + 5000).map((id: number) => decision === 'approved'
             ? { actorId, action: 'measurement.restore', entityType: 'measurement', entityId: id, before: { state: 'withdrawn' }, after: { state: 'approved' }, reason: `batch ${batchId} approved again` }
-            : { actorId, action: 'measurement.withdraw', entityType: 'measurement', entityId: id, before: { state: 'approved' }, after: { state: 'withdrawn' }, reason: `batch ${batchId} returned` }),
-        ]);
+            : { actorId, action: 'measurement.withdraw', entityType: 'measurement', entityId: id, before: { state: 'approved' }, after: { state: 'withdrawn' }, reason: `batch ${batchId} returned` }));
+        }
         return { batch: b, counts };
       });
       await onDecision?.(result.batch, decision, note, result.counts);
