@@ -122,7 +122,7 @@ const SNAPSHOT = ['q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta
 const snapshot = (m: Meas) => Object.fromEntries(SNAPSHOT.map((k) => [k, m[k] ?? null]));
 
 /** Rows per write transaction to start with; then sized to about CHUNK_BUDGET_MS each. */
-const FIRST_CHUNK_ROWS = 250;
+const FIRST_CHUNK_ROWS = 100;
 const MAX_CHUNK_ROWS = 2000;
 const CHUNK_BUDGET_MS = 25;
 
@@ -303,14 +303,18 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
    */
   async function inChunks<T>(items: T[], work: (trx: Knex.Transaction, chunk: T[]) => Promise<void>): Promise<void> {
     let size = opts.firstChunkRows ?? FIRST_CHUNK_ROWS;
+    let pause = 0;
     for (let i = 0; i < items.length; ) {
-      await new Promise((r) => setImmediate(r));
+      // a writer on another thread or process waits in SQLite's busy handler, which retries after
+      // growing sleeps (up to 100 ms): a gap as long as the last transaction lets it in
+      await new Promise((r) => (pause ? setTimeout(r, pause) : setImmediate(r)));
       const chunk = items.slice(i, i + size);
       const t0 = performance.now();
       await writeTx((trx) => work(trx, chunk));
       const ms = performance.now() - t0;
       i += chunk.length;
       size = Math.max(opts.firstChunkRows ?? 50, Math.min(MAX_CHUNK_ROWS, Math.round(chunk.length * Math.min(2, CHUNK_BUDGET_MS / Math.max(ms, 1)))));
+      pause = Math.min(100, Math.max(2, Math.round(ms)));
       if (opts.afterChunk) await opts.afterChunk(i);
     }
   }
