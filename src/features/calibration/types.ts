@@ -29,7 +29,7 @@ export interface StandardResidual {
 
 export interface CalibrationGroup {
   id: number | null;
-  state: 'derived' | 'applied' | 'reverted';
+  state: 'derived' | 'applied' | 'reverted' | 'applying' | 'reverting' | 'failed';
   instrument: string;
   band: string;
   night: string | null;
@@ -75,7 +75,7 @@ export interface StandardStar {
   createdAt: string;
 }
 
-export type InstrumentCalibration = Omit<CalibrationGroup, 'standards'> & { batchId: number; filename: string; revertedBy: { id: number; name: string } | null };
+export type InstrumentCalibration = Omit<CalibrationGroup, 'standards'> & { batchId: number; filename: string; revertedBy: { id: number; name: string } | null; failureReason: string | null };
 
 export interface PlausibilitySettings {
   pCeiling: number;

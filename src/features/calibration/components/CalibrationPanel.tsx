@@ -22,6 +22,7 @@ function GroupCard({ g }: { g: CalibrationGroup }) {
         <span className="text-xs text-muted">
           {g.nPolarized} polarized, {g.nUnpolarized} unpolarized standard{g.nUnpolarized === 1 ? '' : 's'} · {g.rows} rows in this night
           {g.state === 'applied' && g.appliedAt ? ` · applied ${g.appliedAt.slice(0, 16).replace('T', ' ')} UTC by ${g.appliedBy?.name ?? '?'}` : ''}
+          {g.state === 'applying' || g.state === 'reverting' ? ` · being ${g.state === 'applying' ? 'applied' : 'reverted'} now (values part-way; reload in a moment)` : ''}
         </span>
       </div>
       <dl className="grid grid-cols-1 gap-3 text-sm sm:grid-cols-3">

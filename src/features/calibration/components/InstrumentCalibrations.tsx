@@ -34,7 +34,7 @@ export function InstrumentCalibrations({ code }: { code: string }) {
             <td className="pr-3">{pct(c.instrumentalU)}</td>
             <td className="pr-3">{c.nPolarized} pol. / {c.nUnpolarized} unpol.</td>
             <td className="pr-3"><Link className="text-veil underline" to={`/review/batches/${c.batchId}`}>{c.filename}</Link></td>
-            <td className="pr-3">{c.state === 'applied' ? `applied ${c.appliedAt?.slice(0, 10)}` : `reverted ${c.revertedAt?.slice(0, 10)}`}</td>
+            <td className="pr-3" title={c.failureReason ?? undefined}>{c.state === 'applied' ? `applied ${c.appliedAt?.slice(0, 10)}` : c.state === 'reverted' ? `reverted ${c.revertedAt?.slice(0, 10)}` : c.state === 'failed' ? `failed ${c.appliedAt?.slice(0, 10)} (rolled back)` : `${c.state} now`}</td>
           </tr>
         ))}
       </tbody>
