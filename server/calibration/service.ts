@@ -319,6 +319,13 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
     }
   }
 
+  /** The approved catalog changes only all at once: an approved batch is returned (withdrawn) before it is calibrated. */
+  async function refuseApproved(batchId: number, what: string) {
+    const b = await db('batches').where({ id: batchId }).first('id', 'state');
+    if (!b) throw notFound(`Batch ${batchId}`);
+    if (b.state === 'approved') throw new AppError(409, 'batch_approved', `Batch ${batchId} is approved; return it first (its rows leave the approved catalog), ${what}, then approve it again, so that modelers and runs never read a night half-calibrated.`);
+  }
+
   function refuseBusy(batchId: number, c: any): never {
     if (c.state === 'applied') throw new AppError(409, 'already_calibrated', `Batch ${batchId} is already calibrated (calibration ${c.id}, applied ${c.applied_at}); revert it first to apply again.`, { calibrationId: c.id });
     throw new AppError(409, 'calibration_in_progress', `Batch ${batchId}'s calibration ${c.id} is being ${c.state === 'applying' ? 'applied' : 'reverted'} right now; try again when that has finished.`, { calibrationId: c.id, state: c.state });
@@ -504,6 +511,7 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
       const { groups, calibrations } = await derive(readDb, batchId);
       const usable = calibrations.filter((c) => c.zeroPointDeg !== null || c.instrumentalQ !== null);
       if (!usable.length) throw new AppError(409, 'no_standards', `Batch ${batchId} has no usable standard-star rows: nothing to calibrate with (recognised standards: ${calibrations.reduce((s, c) => s + c.standards.length, 0)}).`);
+      await refuseApproved(batchId, 'calibrate it');
       const stdVersions = new Map<number, number>();
       for (const c of usable) for (const s of c.standards) stdVersions.set(s.measurementId, groups.get(groupKey(c.instrument, c.band, c.night))!.rows.find((r) => r.id === s.measurementId)!.version);
       const now = new Date().toISOString();
@@ -585,6 +593,7 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
      */
     async revert(actorId: number, batchId: number, reason: string | null) {
       await recoverStuck(batchId);
+      await refuseApproved(batchId, 'revert its calibration');
       const b = await db('batches').where({ id: batchId }).first('id');
       if (!b) throw notFound(`Batch ${batchId}`);
       const mine = active(db);

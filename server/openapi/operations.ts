@@ -536,7 +536,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/batches/:id/calibration/apply', tag: 'Review', who: CUR,
     summary: 'Apply the batch’s calibration once',
-    description: 'For every row of each instrument, band and night with standards: subtract the instrumental (q, u), rotate by −zero-point (q′ = q cos2ψ + u sin2ψ, u′ = −q sin2ψ + u cos2ψ, so θ′ = θ − ψ), propagate the errors (including those of the terms) and re-derive p, θ, debiased p and the Galactic-frame values. The uploaded file is kept as received; every row is audited with before and after. The rows are written in short transactions; meanwhile the calibration is `applying` (GET …/calibration answers `applied: false` with that state) and another apply or a revert is a 409 (`calibration_in_progress`); an apply interrupted part-way (server stopped) is rolled back from the stored values at start-up and shows as `failed` in the instrument history. A second apply is a 409 (`already_calibrated`); a batch without usable standards is a 409 (`no_standards`).',
+    description: 'For every row of each instrument, band and night with standards: subtract the instrumental (q, u), rotate by −zero-point (q′ = q cos2ψ + u sin2ψ, u′ = −q sin2ψ + u cos2ψ, so θ′ = θ − ψ), propagate the errors (including those of the terms) and re-derive p, θ, debiased p and the Galactic-frame values. The uploaded file is kept as received; every row is audited with before and after. The rows are written in short transactions; meanwhile the calibration is `applying` (GET …/calibration answers `applied: false` with that state) and another apply or a revert is a 409 (`calibration_in_progress`); an apply interrupted part-way (server stopped) is rolled back from the stored values at start-up and shows as `failed` in the instrument history. A second apply is a 409 (`already_calibrated`); a batch without usable standards is a 409 (`no_standards`); an approved batch is a 409 (`batch_approved`): return it first, calibrate, approve again, so the approved catalog only changes all at once.',
     params: [idPath('batch')],
     body: { schema: 'api/calibration-action' },
     responses: { 200: { description: 'applied', schema: 'responses/calibration-apply' } },
@@ -545,7 +545,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/batches/:id/calibration/revert', tag: 'Review', who: CUR,
     summary: 'Revert the batch’s applied calibration',
-    description: 'Restores each calibrated row to its values before the calibration (audited). 409 when nothing is applied (`not_calibrated`), a calibration is being applied or reverted now (`calibration_in_progress`) or a calibrated row was edited since (`edited_since`, also when a row is edited while the revert is under way: the rows restored so far are put back). Written in short transactions (`reverting` meanwhile).',
+    description: 'Restores each calibrated row to its values before the calibration (audited). 409 when nothing is applied (`not_calibrated`), a calibration is being applied or reverted now (`calibration_in_progress`) or a calibrated row was edited since (`edited_since`, also when a row is edited while the revert is under way: the rows restored so far are put back). Written in short transactions (`reverting` meanwhile). An approved batch is a 409 (`batch_approved`).',
     params: [idPath('batch')],
     body: { schema: 'api/calibration-action' },
     responses: { 200: { description: 'reverted', schema: 'responses/calibration-revert' } },

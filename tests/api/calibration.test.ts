@@ -200,6 +200,12 @@ describe('band normalisation for tomography (Serkowski law)', () => {
   it('a run can use V-band data brought to R, with λmax and K recorded and in the fingerprint', async () => {
     const { gatherStars, DEFAULT_RUN } = await import('../../server/tomography/service.js');
     expect((await curator.post(`/api/v1/batches/${batchId}/approve`).send({ note: 'standards night' })).status).toBe(200);
+    // an approved night's calibration is not reverted in place: the approved catalog only changes all at once
+    const inPlace = await curator.post(`/api/v1/batches/${batchId}/calibration/revert`).send({});
+    expect(inPlace.status).toBe(409);
+    expect(inPlace.body.error.code).toBe('batch_approved');
+    expect(inPlace.body.error.message).toMatch(/return it first/);
+    expect((await curator.get(`/api/v1/batches/${batchId}/calibration`)).body.applied).toBe(true);
     const region = { ra: 100.3, dec: -30.4, radius: 1 };
     const plain = await gatherStars(t.db, { ...DEFAULT_RUN, band: 'R', region });
     expect(plain.starsUsed).toBe(0); // the science stars were observed in V only
