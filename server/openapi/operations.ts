@@ -343,7 +343,7 @@ export const OPERATIONS: Operation[] = [
   {
     method: 'post', path: '/batches/:id/approve', tag: 'Review', who: CUR,
     summary: 'Approve every pending measurement of a batch',
-    description: 'Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409). The uploader is told by e-mail.',
+    description: 'Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409), and not while its calibration is being applied or reverted (409 `calibration_in_progress`). The uploader is told by e-mail.',
     params: [idPath('batch')],
     body: { schema: 'api/batch-decision', required: false },
     responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },

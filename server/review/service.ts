@@ -117,6 +117,9 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
         if (!b) throw notFound(`Batch ${batchId}`);
         if (!['awaiting_review', 'approved', 'returned'].includes(b.state)) throw new AppError(409, 'not_reviewable', `Batch ${batchId} is ${b.state}; only a checked batch can be approved or returned.`);
         if (b.state === decision) throw new AppError(409, 'already_decided', `Batch ${batchId} is already ${decision}.`);
+        // a calibration being written (or rolled back) in short transactions finishes first
+        const moving = await trx('calibrations').where({ batch_id: batchId }).whereIn('state', ['applying', 'reverting']).first('id', 'state');
+        if (moving) throw new AppError(409, 'calibration_in_progress', `Batch ${batchId} has calibration ${moving.id} ${moving.state === 'applying' ? 'being applied' : 'being reverted'} now; decide once it has finished.`);
         const target = decision === 'approved' ? 'approved' : 'rejected';
         const pending = await trx('measurements').where({ batch_id: batchId, state: 'pending' }).pluck('id');
         const now = new Date().toISOString();

@@ -434,6 +434,10 @@ describe('apply and revert write in short transactions', () => {
     expect(second.status).toBe(409);
     expect(second.body.error.code).toBe('calibration_in_progress');
     expect((await curator.post(`/api/v1/batches/${id}/calibration/revert`).send({})).status).toBe(409);
+    // nor can the half-written night be approved into the catalog meanwhile
+    const approve = await curator.post(`/api/v1/batches/${id}/approve`).send({});
+    expect(approve.status).toBe(409);
+    expect(approve.body.error.code).toBe('calibration_in_progress');
     const shown = await curator.get(`/api/v1/batches/${id}/calibration`);
     expect(shown.status).toBe(200);
     expect(shown.body.applied).toBe(false);
