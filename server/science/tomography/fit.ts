@@ -46,8 +46,7 @@
  */
 
 import { mulberry32, hashSeed } from '../random';
-import { propagateStokesErrors, angleIsNonGaussian } from '../polarization';
-import { debiasedFractionMAS } from '../debias';
+import { layerContribution } from './contribution';
 import { angleDifferenceDeg } from '../axial';
 import { SegmentTable } from './segmentTable';
 import { PeltSolver } from './partition';
@@ -359,12 +358,7 @@ export function fitSightlineClassic(stars: TomographyStar[], options: FitOptions
     const j = firstSeg + k;
     const seg = segments[j];
     const prev = j > 0 ? segments[j - 1] : undefined;
-    const deltaQ = seg.meanQ - (prev ? prev.meanQ : 0);
-    const deltaU = seg.meanU - (prev ? prev.meanU : 0);
-    const deltaQErr = Math.hypot(seg.meanQErr, prev ? prev.meanQErr : 0);
-    const deltaUErr = Math.hypot(seg.meanUErr, prev ? prev.meanUErr : 0);
-    const pa = propagateStokesErrors(deltaQ, deltaU, deltaQErr, deltaUErr);
-    const pDebiased = debiasedFractionMAS(pa.p, Math.sqrt((deltaQErr * deltaQErr + deltaUErr * deltaUErr) / 2));
+    const contribution = layerContribution(seg, prev);
     const kind: TomographyLayer['kind'] = !clear && k === 0 ? 'foreground' : 'break';
     let distancePc: number, distanceLoPc: number, distanceHiPc: number;
     if (nMatched > 0 && D > 0) {
@@ -381,10 +375,7 @@ export function fitSightlineClassic(stars: TomographyStar[], options: FitOptions
       distanceBound: kind === 'foreground' ? 'upper' : 'range',
       distanceNote: null,
       nStars: seg.end - seg.start, meanQ: seg.meanQ, meanU: seg.meanU, scatter: seg.scatter,
-      deltaQ, deltaU, deltaQErr, deltaUErr,
-      p: pa.p, pErr: pa.pErr, pDebiased, thetaDeg: pa.thetaDeg, thetaErrDeg: pa.thetaErrDeg,
-      snr: pa.pErr > 0 ? pDebiased / pa.pErr : 0,
-      angleNonGaussian: angleIsNonGaussian(pa.p, pa.pErr),
+      ...contribution,
     });
   }
 

@@ -59,8 +59,7 @@
  */
 
 import { mulberry32, hashSeed } from '../random';
-import { propagateStokesErrors, angleIsNonGaussian } from '../polarization';
-import { debiasedFractionMAS } from '../debias';
+import { layerContribution } from './contribution';
 import { correctParallax } from '../distance';
 import { SegmentTable } from './segmentTable';
 import { PeltSolver } from './partition';
@@ -405,12 +404,7 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
     const j = Math.min(firstSeg + k, segments.length - 1);
     const seg = segments[j];
     const prev = j > 0 ? segments[j - 1] : undefined;
-    const deltaQ = seg.meanQ - (prev ? prev.meanQ : 0);
-    const deltaU = seg.meanU - (prev ? prev.meanU : 0);
-    const deltaQErr = Math.hypot(seg.meanQErr, prev ? prev.meanQErr : 0);
-    const deltaUErr = Math.hypot(seg.meanUErr, prev ? prev.meanUErr : 0);
-    const pa = propagateStokesErrors(deltaQ, deltaU, deltaQErr, deltaUErr);
-    const pDebiased = debiasedFractionMAS(pa.p, Math.sqrt((deltaQErr * deltaQErr + deltaUErr * deltaUErr) / 2));
+    const contribution = layerContribution(seg, prev);
     const kind: TomographyLayer['kind'] = !clear && k === 0 ? 'foreground' : 'break';
     let distancePc = mid[k], distanceLoPc = lo[k], distanceHiPc = hi[k];
     let distanceNote: string | null = null;
@@ -452,10 +446,7 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
         ? ((seg.meanQ - prev.meanQ) ** 2) / (seg.meanQErr ** 2 + prev.meanQErr ** 2) + ((seg.meanU - prev.meanU) ** 2) / (seg.meanUErr ** 2 + prev.meanUErr ** 2)
         : (seg.meanQ ** 2) / seg.meanQErr ** 2 + (seg.meanU ** 2) / seg.meanUErr ** 2,
       nStars: seg.end - seg.start, meanQ: seg.meanQ, meanU: seg.meanU, scatter: seg.scatter,
-      deltaQ, deltaU, deltaQErr, deltaUErr,
-      p: pa.p, pErr: pa.pErr, pDebiased, thetaDeg: pa.thetaDeg, thetaErrDeg: pa.thetaErrDeg,
-      snr: pa.pErr > 0 ? pDebiased / pa.pErr : 0,
-      angleNonGaussian: angleIsNonGaussian(pa.p, pa.pErr),
+      ...contribution,
     });
   }
 
