@@ -5,14 +5,14 @@
  * Stars are spread over the 12·nside² equal-area HEALPix cells by a uniform random cell
  * index per star — the same counts as stars uniform on the sphere — and each cell gets a
  * synthetic sightline of 1–3 clouds (synthesizeField; 1–5 % parallax errors, σq = σu
- * 0.1–0.3 %). The fit is timed on a worker_threads pool (pool.ts) with one worker per core.
+ * 0.1–0.3 %). The fit is timed on a worker_threads pool (server/tomography/pool.ts) with one worker per core.
  */
 
 import { availableParallelism } from 'node:os';
 import { mulberry32, hashSeed } from '../server/science/random';
 import { synthesizeField, type SyntheticCloudSpec } from '../server/science/tomography/synthesize';
 import { fitSightline } from '../server/science/tomography/fit';
-import { runCellsInWorkers, type TomographyCell } from '../server/science/tomography/pool';
+import { runCellsInWorkers, type TomographyCell } from '../server/tomography/pool';
 
 function flag(name: string, fallback: number): number {
   const i = process.argv.indexOf(`--${name}`);

@@ -12,7 +12,7 @@ import { galacticToIcrs, icrsToGalactic } from '../science/frames.js';
 import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest } from '../science/healpix.js';
 import { angularSeparationDeg } from '../science/separation.js';
 import { candidateCellRanges, pixelOverlapsDisc } from './cone.js';
-import { runCellsInWorkers, type TomographyCell } from '../science/tomography/pool.js';
+import { runCellsInWorkers, type TomographyCell } from './pool.js';
 import type { SightlineResult, TomographyStar } from '../science/tomography/types.js';
 
 export interface RunParams {

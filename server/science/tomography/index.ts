@@ -1,6 +1,6 @@
 /**
- * Sightline tomography (METHODS.md "Tomography"): pure, browser-safe. The worker pool lives in
- * pool.ts (node only) and is not re-exported here.
+ * Sightline tomography (METHODS.md "Tomography"): pure, browser-safe. The worker pool that fits
+ * many cells on threads lives in server/tomography/pool.ts.
  */
 export * from './types';
 export { fitSightline, resolveFitOptions, DEFAULT_FIT_OPTIONS, percentileSorted, jumpBetween, isComplex } from './fit';

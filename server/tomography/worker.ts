@@ -1,10 +1,10 @@
 /** Worker thread of the tomography pool (pool.ts): fits the cells of each chunk it is sent. */
 
 import { parentPort } from 'node:worker_threads';
-import { fitSightline } from './fit';
-import { unpackCell } from './packing';
-import type { WorkFailure, WorkRequest, WorkResult } from './pool';
-import type { SightlineResult } from './types';
+import { fitSightline } from '../science/tomography/fit.js';
+import { unpackCell } from '../science/tomography/packing.js';
+import type { SightlineResult } from '../science/tomography/types.js';
+import type { WorkFailure, WorkRequest, WorkResult } from './pool.js';
 
 if (!parentPort) throw new Error('tomography worker.ts must run as a worker thread');
 const port = parentPort;

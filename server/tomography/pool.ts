@@ -1,23 +1,21 @@
 /**
  * Compute pool for tomography runs: fits many cells on node worker_threads, one worker per core
- * by default (os.availableParallelism()). Node only — not exported from index.ts, so the pure
- * module stays importable by the browser.
+ * by default (os.availableParallelism()).
  *
  * Cells are packed into typed arrays (packing.ts) and sent in chunks; a worker asks for
  * the next chunk when it returns one (dynamic scheduling, so uneven cells balance). Each cell's
  * random streams depend only on its cellId and draw number, so results are identical whatever
  * the number of workers or the order in which chunks finish.
  *
- * Workers run the TypeScript source under tsx (see startWorker), or worker.js next to a
- * compiled build.
+ * Workers start through server/lib/workers.ts (the .ts source under tsx, worker.js in a build).
+ * The fitting itself is pure (server/science/tomography); only this scheduling is Node.
  */
 
-import { Worker } from 'node:worker_threads';
+import type { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
-import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
-import type { FitOptions, SightlineResult, TomographyStar } from './types';
-import { packCells, type PackedCells } from './packing';
+import type { FitOptions, SightlineResult, TomographyStar } from '../science/tomography/types.js';
+import { packCells, type PackedCells } from '../science/tomography/packing.js';
+import { startWorker } from '../lib/workers.js';
 
 export interface TomographyCell {
   cellId: string;
@@ -59,29 +57,6 @@ export interface WorkFailure {
 }
 
 /**
- * How to start a worker. From TypeScript source: a one-line bootstrap (eval) imports tsx's ESM
- * API (resolved to an absolute file URL, so the working directory does not matter), calls its
- * register() in the new thread, then imports worker.ts. `execArgv: ['--import', 'tsx']` is not
- * enough on Node 20: tsx's --import entry registers its hooks on the main thread only. From a
- * compiled build: worker.js directly.
- */
-function startWorker(): Worker {
-  const here = import.meta.url;
-  if (here.endsWith('.ts')) {
-    const req = createRequire(here);
-    // tsx's documented ESM API (tsx/esm/api, its "import" condition: index.mjs).
-    const apiPath = req.resolve('tsx/esm/api').replace(/index\.cjs$/, 'index.mjs');
-    const tsxApi = pathToFileURL(apiPath).href;
-    const workerUrl = new URL('./worker.ts', here).href;
-    const bootstrap =
-      `import(${JSON.stringify(tsxApi)}).then((m) => { m.register(); return import(${JSON.stringify(workerUrl)}); })` +
-      `.catch((e) => { setImmediate(() => { throw e; }); });`;
-    return new Worker(bootstrap, { eval: true });
-  }
-  return new Worker(new URL('./worker.js', here));
-}
-
-/**
  * Fits every cell with fitSightline(cell.stars, {...options, cellId: cell.cellId}) on worker
  * threads. Results come back in the order of `cells`. onProgress is called after each chunk.
  */
@@ -99,7 +74,7 @@ export async function runCellsInWorkers(
   const chunkSize = pool.chunkSize ?? Math.max(1, Math.min(256, Math.ceil(total / (threads * 16))));
   const chunks: { start: number; end: number }[] = [];
   for (let s = 0; s < total; s += chunkSize) chunks.push({ start: s, end: Math.min(total, s + chunkSize) });
-    const workers: Worker[] = [];
+  const workers: Worker[] = [];
   let next = 0;
   let done = 0;
   let starsDone = 0;
@@ -123,7 +98,7 @@ export async function runCellsInWorkers(
         return true;
       };
       for (let i = 0; i < threads; i++) {
-        const w = startWorker();
+        const w = startWorker(new URL('./worker.ts', import.meta.url));
         workers.push(w);
         w.on('message', (m: WorkResult | WorkFailure) => {
           if (m.kind === 'error') { fail(new Error(`tomography worker, chunk ${m.chunk}: ${m.message}`)); return; }

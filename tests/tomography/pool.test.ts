@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { runCellsInWorkers } from '../../../server/science/tomography/pool';
-import { fitSightline } from '../../../server/science/tomography/fit';
-import { oneCloudField, twoCloudField } from './fields';
+import { runCellsInWorkers } from '../../server/tomography/pool';
+import { fitSightline } from '../../server/science/tomography/fit';
+import { oneCloudField, twoCloudField } from '../science/tomography/fields';
 
 describe('worker pool', () => {
   it('gives the same results as fitting in-process, in input order', async () => {
