@@ -2,6 +2,7 @@
 import { defineConfig } from 'vite';
 import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
+import { fileURLToPath } from 'node:url';
 
 const apiPort = Number(process.env.API_PORT ?? 3001);
 
@@ -9,6 +10,8 @@ export default defineConfig({
   plugins: [react(), tailwindcss()],
   // the client lives in src/ (index.html, public/); the build goes to dist/ at the top
   root: 'src',
+  // the client reaches server code only through this alias, and only the pure science (no Node, no I/O)
+  resolve: { alias: { '@science': fileURLToPath(new URL('./server/science', import.meta.url)) } },
   build: { outDir: '../dist', emptyOutDir: true, chunkSizeWarningLimit: 1500 },
   server: {
     port: Number(process.env.PORT ?? 5173),

@@ -59,7 +59,41 @@ function liftDefs(document: Json): Json {
   const rewritten = walk(doc) as Json;
   const rs = (rewritten.components as Json).schemas as Json;
   (rewritten.components as Json).schemas = Object.fromEntries(Object.entries(rs).sort(([a], [b]) => a.localeCompare(b)));
-  return rewritten;
+  return inlineDeepRefs(rewritten);
+}
+
+/**
+ * openapi-typescript writes a $ref into a schema as an indexed type (`X["rows"]["items"]…`), which
+ * TypeScript cannot index through arrays or unions. Refs whose pointer goes anywhere but through
+ * `properties/<name>` are replaced by a copy of their target (itself walked the same way).
+ */
+function inlineDeepRefs(doc: Json): Json {
+  const PREFIX = '#/components/schemas/';
+  const target = (ref: string): unknown => {
+    const parts = ref.slice(2).split('/').map((s) => s.replace(/~1/g, '/').replace(/~0/g, '~'));
+    let node: unknown = doc;
+    for (const part of parts) node = (node as Json)[part];
+    if (node === undefined) throw new Error(`gen: $ref ${ref} points at nothing`);
+    return node;
+  };
+  const plain = (ref: string) => {
+    const rest = ref.slice(PREFIX.length).split('/').slice(1);
+    return rest.length % 2 === 0 && rest.every((seg, i) => i % 2 === 1 || seg === 'properties');
+  };
+  const walk = (node: unknown, depth: number): unknown => {
+    if (depth > 50) throw new Error('gen: $refs nest too deep (a cycle through a deep pointer?)');
+    if (Array.isArray(node)) return node.map((n) => walk(n, depth));
+    if (!node || typeof node !== 'object') return node;
+    const ref = (node as Json).$ref;
+    if (typeof ref === 'string' && ref.startsWith(PREFIX) && !plain(ref)) {
+      const { $ref: _drop, ...rest } = node as Json;
+      return walk({ ...(target(ref) as Json), ...rest }, depth + 1);
+    }
+    const out: Json = {};
+    for (const [k, v] of Object.entries(node)) out[k] = walk(v, depth);
+    return out;
+  };
+  return walk(doc, 0) as Json;
 }
 
 async function generate(): Promise<string> {

@@ -1,6 +1,6 @@
 /** Shapes of the catalog API (base /api/v1). Source identifiers stay text; positions ICRS degrees. */
 import type { MeasurementState } from '../review/types';
-import type { CombinedMeasurement } from '../../../server/science/combine';
+import type { CombinedMeasurement } from '@science/combine';
 
 export interface Star {
   id: number;

@@ -1,5 +1,5 @@
 /** Shapes of the review API (base /api/v1). Stokes q, u are fractions; angles in degrees, IAU convention. */
-import type { DistanceMethod } from '../../../server/science/distance';
+import type { DistanceMethod } from '@science/distance';
 import type { BatchCounts, BatchState } from '../intake/types';
 
 export type MeasurementState = 'pending' | 'conflict' | 'ambiguous' | 'approved' | 'rejected' | 'withdrawn';

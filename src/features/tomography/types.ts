@@ -1,5 +1,5 @@
 /** Shapes of the tomography API (base /api/v1). Stokes q, u are fractions; angles in degrees (IAU). */
-import type { TomographyJump, TomographyLayer, TomographySegment, TomographyStar } from '../../../server/science/tomography/types';
+import type { TomographyJump, TomographyLayer, TomographySegment, TomographyStar } from '@science/tomography/types';
 
 export type { TomographyJump, TomographyLayer, TomographySegment, TomographyStar };
 

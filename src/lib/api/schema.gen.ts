@@ -1549,7 +1549,16 @@ export interface components {
                 /** @description quality and plausibility flags (GET /plausibility): low_p_snr, above_efficiency_envelope, above_p_ceiling, inconsistent_repeats, low_parallax_snr, no_distance */
                 flags: string[];
                 warnings: components["schemas"]["responses.issue"][];
-                candidates: components["schemas"]["responses.batch-rows"]["rows"]["items"]["candidates"];
+                /** @description ambiguous rows: the catalog stars within the match radius */
+                candidates: {
+                    /** @description catalog star id */
+                    id: number;
+                    name: string | null;
+                    /** @description astrometric source identifier, digits as text */
+                    sourceId: string | null;
+                    /** @description arcsec, angular distance from the row's position */
+                    separationArcsec: number;
+                }[];
                 /** @description conflicts: the earlier measurement with the same key */
                 competing: null | {
                     /** @description measurement id */

@@ -3,7 +3,7 @@ import { Card } from '../../../components/ui/primitives';
 import { can, type Me } from '../../../lib/roles';
 import { fixed, formatCount } from '../../intake/format';
 import { MeasurementStateBadge } from '../../review/components/MeasurementStateBadge';
-import { INCONSISTENT_TAIL_PROBABILITY } from '../../../../server/science/combine';
+import { INCONSISTENT_TAIL_PROBABILITY } from '@science/combine';
 import type { CombinedValue, StarDetail } from '../types';
 import { BAND_COLOURS, EpochPlots, QuPlanePlot } from './StarPlots';
 

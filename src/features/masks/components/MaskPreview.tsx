@@ -2,7 +2,7 @@ import { geoArea, geoGraticule10, geoPath } from 'd3-geo';
 import { geoHammer } from 'd3-geo-projection';
 import type { Polygon } from 'geojson';
 import { useMemo } from 'react';
-import { pixelCornersNest } from '../../../../server/science/healpix';
+import { pixelCornersNest } from '@science/healpix';
 import type { MaskCell } from '../api/maskSummary';
 
 const W = 720;

@@ -2,7 +2,7 @@ import { geoPath } from 'd3-geo';
 import { geoMollweide } from 'd3-geo-projection';
 import type { LineString, MultiLineString } from 'geojson';
 import { useId, useMemo, useRef, useState, type PointerEvent } from 'react';
-import { icrsToGalactic } from '../../../../server/science/frames';
+import { icrsToGalactic } from '@science/frames';
 import { pixelPolygon, toFrame } from '../sky/outline';
 import { deg, frameName, frameTitle, latName, lonName } from '../sky/format';
 import { jumpColour, layerColour } from '../sky/palette';

@@ -1,6 +1,6 @@
 import { Link, useParams, useSearchParams } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
-import { npixForNside } from '../../../../server/science/healpix';
+import { npixForNside } from '@science/healpix';
 import { useSightline } from '../api/sightline';
 import { AngleNote } from '../components/AngleNote';
 import { LayerSupport } from '../components/LayerSupport';

@@ -8,7 +8,7 @@
  * segment than layers; otherwise segment k belongs to layer k, the first being a 'foreground'
  * layer nearer than every star.
  */
-import { propagateStokesErrors } from '../../../../server/science/polarization';
+import { propagateStokesErrors } from '@science/polarization';
 import type { Sightline, TomographyStar } from '../types';
 
 export interface Step {

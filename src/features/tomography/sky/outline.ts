@@ -10,8 +10,8 @@
  */
 import { geoArea } from 'd3-geo';
 import type { Polygon, Position } from 'geojson';
-import { galacticToIcrs, icrsToGalactic } from '../../../../server/science/frames';
-import { maxPixelRadiusDeg, pixelCornersNest } from '../../../../server/science/healpix';
+import { galacticToIcrs, icrsToGalactic } from '@science/frames';
+import { maxPixelRadiusDeg, pixelCornersNest } from '@science/healpix';
 import type { CoordSys } from '../types';
 
 const DEG = Math.PI / 180;
