@@ -12,7 +12,7 @@ export default defineConfig({
   root: 'src',
   // the client reaches server code only through this alias, and only the pure science (no Node, no I/O)
   resolve: { alias: { '@science': fileURLToPath(new URL('./server/science', import.meta.url)) } },
-  build: { outDir: '../dist', emptyOutDir: true, chunkSizeWarningLimit: 1500 },
+  build: { outDir: '../dist', emptyOutDir: true },
   server: {
     port: Number(process.env.PORT ?? 5173),
     proxy: { '/api': { target: `http://127.0.0.1:${apiPort}`, changeOrigin: false } },

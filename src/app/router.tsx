@@ -1,29 +1,46 @@
+import { lazy, Suspense, type ComponentType } from 'react';
 import { createBrowserRouter, Link } from 'react-router-dom';
 import { Layout } from './Layout';
 import { RequireRole } from './RequireRole';
-import { SignInPage } from '../features/auth/routes/SignIn';
-import { OverviewPage } from '../features/overview/routes/OverviewPage';
-import { PeoplePage } from '../features/admin/routes/PeoplePage';
-import { AccountPage } from '../features/account/routes/AccountPage';
-import { UploadPage } from '../features/intake/routes/UploadPage';
-import { ColumnGuidePage } from '../features/intake/routes/ColumnGuidePage';
-import { BatchesPage } from '../features/intake/routes/BatchesPage';
-import { BatchPage } from '../features/intake/routes/BatchPage';
-import { ResetRequestPage } from '../features/auth/routes/ResetRequest';
-import { ResetConfirmPage } from '../features/auth/routes/ResetConfirm';
-import { OutboxPage } from '../features/outbox/routes/OutboxPage';
-import { SkyPage } from '../features/tomography/routes/SkyPage';
-import { SightlinePage } from '../features/tomography/routes/SightlinePage';
-import { RunsPage } from '../features/tomography/routes/RunsPage';
-import { ReviewQueuePage } from '../features/review/routes/ReviewQueuePage';
-import { BatchReviewPage } from '../features/review/routes/BatchReviewPage';
-import { CatalogPage } from '../features/catalog/routes/CatalogPage';
-import { StarPage } from '../features/catalog/routes/StarPage';
-import { TokensPage } from '../features/tokens/routes/TokensPage';
-import { MasksPage } from '../features/masks/routes/MasksPage';
-import { ApiPage } from '../features/apidocs/routes/ApiPage';
-import { StandardStarsPage } from '../features/calibration/routes/StandardStarsPage';
-import { InstrumentsPage } from '../features/instruments/routes/InstrumentsPage';
+
+/**
+ * Pages load on first visit, each in its own chunk: `lazyPage(() => import(file), 'ExportName')`
+ * gives a component that shows a short loading line until its code has arrived.
+ */
+function lazyPage<K extends string>(load: () => Promise<Record<K, ComponentType>>, name: K): ComponentType {
+  const Page = lazy(() => load().then((m) => ({ default: m[name] })));
+  return function LazyPage() {
+    return (
+      <Suspense fallback={<div className="p-8 text-sm text-muted">Loading…</div>}>
+        <Page />
+      </Suspense>
+    );
+  };
+}
+
+const SignInPage = lazyPage(() => import('../features/auth/routes/SignIn'), 'SignInPage');
+const OverviewPage = lazyPage(() => import('../features/overview/routes/OverviewPage'), 'OverviewPage');
+const PeoplePage = lazyPage(() => import('../features/admin/routes/PeoplePage'), 'PeoplePage');
+const AccountPage = lazyPage(() => import('../features/account/routes/AccountPage'), 'AccountPage');
+const UploadPage = lazyPage(() => import('../features/intake/routes/UploadPage'), 'UploadPage');
+const ColumnGuidePage = lazyPage(() => import('../features/intake/routes/ColumnGuidePage'), 'ColumnGuidePage');
+const BatchesPage = lazyPage(() => import('../features/intake/routes/BatchesPage'), 'BatchesPage');
+const BatchPage = lazyPage(() => import('../features/intake/routes/BatchPage'), 'BatchPage');
+const ResetRequestPage = lazyPage(() => import('../features/auth/routes/ResetRequest'), 'ResetRequestPage');
+const ResetConfirmPage = lazyPage(() => import('../features/auth/routes/ResetConfirm'), 'ResetConfirmPage');
+const OutboxPage = lazyPage(() => import('../features/outbox/routes/OutboxPage'), 'OutboxPage');
+const SkyPage = lazyPage(() => import('../features/tomography/routes/SkyPage'), 'SkyPage');
+const SightlinePage = lazyPage(() => import('../features/tomography/routes/SightlinePage'), 'SightlinePage');
+const RunsPage = lazyPage(() => import('../features/tomography/routes/RunsPage'), 'RunsPage');
+const ReviewQueuePage = lazyPage(() => import('../features/review/routes/ReviewQueuePage'), 'ReviewQueuePage');
+const BatchReviewPage = lazyPage(() => import('../features/review/routes/BatchReviewPage'), 'BatchReviewPage');
+const CatalogPage = lazyPage(() => import('../features/catalog/routes/CatalogPage'), 'CatalogPage');
+const StarPage = lazyPage(() => import('../features/catalog/routes/StarPage'), 'StarPage');
+const TokensPage = lazyPage(() => import('../features/tokens/routes/TokensPage'), 'TokensPage');
+const MasksPage = lazyPage(() => import('../features/masks/routes/MasksPage'), 'MasksPage');
+const ApiPage = lazyPage(() => import('../features/apidocs/routes/ApiPage'), 'ApiPage');
+const StandardStarsPage = lazyPage(() => import('../features/calibration/routes/StandardStarsPage'), 'StandardStarsPage');
+const InstrumentsPage = lazyPage(() => import('../features/instruments/routes/InstrumentsPage'), 'InstrumentsPage');
 
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },
