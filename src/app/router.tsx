@@ -8,7 +8,7 @@ import { RequireRole } from './RequireRole';
  * gives a component that shows a short loading line until its code has arrived.
  */
 function lazyPage<K extends string>(load: () => Promise<Record<K, ComponentType>>, name: K): ComponentType {
-  const Page = lazy(() => load().then((m) => ({ default: m[name] })));
+  const Page = lazy<ComponentType>(() => load().then((m) => ({ default: m[name] })));
   return function LazyPage() {
     return (
       <Suspense fallback={<div className="p-8 text-sm text-muted">Loading…</div>}>
