@@ -1,7 +1,7 @@
 import { NavLink, Outlet, useNavigate } from 'react-router-dom';
 import { Logo } from '../components/ui/Logo';
 import { useLogout } from '../features/auth/api/logout';
-import { useMe } from '../features/auth/api/me';
+import { useMe } from '../lib/api/me';
 import { can } from '../lib/roles';
 import { NAV } from './nav';
 

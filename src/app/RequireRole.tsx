@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
 import { Navigate, useLocation } from 'react-router-dom';
-import { useMe } from '../features/auth/api/me';
+import { useMe } from '../lib/api/me';
 import { can, type Role } from '../lib/roles';
 import { Notice } from '../components/ui/primitives';
 

@@ -33,14 +33,14 @@ const SkyPage = lazyPage(() => import('../features/tomography/routes/SkyPage'), 
 const SightlinePage = lazyPage(() => import('../features/tomography/routes/SightlinePage'), 'SightlinePage');
 const RunsPage = lazyPage(() => import('../features/tomography/routes/RunsPage'), 'RunsPage');
 const ReviewQueuePage = lazyPage(() => import('../features/review/routes/ReviewQueuePage'), 'ReviewQueuePage');
-const BatchReviewPage = lazyPage(() => import('../features/review/routes/BatchReviewPage'), 'BatchReviewPage');
+const BatchReviewPage = lazyPage(() => import('./pages/BatchReviewWithCalibration'), 'BatchReviewWithCalibration');
 const CatalogPage = lazyPage(() => import('../features/catalog/routes/CatalogPage'), 'CatalogPage');
 const StarPage = lazyPage(() => import('../features/catalog/routes/StarPage'), 'StarPage');
 const TokensPage = lazyPage(() => import('../features/tokens/routes/TokensPage'), 'TokensPage');
 const MasksPage = lazyPage(() => import('../features/masks/routes/MasksPage'), 'MasksPage');
 const ApiPage = lazyPage(() => import('../features/apidocs/routes/ApiPage'), 'ApiPage');
 const StandardStarsPage = lazyPage(() => import('../features/calibration/routes/StandardStarsPage'), 'StandardStarsPage');
-const InstrumentsPage = lazyPage(() => import('../features/instruments/routes/InstrumentsPage'), 'InstrumentsPage');
+const InstrumentsPage = lazyPage(() => import('./pages/InstrumentsWithCalibrations'), 'InstrumentsWithCalibrations');
 
 export const router = createBrowserRouter([
   { path: '/sign-in', element: <SignInPage /> },

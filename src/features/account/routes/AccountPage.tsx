@@ -1,6 +1,6 @@
 import { useState, type FormEvent } from 'react';
 import { Button, Card, Field, Notice, PageTitle, TextInput } from '../../../components/ui/primitives';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useChangePassword } from '../api/changePassword';
 
 export function AccountPage() {

@@ -1,7 +1,7 @@
 import { useState, type FormEvent } from 'react';
 import { Button, Card, Field, Notice, PageTitle, Select, TextInput } from '../../../components/ui/primitives';
 import type { Role } from '../../../lib/roles';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useCreateUser } from '../api/createUser';
 import { useUpdateUser } from '../api/updateUser';
 import { useUsers } from '../api/users';

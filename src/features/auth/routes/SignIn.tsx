@@ -3,7 +3,7 @@ import { Link, Navigate, useLocation, useNavigate } from 'react-router-dom';
 import { Logo } from '../../../components/ui/Logo';
 import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
 import { useLogin } from '../api/login';
-import { useMe } from '../api/me';
+import { useMe } from '../../../lib/api/me';
 
 export function SignInPage() {
   const me = useMe();

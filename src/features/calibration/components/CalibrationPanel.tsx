@@ -2,7 +2,7 @@ import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Button, Card, Notice, TextInput } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useApplyCalibration } from '../api/applyCalibration';
 import { useBatchCalibration } from '../api/batchCalibration';
 import { useRevertCalibration } from '../api/revertCalibration';

@@ -1,9 +1,9 @@
 import { useState, type FormEvent } from 'react';
 import { Button, Card, Field, Notice, PageTitle, Select, TextInput } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useAddStandardStar, useStandardStars } from '../api/standardStars';
-import { usePlausibility } from '../api/plausibility';
+import { usePlausibility } from '../../../lib/api/plausibility';
 
 const num = (s: string) => (s.trim() === '' ? undefined : Number(s));
 

@@ -1,8 +1,8 @@
 import { Link } from 'react-router-dom';
 import { Card } from '../../../components/ui/primitives';
 import { can, type Me } from '../../../lib/roles';
-import { fixed, formatCount } from '../../intake/format';
-import { MeasurementStateBadge } from '../../review/components/MeasurementStateBadge';
+import { fixed, formatCount } from '../../../lib/format';
+import { MeasurementStateBadge } from '../../../components/ui/MeasurementStateBadge';
 import { INCONSISTENT_TAIL_PROBABILITY } from '@science/combine';
 import type { CombinedValue, StarDetail } from '../types';
 import { BAND_COLOURS, EpochPlots, QuPlanePlot } from './StarPlots';

@@ -1,8 +1,8 @@
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable, type SortingState } from '@tanstack/react-table';
 import { Link } from 'react-router-dom';
 import { Button, Select } from '../../../components/ui/primitives';
-import { fixed, formatCount } from '../../intake/format';
-import { ariaSort, SortMark } from '../../review/components/SortHeader';
+import { fixed, formatCount } from '../../../lib/format';
+import { ariaSort, SortMark } from '../../../components/ui/SortHeader';
 import type { Star, StarSort } from '../types';
 
 const col = createColumnHelper<Star>();

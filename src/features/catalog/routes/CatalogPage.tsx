@@ -2,7 +2,7 @@ import { useSearchParams } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
 import { useStars } from '../api/stars';
-import { usePlausibility } from '../../calibration/api/plausibility';
+import { usePlausibility } from '../../../lib/api/plausibility';
 import { CatalogSearch, type FieldProblem } from '../components/CatalogSearch';
 import { PAGE_SIZES, StarsTable } from '../components/StarsTable';
 import type { Cone, StarSort } from '../types';

@@ -1,6 +1,6 @@
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { Notice } from '../../../components/ui/primitives';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useStar } from '../api/star';
 import { StarDetailView } from '../components/StarDetailView';
 

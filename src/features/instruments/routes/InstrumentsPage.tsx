@@ -1,11 +1,14 @@
-import { useState, type FormEvent } from 'react';
+import { useState, type FormEvent, type ReactNode } from 'react';
 import { Button, Card, Field, Notice, PageTitle, TextInput } from '../../../components/ui/primitives';
-import { useMe } from '../../auth/api/me';
-import { InstrumentCalibrations } from '../../calibration/components/InstrumentCalibrations';
+import { useMe } from '../../../lib/api/me';
 import { BANDS, useCreateInstrument, useRegisteredInstruments, useUpdateInstrument, type Band, type RegisteredInstrument } from '../api/instruments';
 
-/** The instrument registry: everyone reads it; admins register instruments and change their bands. */
-export function InstrumentsPage() {
+/**
+ * The instrument registry: everyone reads it; admins register instruments and change their bands.
+ * `calibrations` draws an instrument's calibration history: another feature's list, handed in by
+ * the app (src/app/pages/) so features never import each other.
+ */
+export function InstrumentsPage({ calibrations }: { calibrations?: (code: string) => ReactNode }) {
   const instruments = useRegisteredInstruments();
   const { data: me } = useMe();
   const isAdmin = me?.role === 'admin';
@@ -26,13 +29,13 @@ export function InstrumentsPage() {
           </table>
         )}
       </Card>
-      {instruments.data && (
+      {instruments.data && calibrations && (
         <Card title="Calibrations from standard stars" actions={<a href="/calibration/standards" className="text-sm text-veil underline-offset-2 hover:underline">Standard stars</a>}>
           <div className="space-y-5">
             {instruments.data.instruments.map((i) => (
               <section key={i.code} className="space-y-1">
                 <h3 className="font-mono text-sm font-medium text-night">{i.code}</h3>
-                <InstrumentCalibrations code={i.code} />
+                {calibrations(i.code)}
               </section>
             ))}
           </div>

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
 import type { Batch, ColumnMapping } from '../types';
-import { batchQueryOptions } from './batch';
+import { batchQueryOptions } from '../../../lib/api/batch';
 
 export interface SubmitMappingInput {
   batchId: number;

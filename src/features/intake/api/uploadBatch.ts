@@ -2,7 +2,7 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { useCallback, useRef, useState } from 'react';
 import { sendMultipart, type UploadProgress } from '../../../lib/upload';
 import type { Batch, ColumnMapping } from '../types';
-import { batchQueryOptions } from './batch';
+import { batchQueryOptions } from '../../../lib/api/batch';
 
 export interface UploadBatchInput {
   file: File;

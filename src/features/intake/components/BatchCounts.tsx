@@ -1,5 +1,5 @@
 import type { BatchCounts as Counts } from '../types';
-import { formatCount } from '../format';
+import { formatCount } from '../../../lib/format';
 
 const FIGURES: { key: keyof Counts; label: string; tone?: (n: number) => string }[] = [
   { key: 'rows', label: 'rows' },

@@ -1,10 +1,10 @@
 import { Link } from 'react-router-dom';
 import { Card, Notice } from '../../../components/ui/primitives';
-import { useBatch } from '../api/batch';
+import { useBatch } from '../../../lib/api/batch';
 import { useIntakeColumns } from '../api/columns';
 import type { Batch } from '../types';
 import { BatchCounts } from './BatchCounts';
-import { BatchHeader } from './BatchHeader';
+import { BatchHeader } from '../../../components/ui/BatchHeader';
 import { BatchRowsTable } from './BatchRowsTable';
 import { MappingEditor } from './MappingEditor';
 import { CheckProgress } from './CheckProgress';

@@ -2,9 +2,9 @@ import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Button, Notice, Select } from '../../../components/ui/primitives';
 import { useBatches } from '../api/batches';
-import { formatAge, formatBytes, formatCount } from '../format';
+import { formatAge, formatBytes, formatCount } from '../../../lib/format';
 import type { BatchState } from '../types';
-import { BatchStateBadge, batchStateLabel } from './StateBadge';
+import { BatchStateBadge, batchStateLabel } from '../../../components/ui/StateBadge';
 
 const PAGE = 25;
 const FILTERS: BatchState[] = ['needs_mapping', 'checking', 'awaiting_review', 'failed', 'received'];

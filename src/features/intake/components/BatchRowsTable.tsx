@@ -3,9 +3,9 @@ import { useVirtualizer } from '@tanstack/react-virtual';
 import { useEffect, useMemo, useRef, useState } from 'react';
 import { Notice } from '../../../components/ui/primitives';
 import { useBatchRows } from '../api/batchRows';
-import { fixed, formatCount } from '../format';
+import { fixed, formatCount } from '../../../lib/format';
 import type { BatchCounts, BatchRow, RowState } from '../types';
-import { RowStateBadge } from './StateBadge';
+import { RowStateBadge } from '../../../components/ui/StateBadge';
 
 const TABS: { state: RowState | undefined; label: string; count: (c: BatchCounts) => number }[] = [
   { state: undefined, label: 'All rows', count: (c) => c.rows },
@@ -100,10 +100,10 @@ function StarCell({ row }: { row: BatchRow }) {
   if (row.star) {
     return (
       <div className="min-w-0">
-        <div className="truncate font-medium text-night" title={row.star.name}>
+        <div className="truncate font-medium text-night" title={row.star.name ?? undefined}>
           {row.star.name}
         </div>
-        <div className="text-xs text-muted">{MATCH[row.star.match] ?? row.star.match}</div>
+        <div className="text-xs text-muted">{row.star.match ? MATCH[row.star.match] ?? row.star.match : ''}</div>
         {row.star.sourceId && <div className="truncate font-mono text-[11px] text-muted">{row.star.sourceId}</div>}
       </div>
     );

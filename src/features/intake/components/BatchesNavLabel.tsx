@@ -1,4 +1,4 @@
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 
 /** Observers see only their own batches, so the list is called theirs. */
 export function useBatchesLabel(): string {

@@ -1,6 +1,6 @@
-import { formatBytes, formatCount } from '../format';
+import { formatBytes, formatCount } from '../../../lib/format';
 import type { Batch } from '../types';
-import { ProgressBar } from './ProgressBar';
+import { ProgressBar } from '../../../components/ui/ProgressBar';
 
 /** Rows checked of the rows in the file (counted when the check starts), updated while the page polls. */
 export function CheckProgress({ batch }: { batch: Batch }) {

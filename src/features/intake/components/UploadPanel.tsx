@@ -2,12 +2,12 @@ import { useEffect, useRef, useState, type DragEvent, type FormEvent } from 'rea
 import { useNavigate } from 'react-router-dom';
 import { Button, Card, Field, Notice, Select } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
-import { useBatch, WORKING_STATES } from '../api/batch';
-import { useInstruments } from '../api/instruments';
+import { useBatch, WORKING_STATES } from '../../../lib/api/batch';
+import { useInstruments } from '../../../lib/api/instruments';
 import { useUploadBatch } from '../api/uploadBatch';
-import { formatBytes, formatCount } from '../format';
+import { formatBytes, formatCount } from '../../../lib/format';
 import type { FieldProblem } from '../types';
-import { ProgressBar } from './ProgressBar';
+import { ProgressBar } from '../../../components/ui/ProgressBar';
 import { CheckProgress } from './CheckProgress';
 
 function looksLikeCsv(f: File) {

@@ -2,7 +2,7 @@ import { Link, useLocation, useParams } from 'react-router-dom';
 import { Notice } from '../../../components/ui/primitives';
 import { useBatchesLabel } from '../components/BatchesNavLabel';
 import { BatchDetail } from '../components/BatchDetail';
-import { DecisionNote } from '../../review/components/DecisionNote';
+import { DecisionNote } from '../components/DecisionNote';
 
 export function BatchPage() {
   const { id } = useParams();

@@ -1,6 +1,6 @@
 import { Link } from 'react-router-dom';
 import { Card, PageTitle } from '../../../components/ui/primitives';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { BatchList } from '../components/BatchList';
 import { useBatchesLabel } from '../components/BatchesNavLabel';
 

@@ -1,7 +1,7 @@
 import { Link } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
 import { useIntakeColumns } from '../api/columns';
-import { templateCsvUrl } from '../api/downloads';
+import { templateCsvUrl } from '../../../lib/api/downloads';
 import { ColumnGuideTable } from '../components/ColumnGuideTable';
 import { Conventions } from '../components/Conventions';
 

@@ -1,6 +1,6 @@
 import { Link } from 'react-router-dom';
 import { Card, PageTitle } from '../../../components/ui/primitives';
-import { templateCsvUrl } from '../api/downloads';
+import { templateCsvUrl } from '../../../lib/api/downloads';
 import { UploadPanel } from '../components/UploadPanel';
 
 export function UploadPage() {

@@ -1,6 +1,6 @@
 import { Link } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useOverview } from '../api/overview';
 
 const ROLE_INTRO: Record<string, string> = {

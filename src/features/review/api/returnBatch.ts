@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import { batchQueryOptions } from '../../intake/api/batch';
+import { batchQueryOptions } from '../../../lib/api/batch';
 import type { BatchDecision } from '../types';
 import { batchMeasurementsKey } from './measurements';
 

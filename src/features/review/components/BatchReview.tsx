@@ -2,15 +2,15 @@ import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Button, Card, Notice } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
-import { useMe } from '../../auth/api/me';
-import { useBatch } from '../../intake/api/batch';
-import { BatchHeader } from '../../intake/components/BatchHeader';
-import { formatAge, formatCount } from '../../intake/format';
+import { useMe } from '../../../lib/api/me';
+import { useBatch } from '../../../lib/api/batch';
+import { BatchHeader } from '../../../components/ui/BatchHeader';
+import { formatAge, formatCount } from '../../../lib/format';
 import { useStateTotals } from '../api/stateTotals';
 import { MEASUREMENT_STATES, type BatchDecision } from '../types';
 import { DecisionDialog, type Decision } from './DecisionDialog';
 import { MeasurementsGrid } from './MeasurementsGrid';
-import { MeasurementStateBadge } from './MeasurementStateBadge';
+import { MeasurementStateBadge } from '../../../components/ui/MeasurementStateBadge';
 
 const REVIEWABLE = ['awaiting_review', 'approved', 'returned'];
 

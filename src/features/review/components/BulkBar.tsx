@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { Button, Notice } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
-import { formatCount } from '../../intake/format';
+import { formatCount } from '../../../lib/format';
 import { useApproveMeasurements } from '../api/approveMeasurements';
 import { useRejectMeasurements } from '../api/rejectMeasurements';
 import type { ReviewRow } from '../types';

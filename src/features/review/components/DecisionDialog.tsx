@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { Dialog } from '../../../components/ui/Dialog';
 import { Button, Notice } from '../../../components/ui/primitives';
-import { formatCount } from '../../intake/format';
+import { formatCount } from '../../../lib/format';
 import { useApproveBatch } from '../api/approveBatch';
 import { useReturnBatch } from '../api/returnBatch';
 import type { BatchDecision, MeasurementState } from '../types';

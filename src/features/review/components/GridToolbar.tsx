@@ -1,11 +1,11 @@
 import type { Column } from '@tanstack/react-table';
 import { useEffect, useRef, useState } from 'react';
 import { Select } from '../../../components/ui/primitives';
-import { formatCount } from '../../intake/format';
-import { useInstruments } from '../../intake/api/instruments';
+import { formatCount } from '../../../lib/format';
+import { useInstruments } from '../../../lib/api/instruments';
 import { DISTANCE_METHODS, MEASUREMENT_STATES, type MeasurementFilters, type MeasurementState, type ReviewRow } from '../types';
 import { COLUMN_INFO, COLUMN_TITLES } from './gridColumns';
-import { measurementStateLabel } from './MeasurementStateBadge';
+import { measurementStateLabel } from '../../../components/ui/MeasurementStateBadge';
 
 const BANDS = ['U', 'B', 'V', 'R', 'I'];
 

@@ -1,6 +1,6 @@
 import { useEffect, useRef } from 'react';
 import { Notice } from '../../../components/ui/primitives';
-import { formatAge } from '../../intake/format';
+import { formatAge } from '../../../lib/format';
 import { useMeasurementHistory } from '../api/history';
 import { useRevertEdit } from '../api/revertEdit';
 import { FIELD_BY_KEY, type FieldKey } from '../fields';
@@ -61,7 +61,10 @@ export function HistoryPanel({ row, batchId, readOnly, onClose }: { row: ReviewR
 }
 
 function Entry({ e, canRevert, busy, onRevert }: { e: HistoryEntry; canRevert: boolean; busy: boolean; onRevert: () => void }) {
-  const keys = [...new Set([...Object.keys(e.before ?? {}), ...Object.keys(e.after ?? {})])].filter((k) => k !== 'version');
+  // changed fields before and after (the document says only "object or null")
+  const before = e.before as Record<string, unknown> | null;
+  const after = e.after as Record<string, unknown> | null;
+  const keys = [...new Set([...Object.keys(before ?? {}), ...Object.keys(after ?? {})])].filter((k) => k !== 'version');
   return (
     <li className="rounded-lg border border-line p-3 text-sm" data-testid="history-entry" data-action={e.action}>
       <div className="flex items-baseline justify-between gap-2">
@@ -79,16 +82,16 @@ function Entry({ e, canRevert, busy, onRevert }: { e: HistoryEntry; canRevert: b
               <tr key={k}>
                 <td className="py-0.5 pr-2 font-mono text-muted">{label(k)}</td>
                 <td className="num py-0.5 font-mono text-ink">
-                  <span className="text-bad/80 line-through decoration-1">{show(e.before?.[k])}</span> → <span className="text-ok">{show(e.after?.[k])}</span>
+                  <span className="text-bad/80 line-through decoration-1">{show(before?.[k])}</span> → <span className="text-ok">{show(after?.[k])}</span>
                 </td>
               </tr>
             ))}
           </tbody>
         </table>
       )}
-      {e.before && typeof e.before.version === 'number' && (
+      {before && typeof before.version === 'number' && (
         <div className="mt-1 text-[11px] text-muted">
-          version {String(e.before.version)} → {String(e.after?.version ?? '')}
+          version {String(before.version)} → {String(after?.version ?? '')}
         </div>
       )}
       {e.reason && <p className="mt-1.5 text-xs italic text-ink">“{e.reason}”</p>}

@@ -2,7 +2,7 @@ import { getCoreRowModel, useReactTable, type SortingState, type VisibilityState
 import { useVirtualizer } from '@tanstack/react-virtual';
 import { useCallback, useEffect, useMemo, useRef, useState, type KeyboardEvent } from 'react';
 import { Notice } from '../../../components/ui/primitives';
-import { formatCount } from '../../intake/format';
+import { formatCount } from '../../../lib/format';
 import { useBatchMeasurements } from '../api/measurements';
 import { useResolveMeasurement, type Resolution } from '../api/resolveMeasurement';
 import type { MeasurementFilters, MeasurementListParams, MeasurementState, ReviewRow } from '../types';

@@ -1,11 +1,11 @@
 import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Notice } from '../../../components/ui/primitives';
-import { formatAge, formatCount } from '../../intake/format';
-import { BatchStateBadge } from '../../intake/components/StateBadge';
+import { formatAge, formatCount } from '../../../lib/format';
+import { BatchStateBadge } from '../../../components/ui/StateBadge';
 import { useReviewQueue } from '../api/queue';
 import type { QueueBatch, QueueSort, QueueState, SortOrder } from '../types';
-import { ariaSort, SortHeader } from './SortHeader';
+import { ariaSort, SortHeader } from '../../../components/ui/SortHeader';
 
 const TABS: { state: QueueState; label: string; empty: string }[] = [
   { state: 'awaiting_review', label: 'Waiting for review', empty: 'Nothing is waiting: every checked batch has been decided.' },

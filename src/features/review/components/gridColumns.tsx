@@ -1,9 +1,9 @@
 import { createColumnHelper, type ColumnDef } from '@tanstack/react-table';
 import type { MouseEvent, ReactNode } from 'react';
-import { fixed } from '../../intake/format';
+import { fixed } from '../../../lib/format';
 import { FIELDS, type FieldSpec } from '../fields';
 import type { Competing, MeasurementSort, ReviewRow } from '../types';
-import { MeasurementStateBadge } from './MeasurementStateBadge';
+import { MeasurementStateBadge } from '../../../components/ui/MeasurementStateBadge';
 import { competingName } from './ResolveControls';
 
 const col = createColumnHelper<ReviewRow>();

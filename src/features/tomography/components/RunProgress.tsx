@@ -1,5 +1,5 @@
-import { ProgressBar } from '../../intake/components/ProgressBar';
-import { formatCount } from '../../intake/format';
+import { ProgressBar } from '../../../components/ui/ProgressBar';
+import { formatCount } from '../../../lib/format';
 import { duration } from '../sky/format';
 import type { Run } from '../types';
 

@@ -1,6 +1,6 @@
 import { Link } from 'react-router-dom';
 import { Button, Notice } from '../../../components/ui/primitives';
-import { formatAge, formatCount } from '../../intake/format';
+import { formatAge, formatCount } from '../../../lib/format';
 import { useCancelRun } from '../api/cancelRun';
 import { useRun } from '../api/run';
 import { shortFingerprint } from '../sky/format';

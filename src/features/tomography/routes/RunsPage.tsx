@@ -1,6 +1,6 @@
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
-import { useMe } from '../../auth/api/me';
+import { useMe } from '../../../lib/api/me';
 import { useRuns } from '../api/runs';
 import { RunsTable } from '../components/RunsTable';
 import { StartRunForm } from '../components/StartRunForm';

@@ -1,6 +1,6 @@
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { Card, Notice, PageTitle } from '../../../components/ui/primitives';
-import { formatCount } from '../../intake/format';
+import { formatCount } from '../../../lib/format';
 import { latestFinished, useRuns } from '../api/runs';
 import { useRunCells } from '../api/cells';
 import { RunPicker } from '../components/RunPicker';

@@ -1,7 +1,7 @@
 import { flexRender, type Table } from '@tanstack/react-table';
 import type { MeasurementFilters, ReviewRow } from '../../types';
 import { COLUMN_INFO, COLUMN_TITLES, type frozenOffsets } from '../gridColumns';
-import { ariaSort, SortMark } from '../SortHeader';
+import { ariaSort, SortMark } from '../../../../components/ui/SortHeader';
 import { FROZEN_EDGE, HEADER_H } from './layout';
 
 /** The sticky header row: sort buttons, filter and editable marks, resize handles. */

@@ -1,6 +1,6 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import { api } from '../../../lib/apiClient';
-import type { PlausibilitySettings } from '../types';
+import { api } from '../apiClient';
+import type { PlausibilitySettings } from './types';
 
 export const getPlausibility = () => api.get<PlausibilitySettings>('/plausibility');
 export const plausibilityQueryOptions = () => queryOptions({ queryKey: ['calibration', 'plausibility'], queryFn: getPlausibility, staleTime: 60_000 });

@@ -1,6 +1,6 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import { api, ApiError } from '../../../lib/apiClient';
-import type { Me } from '../../../lib/roles';
+import { api, ApiError } from '../apiClient';
+import type { Me } from '../roles';
 
 /** The signed-in person, or null when nobody is signed in (401). */
 export async function getMe(): Promise<Me | null> {

@@ -1,4 +1,4 @@
-import type { SortOrder } from '../types';
+import type { SortOrder } from '../../lib/api/types';
 
 /** A column header that sorts on click; says which way it sorts to screen readers and sighted people alike. */
 export function SortHeader({ label, active, order, onSort, title, align = 'left' }: { label: string; active: boolean; order: SortOrder; onSort: () => void; title?: string; align?: 'left' | 'right' }) {

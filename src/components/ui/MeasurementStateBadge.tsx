@@ -1,4 +1,4 @@
-import type { MeasurementState } from '../types';
+import type { MeasurementState } from '../../lib/api/types';
 
 const STATE: Record<MeasurementState, { label: string; tone: string; hint: string }> = {
   pending: { label: 'pending', tone: 'text-night bg-veil-soft ring-1 ring-veil/40', hint: 'checked, waiting for a curator' },

@@ -1,4 +1,4 @@
-import type { BatchState, RowState } from '../types';
+import type { BatchState, RowState } from '../../lib/api/types';
 
 const BATCH: Record<BatchState, { label: string; tone: string }> = {
   received: { label: 'Received', tone: 'bg-line text-ink' },

@@ -1,6 +1,6 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import { api } from '../../../lib/apiClient';
-import type { Instrument } from '../types';
+import { api } from '../apiClient';
+import type { Instrument } from './types';
 
 export const getInstruments = () => api.get<{ instruments: Instrument[] }>('/instruments');
 export const instrumentsQueryOptions = () => queryOptions({ queryKey: ['instruments'], queryFn: getInstruments, staleTime: 10 * 60_000 });

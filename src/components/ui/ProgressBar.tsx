@@ -1,4 +1,4 @@
-import { percentOf } from '../format';
+import { percentOf } from '../../lib/format';
 
 /** A labelled bar; `total` null means the size is not known yet (the bar pulses). */
 export function ProgressBar({ label, done, total, detail }: { label: string; done: number; total: number | null; detail?: string }) {

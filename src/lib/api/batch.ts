@@ -1,6 +1,6 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import { api } from '../../../lib/apiClient';
-import type { Batch, BatchState } from '../types';
+import { api } from '../apiClient';
+import type { Batch, BatchState } from './types';
 
 /** States in which the server is still working on the file; the page polls while in them. */
 export const WORKING_STATES: readonly BatchState[] = ['received', 'checking'];

@@ -1,6 +1,6 @@
-import { batchErrorsCsvUrl, batchRawUrl } from '../api/downloads';
-import { formatAge, formatBytes } from '../format';
-import type { Batch } from '../types';
+import { batchErrorsCsvUrl, batchRawUrl } from '../../lib/api/downloads';
+import { formatAge, formatBytes } from '../../lib/format';
+import type { Batch } from '../../lib/api/types';
 import { BatchStateBadge } from './StateBadge';
 
 /** Filename, state, who sent it and when, and the two downloads. */
