@@ -10,32 +10,24 @@ import { SessionStore } from './session-store.js';
 import { openDb } from './db.js';
 import { authService } from './auth/service.js';
 import { createPassport } from './auth/passport.js';
-import { authRoutes } from './auth/routes.js';
-import { adminRoutes } from './admin/routes.js';
-import { catalogRoutes } from './catalog/routes.js';
-import { instrumentRoutes } from './instruments/routes.js';
+import { catalogService } from './catalog/service.js';
 import { instrumentService } from './instruments/service.js';
 import { intakeService, type IntakeService } from './intake/service.js';
-import { intakeRoutes } from './intake/routes.js';
 import { measurementService, type MeasurementService } from './measurements/service.js';
 import { reviewService, type ReviewService } from './review/service.js';
-import { reviewRoutes } from './review/routes.js';
 import { tomographyService, type TomographyService } from './tomography/service.js';
-import { tomographyRoutes } from './tomography/routes.js';
 import { releaseService, type ReleaseService } from './releases/service.js';
-import { releaseRoutes } from './releases/routes.js';
-import { notifyCuratorsOfNewBatch, notifyObserverOfReview } from './mail/notifications.js';
+import { notifyCuratorsOfNewBatch, notifyUploaderOfDecision } from './mail/notifications.js';
 import { createMailer, type Mailer } from './mail/transport.js';
-import { mailRoutes } from './mail/routes.js';
+import { passwordResetService } from './mail/passwordReset.js';
 import { tokenService, type TokenService } from './tokens/service.js';
-import { tokenRoutes } from './tokens/routes.js';
 import { bearerTokenAuth } from './tokens/middleware.js';
 import { sameOriginWrites } from './auth/origin.js';
 import { skyService } from './masks/service.js';
-import { maskRoutes } from './masks/routes.js';
-import { apiDocsPage, openApiRoutes } from './openapi/routes.js';
-import { calibrationRoutes, calibrationService, plausibilityService } from './calibration/index.js';
-import { decisionRoutes } from './review/decision.js';
+import { apiDocsPage } from './openapi/routes.js';
+import { ROUTE_GROUPS } from './openapi/registry.js';
+import { mountRoutes } from './lib/route.js';
+import { calibrationService, plausibilityService } from './calibration/index.js';
 
 export interface AppDeps {
   db: Knex;
@@ -82,19 +74,13 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
     }),
   );
 
-  const auth = authService(db, { allowDemoPassword: config.allowDemoPassword });
+  const auth = authService(db, { allowDemoPassword: config.allowDemoPassword, bcryptCost: config.bcryptCost });
   const pp = createPassport(auth);
   const mailer = createMailer(db, config);
   // e-mail is sent after the change has committed and never holds up the request
   const intake = intakeService(db, config, config.intake, deps.readDb ?? db, (batch) => notifyCuratorsOfNewBatch(mailer, db, batch));
   const measurements = measurementService(db, { crossmatchArcsec: config.intake.crossmatchArcsec });
-  const review = reviewService(db, deps.readDb ?? db, (batch, decision, note, counts) => {
-    void (async () => {
-      const uploader = await db('users').where({ id: batch.uploaded_by }).first('name', 'email');
-      const b = await db('batches').where({ id: batch.id }).first('counts_json');
-      await notifyObserverOfReview(mailer, db, { id: batch.id, filename: batch.filename, uploadedBy: uploader }, decision, note, { ...(b?.counts_json ? JSON.parse(b.counts_json) : {}), ...counts });
-    })().catch((e) => console.error('review notification', e));
-  });
+  const review = reviewService(db, deps.readDb ?? db, notifyUploaderOfDecision(mailer, db));
   const tomography = tomographyService(db, deps.readDb ?? db);
   const releases = releaseService(db, deps.readDb ?? db);
   const tokens = tokenService(db, deps.readDb ?? db);
@@ -119,26 +105,25 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   // Authorization: Bearer <personal API token> → req.user for GET routes (server/tokens/middleware.ts)
   api.use(bearerTokenAuth({ tokens, config }));
 
-  api.get('/health', (_req, res) => {
-    res.json({ ok: true });
-  });
-  api.use(openApiRoutes());
-  api.use(authRoutes({ auth, passport: pp, config }));
-  api.use(adminRoutes({ auth }));
-  api.use(instrumentRoutes({ instruments: instrumentService(db, deps.readDb ?? db) }));
-  api.use(catalogRoutes({ db }));
-  api.use(intakeRoutes({ intake, config }));
-  api.use(reviewRoutes({ db, review, measurements }));
-  api.use(tomographyRoutes({ tomography }));
-  api.use(releaseRoutes({ releases }));
-  api.use(mailRoutes({ db, mailer, config }));
-  api.use(tokenRoutes({ tokens }));
-  api.use(maskRoutes({ sky }));
+  // every route is a declaration (server/<capability>/routes.ts, listed in server/openapi/registry.ts),
+  // mounted with the services it needs; the OpenAPI document is generated from the same declarations
   const calibration = calibrationService(db, deps.readDb ?? db);
   // a calibration a stopped server left part-way applied (or reverted) is put right from its stored values
   calibration.recover().catch((e) => console.error('calibration recovery', e));
-  api.use(calibrationRoutes({ db, calibration, plausibility: plausibilityService(db, deps.readDb ?? db) }));
-  api.use(decisionRoutes({ db }));
+  const g = ROUTE_GROUPS;
+  mountRoutes(api, g.service, {});
+  mountRoutes(api, g.auth, { auth, passport: pp, config });
+  mountRoutes(api, g.admin, { auth });
+  mountRoutes(api, g.instruments, { instruments: instrumentService(db, deps.readDb ?? db) });
+  mountRoutes(api, g.catalog, { db, catalog: catalogService(db) });
+  mountRoutes(api, g.intake, { intake, config });
+  mountRoutes(api, g.review, { db, review, measurements });
+  mountRoutes(api, g.tomography, { tomography });
+  mountRoutes(api, g.releases, { releases });
+  mountRoutes(api, g.mail, { db, resets: passwordResetService(db, mailer, config), config });
+  mountRoutes(api, g.tokens, { tokens });
+  mountRoutes(api, g.masks, { sky });
+  mountRoutes(api, g.calibration, { db, calibration, plausibility: plausibilityService(db, deps.readDb ?? db) });
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)));
   api.use(errorMiddleware);
   app.use('/api/v1', api);

@@ -10,6 +10,8 @@ export interface Config {
   sessionSecret: string;
   /** Allow the published demo password to sign in (refused in production unless STARVEIL_ALLOW_DEMO=1). */
   allowDemoPassword: boolean;
+  /** bcrypt cost of password hashes: 10 (about 60–150 ms a check on a small server); 4 under tests (NODE_ENV=test or VITEST). */
+  bcryptCost: number;
   loginRateLimit: { windowMs: number; max: number };
   /** Requests allowed per personal API token per window (TOKEN_RATE_MAX per TOKEN_RATE_WINDOW_MS). */
   tokenRateLimit: { windowMs: number; max: number };
@@ -69,6 +71,15 @@ function originsVar(raw: string | undefined): string[] {
   return out;
 }
 
+/** bcrypt cost: 10 in use; 4 under tests, where hashing speed matters and strength does not. */
+export const bcryptCostFor = (env: NodeJS.ProcessEnv) => (env.NODE_ENV === 'test' || env.VITEST ? 4 : 10);
+
+/**
+ * The cost for code that hashes without a loaded Config (the demo seed, benchmarks), read once
+ * here from this process's environment; the server passes config.bcryptCost instead.
+ */
+export const DEFAULT_BCRYPT_COST = bcryptCostFor(process.env);
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
   const nodeEnv = env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development';
   const dataDir = path.resolve(env.STARVEIL_DATA_DIR ?? 'data');
@@ -85,6 +96,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     dataDir,
     sessionSecret: secret,
     allowDemoPassword: nodeEnv !== 'production' || env.STARVEIL_ALLOW_DEMO === '1',
+    bcryptCost: bcryptCostFor(env),
     loginRateLimit: {
       windowMs: intVar(env, 'LOGIN_RATE_WINDOW_MS', 15 * 60 * 1000, 1),
       max: intVar(env, 'LOGIN_RATE_MAX', 10, 1),

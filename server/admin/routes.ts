@@ -1,26 +1,37 @@
-import { Router } from 'express';
-import { guard } from '../auth/roles.js';
 import type { AuthService } from '../auth/service.js';
-import { badRequest } from '../errors.js';
-import { validateBody } from '../lib/validate.js';
+import { route } from '../lib/route.js';
+import { idPath } from '../lib/query.js';
 
-export function adminRoutes(deps: { auth: AuthService }): Router {
-  const r = Router();
-  const admin = guard(['admin']);
-
-  r.get('/admin/users', admin, async (_req, res) => {
-    res.json({ users: await deps.auth.list() });
-  });
-
-  r.post('/admin/users', admin, validateBody('api/user-create'), async (req, res) => {
-    res.status(201).json(await deps.auth.create(req.user!.id, req.body));
-  });
-
-  r.patch('/admin/users/:id', admin, validateBody('api/user-update'), async (req, res) => {
-    const id = Number(req.params.id);
-    if (!Number.isInteger(id)) throw badRequest('The account id in the path must be an integer.', { fields: [{ field: 'id', message: 'must be an integer' }] });
-    res.json(await deps.auth.update(req.user!.id, id, req.body));
-  });
-
-  return r;
+export interface AdminDeps {
+  auth: AuthService;
 }
+
+const ADMIN = ['admin'] as const;
+
+/** Account management (admins). The mail outbox: server/mail/routes.ts. */
+export const adminRoutes = [
+  route<AdminDeps>({
+    method: 'get', path: '/admin/users', tag: 'Admin', who: ADMIN,
+    summary: 'Every account',
+    responses: { 200: { description: 'accounts by id', schema: 'responses/accounts' } },
+    handler: async (_ctx, { auth }) => ({ users: await auth.list() }),
+  }),
+  route<AdminDeps>({
+    method: 'post', path: '/admin/users', tag: 'Admin', who: ADMIN,
+    summary: 'Create an account',
+    body: { schema: 'api/user-create', required: true },
+    responses: { 201: { description: 'created', schema: 'responses/account' } },
+    errors: [400, 409],
+    handler: ({ user, body }, { auth }) => auth.create(user.id, body),
+  }),
+  route<AdminDeps, { id: number }>({
+    method: 'patch', path: '/admin/users/:id', tag: 'Admin', who: ADMIN,
+    summary: 'Change or disable an account',
+    description: 'Disabling an account ends its sessions. You cannot disable yourself or take away your own admin role (400).',
+    params: idPath('account'),
+    body: { schema: 'api/user-update', required: true },
+    responses: { 200: { description: 'the account after the change', schema: 'responses/account' } },
+    errors: [400, 404],
+    handler: ({ user, params, body }, { auth }) => auth.update(user.id, params.id, body),
+  }),
+];

@@ -31,9 +31,13 @@ export const sessionUser = (u: UserRow): SessionUser => ({ id: u.id, email: u.em
 
 // Compared against when the e-mail is unknown, so both refusals take as long: the same bcrypt
 // cost as real accounts (a cheaper dummy made unknown e-mails answer ~20× faster).
-const DUMMY_HASH = bcrypt.hashSync('not-a-real-password', COST);
+const dummyHashes = new Map<number, string>();
+const dummyHash = (cost: number) => {
+  if (!dummyHashes.has(cost)) dummyHashes.set(cost, bcrypt.hashSync('not-a-real-password', cost));
+  return dummyHashes.get(cost)!;
+};
 /** bcrypt cost of the dummy hash (tests compare it with the accounts' cost). */
-export const dummyHashRounds = () => bcrypt.getRounds(DUMMY_HASH);
+export const dummyHashRounds = (cost: number = COST) => bcrypt.getRounds(dummyHash(cost));
 export const normaliseEmail = (e: string) => e.trim().toLowerCase();
 
 /**
@@ -53,12 +57,14 @@ export async function endAccountAccess(trx: Knex | Knex.Transaction, userId: num
   return { endedSessions, revokedTokens: tokenIds.length, spentResets };
 }
 
-export function authService(db: Knex, opts: { allowDemoPassword: boolean }) {
+export function authService(db: Knex, opts: { allowDemoPassword: boolean; bcryptCost?: number }) {
+  const cost = opts.bcryptCost ?? COST;
+  dummyHash(cost); // made now, so the first refusal of an unknown e-mail takes no longer than later ones
   return {
     /** Check credentials. Returns null for any wrong part, so callers cannot tell which was wrong. */
     async authenticate(email: string, password: string): Promise<SessionUser | null> {
       const user = (await db<UserRow>('users').where({ email: normaliseEmail(email) }).first()) ?? null;
-      const ok = user ? await verifyPassword(password, user.password_hash) : await verifyPassword(password, DUMMY_HASH);
+      const ok = user ? await verifyPassword(password, user.password_hash) : await verifyPassword(password, dummyHash(cost));
       if (!user || !ok || user.disabled) return null;
       if (!opts.allowDemoPassword && password === DEMO_PASSWORD) {
         throw new AppError(401, 'demo_password_refused', 'The published demo password is refused in production; an admin must set a new password for this account.');
@@ -83,7 +89,7 @@ export function authService(db: Knex, opts: { allowDemoPassword: boolean }) {
         if (await trx('users').where({ email }).first()) throw conflict(`An account with e-mail ${email} already exists.`);
         const now = new Date().toISOString();
         const [id] = await trx('users').insert({
-          email, name: input.name, role: input.role, password_hash: await hashPassword(input.password),
+          email, name: input.name, role: input.role, password_hash: await hashPassword(input.password, cost),
           disabled: false, created_at: now, updated_at: now,
         });
         const row = await trx<UserRow>('users').where({ id }).first();
@@ -120,7 +126,7 @@ export function authService(db: Knex, opts: { allowDemoPassword: boolean }) {
           throw badRequest('The current password is not right.', { fields: [{ field: 'currentPassword', message: 'does not match' }] });
         }
         if (next === DEMO_PASSWORD) throw badRequest('Choose a password other than the published demo password.', { fields: [{ field: 'newPassword', message: 'must differ from the demo password' }] });
-        await trx('users').where({ id: userId }).update({ password_hash: await hashPassword(next), updated_at: new Date().toISOString() });
+        await trx('users').where({ id: userId }).update({ password_hash: await hashPassword(next, cost), updated_at: new Date().toISOString() });
         const ended = await endAccountAccess(trx, userId, { keepSid: currentSid, actorId: userId, reason: 'password changed' });
         await recordAudit(trx, { actorId: userId, action: 'user.password_change', entityType: 'user', entityId: userId, after: ended });
       });

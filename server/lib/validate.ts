@@ -10,14 +10,24 @@ import { badRequest } from '../errors.js';
 const schemasDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../schemas');
 const addFormats = addFormatsModule as unknown as (ajv: Ajv2020) => Ajv2020;
 
-/** One ajv instance holding every schema in schemas/ (recursively), addressed by its $id. */
+/** One ajv instance holding every schema in schemas/ (recursively), addressed by its $id. Bodies: no coercion. */
 export const ajv = new Ajv2020({ allErrors: true, strict: false, coerceTypes: false, verbose: true });
+/**
+ * The same schemas for path and query parameters, which arrive as text: values are coerced to the
+ * schema's type ("50" → 50) and missing ones take the schema's default. Never used for bodies.
+ */
+export const paramAjv = new Ajv2020({ allErrors: true, strict: false, coerceTypes: true, useDefaults: true, verbose: true });
 addFormats(ajv);
+addFormats(paramAjv);
 function loadAll(dir: string) {
   for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
     const full = path.join(dir, entry.name);
     if (entry.isDirectory()) loadAll(full);
-    else if (entry.name.endsWith('.json')) ajv.addSchema(JSON.parse(fs.readFileSync(full, 'utf8')));
+    else if (entry.name.endsWith('.json')) {
+      const s = JSON.parse(fs.readFileSync(full, 'utf8'));
+      ajv.addSchema(s);
+      paramAjv.addSchema(structuredClone(s));
+    }
   }
 }
 loadAll(schemasDir);
@@ -48,13 +58,18 @@ export function describeErrors(errors: ErrorObject[] | null | undefined): { fiel
   });
 }
 
-/** Express middleware: 400 naming each bad field unless req.body matches the schema. */
+/** The 400 for a body that does not match its schema: every problem in the message, each field in details.fields. */
+export function bodyProblem(errors: ErrorObject[] | null | undefined) {
+  const problems = describeErrors(errors);
+  return badRequest(problems.map((p) => p.message).join('; '), { fields: problems });
+}
+
+/** Express middleware: 400 naming each bad field unless req.body matches the schema (server/lib/route.ts uses it for declared bodies). */
 export function validateBody(id: string): RequestHandler {
   const validate = schema(id);
   return (req, _res, next) => {
     if (!validate(req.body ?? {})) {
-      const problems = describeErrors(validate.errors);
-      next(badRequest(problems.map((p) => p.message).join('; '), { fields: problems }));
+      next(bodyProblem(validate.errors));
       return;
     }
     next();

@@ -1,5 +1,6 @@
 import type { Knex } from 'knex';
 import type { Mailer, SendResult } from './transport.js';
+import { accountEnabled, decidedBatch, enabledReviewers, measurementsByState } from './queries.js';
 
 /** A batch's row counts as intake reports them (structurally the same as intake's BatchCounts). */
 export interface MailBatchCounts {
@@ -57,8 +58,7 @@ const DECISION_LINES: [string, string][] = [
 /** The batch's measurements by state after the decision, as an aligned table; null when there are none. */
 async function decisionTable(db: Knex, batchId: number): Promise<string | null> {
   try {
-    const rows = (await db('measurements').where({ batch_id: batchId }).select('state').count({ n: '*' }).groupBy('state')) as { state: string; n: number }[];
-    const by = new Map(rows.map((r) => [r.state, Number(r.n)]));
+    const by = await measurementsByState(db, batchId);
     const lines = DECISION_LINES.filter(([k]) => by.get(k)).map(([k, label]) => [label, by.get(k)!.toLocaleString('en-US')] as const);
     if (!lines.length) return null;
     const w = Math.max(...lines.map(([l]) => l.length));
@@ -83,7 +83,7 @@ export async function notifyCuratorsOfNewBatch(
 ): Promise<Notified[]> {
   let people: { email: string; name: string }[];
   try {
-    people = await db('users').whereIn('role', ['curator', 'admin']).andWhere({ disabled: false }).orderBy('id').select('email', 'name');
+    people = await enabledReviewers(db);
   } catch (e) {
     console.error(`mail: could not list curators for batch ${batch.id}: ${e instanceof Error ? e.message : e}`);
     return [];
@@ -118,8 +118,7 @@ export async function notifyObserverOfReview(
   counts: MailBatchCounts | null,
 ): Promise<Notified | null> {
   try {
-    const account = await db('users').where({ email: batch.uploadedBy.email.trim().toLowerCase() }).first('disabled');
-    if (!account || account.disabled) return null;
+    if (!(await accountEnabled(db, batch.uploadedBy.email))) return null;
   } catch (e) {
     console.error(`mail: could not look up the uploader of batch ${batch.id}: ${e instanceof Error ? e.message : e}`);
     return null;
@@ -142,4 +141,18 @@ export async function notifyObserverOfReview(
     `See the batch:\n${link}` +
     FOOTER;
   return { to: batch.uploadedBy.email, ...(await mailer.send({ to: batch.uploadedBy.email, subject, text })) };
+}
+
+/**
+ * The review service's decision hook: look up the uploader and the stored row counts, then tell
+ * the uploader (notifyObserverOfReview). Runs after the decision has committed and never holds up
+ * the request; a failure is logged.
+ */
+export function notifyUploaderOfDecision(mailer: Mailer, db: Knex) {
+  return (batch: { id: number; filename: string; uploaded_by: number }, decision: 'approved' | 'returned', note: string | null, counts: Record<string, number>): void => {
+    void (async () => {
+      const { uploader, counts: stored } = await decidedBatch(db, batch);
+      await notifyObserverOfReview(mailer, db, { id: batch.id, filename: batch.filename, uploadedBy: uploader! }, decision, note, { ...stored, ...counts });
+    })().catch((e) => console.error('review notification', e));
+  };
 }

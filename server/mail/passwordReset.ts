@@ -14,7 +14,7 @@ export const newResetToken = () => crypto.randomBytes(32).toString('base64url');
 
 const tokenProblem = (code: string, message: string) => new AppError(400, code, message, { fields: [{ field: 'token', message }] });
 
-export function passwordResetService(db: Knex, mailer: Mailer, opts: { passwordResetMinutes: number }) {
+export function passwordResetService(db: Knex, mailer: Mailer, opts: { passwordResetMinutes: number; bcryptCost?: number }) {
   return {
     /**
      * Start a reset for `email`. Does nothing visible when there is no such enabled account, so the
@@ -67,7 +67,7 @@ export function passwordResetService(db: Knex, mailer: Mailer, opts: { passwordR
         if (spent !== 1) throw tokenProblem('reset_token_used', 'This password-reset link has already been used. Ask for a new one if you need to reset again.');
         await trx('password_resets').where({ user_id: user.id }).whereNull('used_at').update({ used_at: now.toISOString() });
 
-        await trx('users').where({ id: user.id }).update({ password_hash: await hashPassword(newPassword), updated_at: now.toISOString() });
+        await trx('users').where({ id: user.id }).update({ password_hash: await hashPassword(newPassword, opts.bcryptCost), updated_at: now.toISOString() });
         // every session ends and every API token of the account is revoked
         const ended = await endAccountAccess(trx, user.id, { actorId: user.id, reason: 'password reset by e-mailed link' });
         await recordAudit(trx, { actorId: user.id, action: 'user.password_reset', entityType: 'user', entityId: user.id, after: { resetId: reset.id, ...ended } });

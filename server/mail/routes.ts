@@ -1,62 +1,59 @@
-import { Router } from 'express';
 import type { Knex } from 'knex';
-import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
-import { guard, open } from '../auth/roles.js';
-import { badRequest } from '../errors.js';
-import { validateBody } from '../lib/validate.js';
+import { ipKeyGenerator } from 'express-rate-limit';
+import { attemptLimiter } from '../auth/rate-limit.js';
+import { reply, route } from '../lib/route.js';
+import { pageQuery } from '../lib/query.js';
 import type { Config } from '../config.js';
-import { listOutbox, type Mailer } from './transport.js';
-import { passwordResetService } from './passwordReset.js';
+import { listOutbox } from './transport.js';
+import type { PasswordResetService } from './passwordReset.js';
 
-/** A non-negative integer query parameter, or a 400 naming it. */
-function intParam(raw: unknown, name: string, fallback: number, min: number, max: number): number {
-  if (raw === undefined || raw === '') return fallback;
-  const n = Number(raw);
-  if (typeof raw !== 'string' || !Number.isInteger(n) || n < min || n > max) {
-    throw badRequest(`The query parameter ${name} must be an integer from ${min} to ${max}; got "${String(raw)}".`, { fields: [{ field: name, message: `must be an integer from ${min} to ${max}` }] });
-  }
-  return n;
+export interface MailDeps {
+  db: Knex;
+  resets: PasswordResetService;
+  config: Config;
 }
 
-export function mailRoutes(deps: { db: Knex; mailer: Mailer; config: Config }): Router {
-  const { db, mailer, config } = deps;
-  const resets = passwordResetService(db, mailer, config);
-  const r = Router();
+/** Per address and e-mail, with the sign-in window and limit. */
+const resetKey = (req: { ip?: string; body?: { email?: unknown } }) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`;
 
-  const limited = (message: string, skipSuccessfulRequests: boolean) =>
-    rateLimit({
-      windowMs: config.loginRateLimit.windowMs,
-      limit: config.loginRateLimit.max,
-      skipSuccessfulRequests,
-      standardHeaders: 'draft-8',
-      legacyHeaders: false,
-      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,
-      handler: (_req, res, _next, options) => {
-        res.status(options.statusCode).json({ error: { code: 'rate_limited', message } });
-      },
-    });
-  // Every request counts (all answer 202), per address and e-mail, with the sign-in window and limit.
-  const requestLimiter = limited('Too many password-reset requests; wait a few minutes and try again.', false);
-  // Only failed confirmations count, per address.
-  const confirmLimiter = limited('Too many invalid password-reset attempts; wait a few minutes and try again.', true);
-
-  r.post('/auth/password-reset/request', open, requestLimiter, validateBody('api/password-reset-request'), async (req, res) => {
-    await resets.request(req.body.email);
-    res.status(202).json({
-      message: `If an enabled account uses that e-mail address, a link to choose a new password is on its way. The link works once, for ${config.passwordResetMinutes} minutes.`,
-    });
-  });
-
-  r.post('/auth/password-reset/confirm', open, confirmLimiter, validateBody('api/password-reset-confirm'), async (req, res) => {
-    await resets.confirm(req.body.token, req.body.newPassword);
-    res.status(204).end();
-  });
-
-  r.get('/admin/outbox', guard(['admin']), async (req, res) => {
-    const limit = intParam(req.query.limit, 'limit', 50, 1, 500);
-    const offset = intParam(req.query.offset, 'offset', 0, 0, Number.MAX_SAFE_INTEGER);
-    res.json(await listOutbox(db, { limit, offset }));
-  });
-
-  return r;
-}
+/** Password reset by a one-time e-mailed link, and the outbox of every e-mail written (admins). */
+export const mailRoutes = [
+  route<MailDeps>({
+    method: 'post', path: '/auth/password-reset/request', tag: 'Sign-in and account', who: 'anyone',
+    summary: 'Ask for a password-reset link by e-mail',
+    description: 'Always answers 202 with the same message, whether or not the address has an account; an enabled account gets a one-time link `PUBLIC_URL/reset-password?token=…`. Every request counts towards the sign-in limit.',
+    body: { schema: 'api/password-reset-request', required: true },
+    responses: { 202: { description: 'accepted', schema: 'responses/message' } },
+    errors: [400, 429],
+    // every request counts (all answer 202)
+    middleware: ({ config }) => [attemptLimiter(config, { message: 'Too many password-reset requests; wait a few minutes and try again.', skipSuccessfulRequests: false, key: resetKey })],
+    handler: async ({ body }, { resets, config }) => {
+      await resets.request(body.email);
+      return {
+        message: `If an enabled account uses that e-mail address, a link to choose a new password is on its way. The link works once, for ${config.passwordResetMinutes} minutes.`,
+      };
+    },
+  }),
+  route<MailDeps>({
+    method: 'post', path: '/auth/password-reset/confirm', tag: 'Sign-in and account', who: 'anyone',
+    summary: 'Set a new password with the e-mailed token',
+    description: 'Ends every session of the account and revokes its API tokens. An unknown, expired or used token is a 400; failed attempts are limited.',
+    body: { schema: 'api/password-reset-confirm', required: true },
+    responses: { 204: { description: 'the new password is set' } },
+    errors: [400, 429],
+    // only failed confirmations count
+    middleware: ({ config }) => [attemptLimiter(config, { message: 'Too many invalid password-reset attempts; wait a few minutes and try again.', skipSuccessfulRequests: true, key: resetKey })],
+    handler: async ({ body }, { resets }) => {
+      await resets.confirm(body.token, body.newPassword);
+      return reply(204);
+    },
+  }),
+  route<MailDeps, object, { limit: number; offset: number }>({
+    method: 'get', path: '/admin/outbox', tag: 'Admin', who: ['admin'],
+    summary: 'Every e-mail Starveil wrote, newest first',
+    query: pageQuery(50, 500, 'messages'),
+    responses: { 200: { description: 'one page of the outbox', schema: 'responses/outbox' } },
+    errors: [400],
+    handler: ({ query }, { db }) => listOutbox(db, query),
+  }),
+];

@@ -3,14 +3,15 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ROLES } from '../auth/roles.js';
 import { ajv } from '../lib/validate.js';
-import { OPERATIONS } from './operations.js';
-import type { JsonSchema, Operation, Who } from './types.js';
+import { bearerAllowed, type JsonSchema, type ParamSpec, type RouteSpec, type Who } from '../lib/route.js';
+import { allRoutes } from './registry.js';
 
 /**
- * The OpenAPI 3.1 document, assembled from the route registry (operations.ts) and the JSON
- * Schemas the server itself validates with (schemas/, loaded into the one ajv instance).
- * Schemas are not copied by hand: each referenced $id is taken from ajv, its $refs rewritten to
- * point into components.schemas, and the schemas it refers to are pulled in the same way.
+ * The OpenAPI 3.1 document, generated from the route declarations (server/<capability>/routes.ts,
+ * listed in registry.ts: the same objects the server mounts) and the JSON Schemas the server itself
+ * validates with (schemas/, loaded into the one ajv instance). Nothing is kept by hand: each
+ * referenced $id is taken from ajv, its $refs rewritten to point into components.schemas, and the
+ * schemas it refers to are pulled in the same way.
  */
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -62,12 +63,12 @@ export function rolesFor(who: Who): string[] {
   return ALL_ROLES.filter((r) => r === 'admin' || who.includes(r));
 }
 
-function whoText(op: Operation): string {
+function whoText(op: RouteSpec): string {
   const base = op.who === 'anyone' ? 'anyone, signed in or not' : op.who === 'signed-in' ? 'any signed-in role (observer, curator, modeler, admin)' : `${rolesFor(op.who).join(', ')} (admin passes every guard)`;
   return `**Who may call:** ${base}${op.whoNote ? `; ${op.whoNote}` : ''}.`;
 }
 
-export function operationId(op: Operation): string {
+export function operationId(op: Pick<RouteSpec, 'method' | 'path'>): string {
   const words = op.path.split('/').filter(Boolean).map((seg) => (seg.startsWith(':') ? `By-${seg.slice(1)}` : seg));
   const camel = words.join('-').split(/[^A-Za-z0-9]+/).filter(Boolean).map((w) => w[0].toUpperCase() + w.slice(1)).join('');
   return op.method + camel;
@@ -86,6 +87,10 @@ const ERROR_RESPONSES: Record<number, { key: string; description: string }> = {
   429: { key: 'TooManyRequests', description: 'Too many requests: failed sign-ins or password-reset attempts per address and e-mail, or calls per API token (wait the seconds in the Retry-After header).' },
 };
 
+/** The naming convention of JSON fields (also in DEVELOPERS.md). */
+export const NAMING_CONVENTION =
+  'Every field added from now on is camelCase, with its unit as a suffix (`distancePc`, `thetaDeg`, `sizeBytes`). Older answers keep the names they were published with: measurement and star rows from the catalog tables use snake_case column names (`star_source_id`, `theta_deg`, `parallax_mas`), and scripts rely on them, so they are never renamed. Where one answer mixes both, its description says so.';
+
 const ANGLE_NOTE = 'Starlight polarization is parallel to the plane-of-sky magnetic field; thermal dust emission is polarized perpendicular to it, so field angle = emission angle + 90°: add 90° to a Starveil angle before comparing it with the polarization angle of an emission map.';
 
 const INFO_DESCRIPTION = [
@@ -99,7 +104,11 @@ const INFO_DESCRIPTION = [
   '',
   '**Who may call what.** Each operation states the roles that pass its guard in its description and as `x-roles` (admin passes every guard). Modelers see approved measurements only; observers see approved ones plus their own batches’; curators and admins see everything.',
   '',
-  '**Errors** are always `{"error": {"code", "message", "details"?}}` with the matching HTTP status.',
+  '**Errors** are always `{"error": {"code", "message", "details"?}}` with the matching HTTP status. Bad input is a 400 whose `details.fields` names each offending field or parameter and what was expected.',
+  '',
+  '**Parameters.** Path and query parameters are text coerced to the types below (`limit=50` is the integer 50). A query parameter given twice (`?q=a&q=b`) is a 400 naming it; an empty one (`?limit=`) counts as absent; parameters a route does not know are ignored.',
+  '',
+  `**Field names.** ${NAMING_CONVENTION}`,
 ].join('\n');
 
 const TAGS: { name: string; description: string }[] = [
@@ -124,48 +133,93 @@ function typedEnum(schema: JsonSchema): JsonSchema {
   return schema;
 }
 
-function buildOperation(op: Operation, need: (id: string) => void): Record<string, unknown> {
+/** Property names of a schema and every schema it refers to (walked through $ref across files). */
+function propertyNames(id: string, seen = new Set<string>()): string[] {
+  if (seen.has(id)) return [];
+  seen.add(id);
+  const names: string[] = [];
+  const walk = (node: unknown) => {
+    if (Array.isArray(node)) return node.forEach(walk);
+    if (!node || typeof node !== 'object') return;
+    for (const [k, v] of Object.entries(node)) {
+      if (k === '$ref' && typeof v === 'string') {
+        const target = resolveSchemaRef(id, v);
+        if (target.id !== id) names.push(...propertyNames(target.id, seen));
+      } else if (k === 'properties' && v && typeof v === 'object') {
+        names.push(...Object.keys(v));
+        Object.values(v).forEach(walk);
+      } else walk(v);
+    }
+  };
+  walk(schemaById(id));
+  return names;
+}
+
+const isCamel = (name: string) => /[a-z][A-Z]/.test(name);
+const isSnake = (name: string) => /[a-z]_[a-z]/.test(name);
+
+/** A note for an answer whose field names mix camelCase and snake_case, naming an example of each; null when they do not. */
+export function namingMix(schemaId: string): string | null {
+  const names = [...new Set(propertyNames(schemaId))];
+  const camel = names.filter(isCamel);
+  const snake = names.filter(isSnake);
+  if (!camel.length || !snake.length) return null;
+  return `Field names in this answer mix camelCase (e.g. ${camel.slice(0, 3).map((n) => `\`${n}\``).join(', ')}) and snake_case (e.g. ${snake.slice(0, 3).map((n) => `\`${n}\``).join(', ')}); both are kept as published (see Field names in the introduction).`;
+}
+
+/** A declaration's parameters as OpenAPI parameter objects. */
+function parameters(specs: Record<string, ParamSpec> | undefined, where: 'path' | 'query') {
+  return Object.entries(specs ?? {}).map(([name, p]) => {
+    return { name, in: where, required: where === 'path' ? true : p.required ?? false, description: p.description, schema: typedEnum(p.schema) };
+  });
+}
+
+function buildOperation(op: RouteSpec, need: (id: string) => void): Record<string, unknown> {
   const ref = (id: string) => {
     need(id);
     return { $ref: `#/components/schemas/${componentKey(id)}` };
   };
   const guarded = op.who !== 'anyone';
   const reads = op.method === 'get';
+  const bearer = bearerAllowed(op);
   const errors = new Set(op.errors ?? []);
   if (guarded) errors.add(401);
   if (Array.isArray(op.who)) errors.add(403);
   if (guarded && reads) errors.add(429); // per-token rate limit
   if (guarded && !reads) errors.add(403); // a token used for a write
-  if (op.params?.length || op.body?.schema) errors.add(400);
+  const params = [...parameters(op.params, 'path'), ...parameters(op.query, 'query')];
+  if (params.length || (op.body && 'schema' in op.body)) errors.add(400);
 
   const responses: Record<string, unknown> = {};
   for (const [status, r] of Object.entries(op.responses)) {
     const content: Record<string, unknown> = {};
     if (r.schema) content['application/json'] = { schema: ref(r.schema) };
     for (const [type, schema] of Object.entries(r.content ?? {})) content[type] = { schema };
-    responses[status] = { description: r.description, ...(Object.keys(content).length ? { content } : {}), ...(r.headers ? { headers: r.headers } : {}) };
+    const naming = r.schema ? namingMix(r.schema) : null;
+    const description = [r.description, naming].filter(Boolean).join('. ');
+    responses[status] = { description, ...(Object.keys(content).length ? { content } : {}), ...(r.headers ? { headers: r.headers } : {}), ...(naming ? { 'x-field-naming': 'mixed' } : {}) };
   }
   for (const status of [...errors].sort((a, b) => a - b)) responses[String(status)] = { $ref: `#/components/responses/${ERROR_RESPONSES[status].key}` };
 
   let requestBody: Record<string, unknown> | undefined;
-  if (op.body?.schema) requestBody = { required: op.body.required ?? true, content: { 'application/json': { schema: ref(op.body.schema) } } };
-  else if (op.body?.inline) requestBody = { required: op.body.required ?? true, content: { [op.body.inline.contentType]: { schema: op.body.inline.schema } } };
+  if (op.body && 'schema' in op.body) requestBody = { required: op.body.required ?? true, content: { 'application/json': { schema: ref(op.body.schema) } } };
+  else if (op.body) requestBody = { required: op.body.required ?? true, content: { [op.body.inline.contentType]: { schema: op.body.inline.schema } } };
 
   return {
     tags: [op.tag],
     summary: op.summary,
-    description: [whoText(op), op.description].filter(Boolean).join('\n\n'),
+    description: [whoText(op), op.description, op.namingNote].filter(Boolean).join('\n\n'),
     operationId: operationId(op),
     'x-roles': rolesFor(op.who),
     // open routes need nothing; reads take the cookie or a token; writes the cookie only
-    security: !guarded ? [] : reads ? [{ session: [] }, { bearerToken: [] }] : [{ session: [] }],
-    ...(op.params?.length ? { parameters: op.params.map((p) => ({ name: p.name, in: p.in, required: p.in === 'path' ? true : p.required ?? false, description: p.description, schema: typedEnum(p.schema) })) } : {}),
+    security: !guarded ? [] : bearer ? [{ session: [] }, { bearerToken: [] }] : [{ session: [] }],
+    ...(params.length ? { parameters: params } : {}),
     ...(requestBody ? { requestBody } : {}),
     responses,
   };
 }
 
-export function buildDocument(operations: Operation[] = OPERATIONS): Record<string, unknown> {
+export function buildDocument(operations: RouteSpec[] = allRoutes()): Record<string, unknown> {
   const needed: string[] = [];
   const need = (id: string) => {
     if (!needed.includes(id)) needed.push(id);
@@ -207,8 +261,11 @@ export function buildDocument(operations: Operation[] = OPERATIONS): Record<stri
   };
 }
 
+/** The document for `npm run gen` and the docs page: the same as buildDocument(). */
+export const buildOpenApiDocument = (): Record<string, unknown> => buildDocument();
+
 let cached: Record<string, unknown> | undefined;
-/** The document, built once per process (schemas and registry do not change while it runs). */
+/** The document, built once per process (schemas and declarations do not change while it runs). */
 export function openApiDocument(): Record<string, unknown> {
   cached ??= buildDocument();
   return cached;

@@ -1,18 +1,7 @@
 import path from 'node:path';
 import { createRequire } from 'node:module';
 import { fileURLToPath } from 'node:url';
-import express, { Router, type RequestHandler } from 'express';
-import { open } from '../auth/roles.js';
-import { openApiDocument } from './document.js';
-
-/** GET /openapi.json, mounted in the /api/v1 router. */
-export function openApiRoutes(): Router {
-  const r = Router();
-  r.get('/openapi.json', open, (_req, res) => {
-    res.json(openApiDocument());
-  });
-  return r;
-}
+import express, { type RequestHandler } from 'express';
 
 const docsDir = path.join(path.dirname(fileURLToPath(import.meta.url)), 'docs');
 const uiDist = path.dirname(createRequire(import.meta.url).resolve('swagger-ui-dist/package.json'));

@@ -1,94 +1,196 @@
-import { Router } from 'express';
 import type { Knex } from 'knex';
-import { guard, hasRole } from '../auth/roles.js';
-import { badRequest, notFound } from '../errors.js';
-import { validateBody } from '../lib/validate.js';
-import { singleValuedQuery } from '../lib/query.js';
+import { route } from '../lib/route.js';
+import { idPath, orderQuery, pageQuery, query } from '../lib/query.js';
 import type { MeasurementService } from '../measurements/service.js';
-import type { ReviewService } from './service.js';
+import { MEASUREMENT_SORTS, type ReviewService } from './service.js';
+import { assertMayReadBatch, decisionOf, linkCorrectedFile } from './queries.js';
 
-const positiveId = (v: unknown, what: string) => {
-  const id = Number(v);
-  if (!Number.isInteger(id) || id < 1) throw badRequest(`The ${what} id in the path must be a positive integer.`, { fields: [{ field: 'id', message: 'expected a positive integer' }] });
-  return id;
-};
+export interface ReviewDeps {
+  db: Knex;
+  review: ReviewService;
+  measurements: MeasurementService;
+}
 
-export function reviewRoutes(deps: { db: Knex; review: ReviewService; measurements: MeasurementService }): Router {
-  const { db, review, measurements } = deps;
-  const r = Router();
-  const curator = guard(['curator']);
+const CUR = ['curator'] as const;
+const OBS_CUR = ['observer', 'curator'] as const;
+const OWN_BATCHES = 'observers see their own batches only (another observer’s batch answers 404)';
+const QUEUE_STATES = ['awaiting_review', 'approved', 'returned', 'needs_mapping', 'checking', 'failed'];
+const FLAGS = ['above_efficiency_envelope', 'above_p_ceiling', 'low_p_snr', 'inconsistent_repeats', 'low_parallax_snr', 'no_distance'];
 
-  r.get('/review/queue', curator, singleValuedQuery, async (req, res) => {
-    const state = String(req.query.state ?? 'awaiting_review');
-    if (!['awaiting_review', 'approved', 'returned', 'needs_mapping', 'failed', 'checking'].includes(state)) throw badRequest('state must be awaiting_review, approved, returned, needs_mapping, checking or failed', { fields: [{ field: 'state', message: 'unknown state' }] });
-    const sort = (['age', 'rows', 'uploader'].includes(String(req.query.sort)) ? req.query.sort : 'age') as 'age' | 'rows' | 'uploader';
-    res.json(await review.queue({ state, sort, order: req.query.order === 'asc' ? 'asc' : 'desc' }));
-  });
+/** `filter.<column>=` or `filter[<column>]=` query parameters → {column: value} (empty values dropped). */
+function filtersOf(q: Record<string, unknown>): Record<string, string> {
+  const filters: Record<string, string> = {};
+  for (const [k, v] of Object.entries(q)) {
+    const m = /^filter\.(\w+)$/.exec(k) ?? /^filter\[(\w+)\]$/.exec(k);
+    if (m && typeof v === 'string' && v !== '') filters[m[1]] = v;
+  }
+  return filters;
+}
+
+/** The review queue and table, measurement edits and decisions, whole-batch approve/return, the decision as the uploader reads it. */
+export const reviewRoutes = [
+  route<ReviewDeps, object, { state: string; sort: string; order: string }>({
+    method: 'get', path: '/review/queue', tag: 'Review', who: CUR,
+    summary: 'Batches awaiting review (or in another state)',
+    query: {
+      state: query('batches in this state (default awaiting_review)', { type: 'string', enum: QUEUE_STATES, default: 'awaiting_review' }),
+      sort: query('age, rows or uploader (default age; any other value also sorts by age)', { type: 'string', examples: ['age', 'rows', 'uploader'], default: 'age' }),
+      ...orderQuery('desc'),
+    },
+    responses: { 200: { description: 'the queue', schema: 'responses/review-queue' } },
+    errors: [400],
+    handler: ({ query: q }, { review }) => {
+      const sort = (['age', 'rows', 'uploader'].includes(q.sort) ? q.sort : 'age') as 'age' | 'rows' | 'uploader';
+      return review.queue({ state: q.state, sort, order: q.order === 'asc' ? 'asc' : 'desc' });
+    },
+  }),
 
   // the review table: observers may read their own batch's measurements, curators every batch's
-  r.get('/batches/:id/measurements', guard(['observer', 'curator']), singleValuedQuery, async (req, res) => {
-    const id = positiveId(req.params.id, 'batch');
-    if (!hasRole(req.user, ['curator'])) {
-      const b = await db('batches').where({ id }).first('uploaded_by');
-      if (!b || b.uploaded_by !== req.user!.id) throw notFound('Batch');
-    }
-    const q = req.query as Record<string, any>;
-    const limit = q.limit === undefined ? 500 : Number(q.limit);
-    const offset = q.offset === undefined ? 0 : Number(q.offset);
-    if (!Number.isInteger(limit) || limit < 1 || limit > 5000) throw badRequest('limit must be an integer from 1 to 5000', { fields: [{ field: 'limit', message: 'expected 1–5000' }] });
-    if (!Number.isSafeInteger(offset) || offset < 0) throw badRequest('offset must be an integer from 0 to 2^53 − 1', { fields: [{ field: 'offset', message: 'expected an integer ≥ 0' }] });
-    const filters: Record<string, string> = {};
-    for (const [k, v] of Object.entries(q)) {
-      const m = /^filter\.(\w+)$/.exec(k) ?? /^filter\[(\w+)\]$/.exec(k);
-      if (m && typeof v === 'string' && v !== '') filters[m[1]] = v;
-    }
-    if (q.filter && typeof q.filter === 'object') for (const [k, v] of Object.entries(q.filter)) if (typeof v === 'string' && v !== '') filters[k] = v;
-    res.json(await review.measurements(id, { sort: String(q.sort ?? 'line'), order: q.order === 'desc' ? 'desc' : 'asc', limit, offset, filters, search: q.search ? String(q.search) : undefined }, req.user!));
-  });
+  route<ReviewDeps, { id: number }, { limit: number; offset: number; sort: string; order: string; search?: string }>({
+    method: 'get', path: '/batches/:id/measurements', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'The review table of a batch, paged, sorted and filtered on the server',
+    description: 'Filters are `filter.<column>=value` (also written `filter[<column>]=value`); an empty filter is ignored.',
+    namingNote: 'Measurement fields are snake_case (`star_source_id`, `theta_deg`), the page fields camelCase.',
+    params: idPath('batch'),
+    query: {
+      ...pageQuery(500, 5000, 'measurements'),
+      sort: query('column to sort by (default line)', { type: 'string', enum: [...MEASUREMENT_SORTS], default: 'line' }),
+      ...orderQuery('asc'),
+      'filter.state': query('only measurements in this state', { type: 'string', enum: ['pending', 'conflict', 'ambiguous', 'approved', 'rejected', 'withdrawn'] }),
+      'filter.band': query('only this band', { type: 'string', enum: ['U', 'B', 'V', 'R', 'I'] }),
+      'filter.instrument': query('only this instrument code', { type: 'string' }),
+      'filter.distance_method': query('only this distance method', { type: 'string', enum: ['inverse_parallax', 'edsd_mode', 'given'] }),
+      'filter.flag': query('only measurements carrying this quality or plausibility flag (GET /plausibility)', { type: 'string', enum: FLAGS }),
+      search: query('text: part of the star name, or an exact source_id', { type: 'string' }),
+    },
+    responses: { 200: { description: 'one page of the table', schema: 'responses/batch-measurements' } },
+    errors: [400, 404],
+    handler: async ({ user, params, query: q, req }, { db, review }) => {
+      await assertMayReadBatch(db, user, params.id, 'Batch');
+      const filters = filtersOf(req.query as Record<string, unknown>);
+      return review.measurements(params.id, { sort: q.sort, order: q.order === 'desc' ? 'desc' : 'asc', limit: q.limit, offset: q.offset, filters, search: q.search || undefined }, user);
+    },
+  }),
 
-  r.patch('/measurements/:id', curator, validateBody('api/measurement-patch'), async (req, res) => {
-    const { measurement, warnings } = await measurements.edit(req.user!.id, positiveId(req.params.id, 'measurement'), req.body.changes, req.body.version, req.body.reason ?? null);
-    res.json({ measurement, warnings });
-  });
+  route<ReviewDeps, { id: number }>({
+    method: 'patch', path: '/measurements/:id', tag: 'Review', who: CUR,
+    summary: 'Edit a measurement',
+    description: 'The merged row is validated with the upload schema (schemas/measurement-row.json) and re-derived; the edit is audited. A stale `version` answers 409 with `details.current`, the row as it is now.',
+    params: idPath('measurement'),
+    body: { schema: 'api/measurement-patch', required: true },
+    responses: { 200: { description: 'the measurement after the edit', schema: 'responses/measurement-edit' } },
+    errors: [400, 404, 409],
+    handler: async ({ user, params, body }, { measurements }) => {
+      const { measurement, warnings } = await measurements.edit(user.id, params.id, body.changes, body.version, body.reason ?? null);
+      return { measurement, warnings };
+    },
+  }),
 
-  r.get('/measurements/:id/history', guard(['observer', 'curator']), async (req, res) => {
-    const id = positiveId(req.params.id, 'measurement');
-    const m = await measurements.load(id);
-    if (!hasRole(req.user, ['curator'])) {
-      const b = await db('batches').where({ id: m.batch_id }).first('uploaded_by');
-      if (b?.uploaded_by !== req.user!.id) throw notFound('Measurement');
-    }
-    res.json({ history: await review.history('measurement', id, req.user!) });
-  });
+  route<ReviewDeps, { id: number }>({
+    method: 'get', path: '/measurements/:id/history', tag: 'Review', who: OBS_CUR, whoNote: 'observers see the history of their own batches’ measurements only',
+    summary: 'Audit trail of a measurement: who, when, before, after, reason',
+    params: idPath('measurement'),
+    responses: { 200: { description: 'the trail, oldest first', schema: 'responses/measurement-history' } },
+    errors: [400, 404],
+    handler: async ({ user, params }, { db, review, measurements }) => {
+      const m = await measurements.load(params.id);
+      await assertMayReadBatch(db, user, m.batch_id, 'Measurement');
+      return { history: await review.history('measurement', params.id, user) };
+    },
+  }),
 
-  r.post('/measurements/approve', curator, validateBody('api/measurement-ids'), async (req, res) => {
-    res.json(await measurements.setState(req.user!.id, req.body.ids, 'approved', req.body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'withdrawn'] }));
-  });
+  route<ReviewDeps>({
+    method: 'post', path: '/measurements/approve', tag: 'Review', who: CUR,
+    summary: 'Approve selected measurements',
+    description: 'A held measurement (conflict or ambiguous) answers 409 with `details.ids`; an unknown id 404. Nothing changes on an error.',
+    body: { schema: 'api/measurement-ids', required: true },
+    responses: { 200: { description: 'done', schema: 'responses/measurement-state-change' } },
+    errors: [400, 404, 409],
+    handler: ({ user, body }, { measurements }) => measurements.setState(user.id, body.ids, 'approved', body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'withdrawn'] }),
+  }),
 
-  r.post('/measurements/reject', curator, validateBody('api/measurement-ids'), async (req, res) => {
-    res.json(await measurements.setState(req.user!.id, req.body.ids, 'rejected', req.body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'withdrawn', 'conflict', 'ambiguous'] }));
-  });
+  route<ReviewDeps>({
+    method: 'post', path: '/measurements/reject', tag: 'Review', who: CUR,
+    summary: 'Reject selected measurements',
+    body: { schema: 'api/measurement-ids', required: true },
+    responses: { 200: { description: 'done', schema: 'responses/measurement-state-change' } },
+    errors: [400, 404],
+    handler: ({ user, body }, { measurements }) => measurements.setState(user.id, body.ids, 'rejected', body.reason ?? null, { from: ['pending', 'approved', 'rejected', 'withdrawn', 'conflict', 'ambiguous'] }),
+  }),
 
-  r.post('/measurements/:id/resolve', curator, validateBody('api/measurement-resolve'), async (req, res) => {
-    const id = positiveId(req.params.id, 'measurement');
-    const reason = req.body.reason ?? null;
-    if ('keep' in req.body) res.json(await measurements.resolveConflict(req.user!.id, id, req.body.keep, reason));
-    else if ('starId' in req.body) res.json(await measurements.attach(req.user!.id, id, { starId: req.body.starId }, reason));
-    else res.json(await measurements.attach(req.user!.id, id, { newStar: true, name: req.body.name }, reason));
-  });
+  route<ReviewDeps, { id: number }>({
+    method: 'post', path: '/measurements/:id/resolve', tag: 'Review', who: CUR,
+    summary: 'Settle a conflict or an ambiguous match',
+    description: '`{keep: "this"|"other"}` settles a conflict (the other measurement is rejected); `{starId}` or `{newStar: true, name?}` attaches an ambiguous match. The wrong kind of measurement answers 409.',
+    params: idPath('measurement'),
+    body: { schema: 'api/measurement-resolve', required: true },
+    responses: { 200: { description: 'settled', schema: 'responses/measurement-resolve' } },
+    errors: [400, 404, 409],
+    handler: ({ user, params, body }, { measurements }) => {
+      const reason = body.reason ?? null;
+      if ('keep' in body) return measurements.resolveConflict(user.id, params.id, body.keep, reason);
+      if ('starId' in body) return measurements.attach(user.id, params.id, { starId: body.starId }, reason);
+      return measurements.attach(user.id, params.id, { newStar: true, name: body.name }, reason);
+    },
+  }),
 
-  r.post('/audit/:id/revert', curator, async (req, res) => {
-    const { measurement } = await measurements.revert(req.user!.id, positiveId(req.params.id, 'audit entry'), typeof req.body?.reason === 'string' ? req.body.reason : null);
-    res.json({ measurement });
-  });
+  route<ReviewDeps, { id: number }>({
+    method: 'post', path: '/audit/:id/revert', tag: 'Review', who: CUR,
+    summary: 'Undo one recorded edit (itself audited as a revert)',
+    params: idPath('audit entry'),
+    body: { required: false, inline: { contentType: 'application/json', schema: { type: 'object', properties: { reason: { type: 'string', description: 'why (default "revert of change N"); any other value is ignored' } } } } },
+    responses: { 200: { description: 'the measurement after the revert', schema: 'responses/measurement-edit' } },
+    errors: [400, 404],
+    handler: async ({ user, params, body }, { measurements }) => {
+      const { measurement } = await measurements.revert(user.id, params.id, typeof body?.reason === 'string' ? body.reason : null);
+      return { measurement };
+    },
+  }),
 
-  r.post('/batches/:id/approve', curator, validateBody('api/batch-decision'), async (req, res) => {
-    res.json(await review.decide(req.user!.id, positiveId(req.params.id, 'batch'), 'approved', req.body?.note ?? null));
-  });
+  route<ReviewDeps, { id: number }>({
+    method: 'post', path: '/batches/:id/approve', tag: 'Review', who: CUR,
+    summary: 'Approve every pending measurement of a batch',
+    description: 'Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409), and not while its calibration is being applied or reverted (409 `calibration_in_progress`). The uploader is told by e-mail.',
+    params: idPath('batch'),
+    body: { schema: 'api/batch-decision', required: false },
+    responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
+    errors: [400, 404, 409],
+    handler: ({ user, params, body }, { review }) => review.decide(user.id, params.id, 'approved', body?.note ?? null),
+  }),
 
-  r.post('/batches/:id/reject', curator, validateBody('api/batch-decision'), async (req, res) => {
-    res.json(await review.decide(req.user!.id, positiveId(req.params.id, 'batch'), 'returned', req.body?.note ?? null));
-  });
+  route<ReviewDeps, { id: number }>({
+    method: 'post', path: '/batches/:id/reject', tag: 'Review', who: CUR,
+    summary: 'Return a batch: every pending measurement is rejected',
+    description: 'Approved measurements of the batch are withdrawn from the approved catalog (state withdrawn, counts.withdrawn; audited) until the batch is approved again, which restores them (counts.restored).',
+    params: idPath('batch'),
+    body: { schema: 'api/batch-decision', required: false },
+    responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
+    errors: [400, 404, 409],
+    handler: ({ user, params, body }, { review }) => review.decide(user.id, params.id, 'returned', body?.note ?? null),
+  }),
 
-  return r;
-}
+  route<ReviewDeps, { id: number }>({
+    method: 'get', path: '/batches/:id/decision', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'The curator’s decision and note on a batch, as its uploader reads it',
+    description: 'The note a curator wrote when approving or returning the batch, who decided and when, the measurements by state after the decision, and the corrected files linked to it.',
+    params: idPath('batch'),
+    responses: { 200: { description: 'the decision', schema: 'responses/calibration-decision' } },
+    errors: [400, 404],
+    handler: ({ user, params }, { db }) => decisionOf(db, user, params.id),
+  }),
+
+  // the uploader sends a corrected file (a new upload) for a returned batch, and links it here
+  route<ReviewDeps, { id: number }>({
+    method: 'post', path: '/batches/:id/replaces', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
+    summary: 'Link this upload as the corrected file of a returned batch',
+    description: 'Send the corrected file with POST /batches first, then link it here to the returned batch it replaces (`batchId`). 409 when that batch is not returned (`not_returned`) or this one already replaces another (`already_linked`). Audited.',
+    params: idPath('batch'),
+    body: { schema: 'api/calibration-replaces', required: true },
+    responses: { 200: { description: 'the new batch’s decision record, naming the batch it replaces', schema: 'responses/calibration-decision' } },
+    errors: [400, 404, 409],
+    handler: async ({ user, params, body }, { db }) => {
+      await linkCorrectedFile(db, user, params.id, body.batchId);
+      return decisionOf(db, user, params.id);
+    },
+  }),
+];
