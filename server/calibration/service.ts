@@ -8,6 +8,9 @@ import { angleZeroPoint, applyCalibration, instrumentalPolarization, nightOfMjd,
 import { propagateStokesErrors } from '../science/polarization.js';
 import { angularSeparationDeg } from '../science/separation.js';
 
+// Read-time plausibility flags: catalog and review filter and show them.
+export { FLAG_NAMES, plausibilityService, type PlausibilityService } from './plausibility.js';
+
 /** A row within this distance of a standard's recorded position is that standard (arcsec). */
 export const STANDARD_MATCH_RADIUS_ARCSEC = 5;
 

@@ -3,12 +3,12 @@ import type { SessionUser } from '../auth/roles.js';
 import { hasRole } from '../auth/roles.js';
 import { badRequest, notFound } from '../errors.js';
 import { combineMeasurements } from '../science/combine.js';
-import { whereInCone, withinCone } from './cone.js';
-import { FLAG_NAMES, plausibilityService } from '../calibration/plausibility.js';
+import { whereInCone, withinCone } from '../lib/cone.js';
+import { FLAG_NAMES, plausibilityService } from '../calibration/service.js';
 
 /** Flags a catalog search can ask for (plausibility flags and the stored quality flags). */
 export const STAR_FLAGS = [...FLAG_NAMES, 'low_parallax_snr', 'no_distance'];
-import { whereMeasurementVisible as whereMeasurementNotHidden, whereStarVisible as whereStarNotHidden } from '../intake/visibility.js';
+import { whereMeasurementVisible as whereMeasurementNotHidden, whereStarVisible as whereStarNotHidden } from '../lib/visibility.js';
 
 const STAR_SORTS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'n_measurements'] as const;
 

@@ -9,7 +9,8 @@ import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest, queryDiscNe
 import { icrsToGalactic, galacticToIcrs } from '../science/frames.js';
 import { mocFromRanges, type CellRange, type Moc } from '../science/moc.js';
 import type { StokesConvention } from '../science/convention.js';
-import { cellMeetsCriteria, csvChunks, describeCriteria, provenanceComments, type CellCriteria, type CellForOutput, type CsvColumn, type RunForOutput } from './format.js';
+import { csvChunks, type CsvColumn } from '../lib/csv.js';
+import { cellMeetsCriteria, describeCriteria, provenanceComments, type CellCriteria, type CellForOutput, type RunForOutput } from '../tomography/service.js';
 
 /** Finest NSIDE a mask is written at (a FITS map at 512 is 3.1 million rows, 22 MB). */
 export const MAX_MASK_NSIDE = 512;
@@ -219,12 +220,7 @@ function* maskPixelRows(run: RunForOutput, cells: MaskCell[], nside: number): Ge
   }
 }
 
-/** CSV of the flagged pixels at the mask NSIDE, with the units header (as one string). */
-export function maskCsv(run: RunForOutput, cells: MaskCell[], nside: number, criteria: CellCriteria, conv: StokesConvention): string {
-  return [...maskCsvPieces(run, cells, nside, criteria, conv)].join('');
-}
-
-/** The same CSV in pieces of a few thousand rows, for streaming (server/masks/format.ts streamCsv). */
+/** CSV of the flagged pixels at the mask NSIDE, with the units header, in pieces for streaming (server/lib/csv.ts streamCsv). */
 export function maskCsvPieces(run: RunForOutput, cells: MaskCell[], nside: number, criteria: CellCriteria, conv: StokesConvention): Generator<string> {
   const k = orderForNside(nside) - orderForNside(run.params.nside);
   const frame = run.params.coordsys === 'G' ? 'Galactic l, b' : 'ICRS RA, Dec';

@@ -1,6 +1,5 @@
 import type { Knex } from 'knex';
-import { presentCell, type TomographyService } from '../tomography/service.js';
-import { cellMeetsCriteria, type CellCriteria, type CellForOutput, type RunForOutput } from './format.js';
+import { cellMeetsCriteria, presentCell, type CellCriteria, type CellForOutput, type RunForOutput, type TomographyService } from '../tomography/service.js';
 
 /** Cells whose stored JSON is parsed per event-loop turn. */
 const PARSE_PER_TURN = 200;

@@ -3,8 +3,8 @@ import { recordAudit, auditFor } from '../audit/service.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import { hasRole, type SessionUser } from '../auth/roles.js';
 import { visibleMeasurements, whereStarVisible } from '../catalog/service.js';
-import { hiddenBatchIds } from '../intake/visibility.js';
-import { plausibilityService } from '../calibration/plausibility.js';
+import { hiddenBatchIds } from '../lib/visibility.js';
+import { plausibilityService } from '../calibration/service.js';
 import { angularSeparationDeg } from '../science/separation.js';
 
 export const MEASUREMENT_SORTS = ['line', 'state', 'band', 'instrument', 'mjd', 'q', 'u', 'p', 'p_debiased', 'theta_deg', 'theta_err_deg', 'distance_pc', 'star_name'] as const;

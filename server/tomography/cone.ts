@@ -1,7 +1,7 @@
 /**
  * Which cells of a run a cone touches, through the HEALPix index (never a scan of the run).
  *
- * 1. Candidates: the inclusive disc query (server/science/healpix.ts queryDiscNest) at a coarse
+ * 1. Candidates: the inclusive disc query (server/science/discRanges.ts, on queryDiscNest) at a coarse
  *    order, each coarse pixel being a contiguous block of run-cell numbers in the NESTED scheme.
  *    Every run cell that overlaps the disc lies inside a coarse pixel that overlaps it, so the
  *    blocks hold them all; the database reads only those blocks (index on run_id, ipix).
@@ -10,8 +10,8 @@
  *    cone centre → overlaps; otherwise the cell is split into its four NESTED children, down to
  *    REFINE_ORDERS orders finer (then a child within its own corner distance of the edge counts).
  */
-import { coverOrder } from '../catalog/cone.js';
-import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest, queryDiscNest } from '../science/healpix.js';
+import { discRangesNest } from '../science/discRanges.js';
+import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest } from '../science/healpix.js';
 import { angularSeparationDeg } from '../science/separation.js';
 
 /** Orders finer than the cell the edge test descends to (1/64 of a cell across). */
@@ -19,18 +19,7 @@ export const REFINE_ORDERS = 6;
 
 /** Ranges [lo, hi] of run-cell numbers (NESTED, run NSIDE) whose blocks cover the disc. */
 export function candidateCellRanges(runNside: number, lonDeg: number, latDeg: number, radiusDeg: number): [number, number][] {
-  const runOrder = orderForNside(runNside);
-  const order = Math.min(runOrder, coverOrder(radiusDeg));
-  const shift = 4 ** (runOrder - order);
-  const out: [number, number][] = [];
-  for (const p of queryDiscNest(2 ** order, lonDeg, latDeg, radiusDeg, true)) {
-    const lo = p * shift;
-    const hi = (p + 1) * shift - 1;
-    const last = out[out.length - 1];
-    if (last && lo <= last[1] + 1) last[1] = Math.max(last[1], hi);
-    else out.push([lo, hi]);
-  }
-  return out;
+  return discRangesNest(orderForNside(runNside), lonDeg, latDeg, radiusDeg);
 }
 
 /** True when the NESTED pixel (order, ipix) has a point within radiusDeg of (lon, lat); see the file header. */

@@ -3,7 +3,7 @@ import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { bulkInsert } from '../dialect.js';
 import { AppError, notFound } from '../errors.js';
-import { whereInCone, withinCone } from '../catalog/cone.js';
+import { whereInCone, withinCone } from '../lib/cone.js';
 import { npixForNside } from '../science/healpix.js';
 import { combineMeasurements } from '../science/combine.js';
 import { bandNormalisation, normalisationParams } from '../science/calibration.js';
@@ -14,6 +14,12 @@ import { angularSeparationDeg } from '../science/separation.js';
 import { candidateCellRanges, pixelOverlapsDisc } from './cone.js';
 import { runCellsInWorkers, type TomographyCell } from './pool.js';
 import type { SightlineResult, TomographyStar } from '../science/tomography/types.js';
+
+// What other capabilities (masks) use of tomography: the cells of a run as answers show them.
+export { cellMeetsCriteria, describeCriteria, filterCells, type CellCriteria } from './criteria.js';
+export { cellInConvention, runSummary, SIGHTLINE_CONVENTIONS, type CellForOutput, type RunForOutput } from './cellOutput.js';
+export { provenanceComments } from './layersCsv.js';
+export { sendCells, setProvenanceHeaders, type CellsAnswer } from './sendCells.js';
 
 export interface RunParams {
   nside: number;
