@@ -98,7 +98,8 @@ function inlineDeepRefs(doc: Json): Json {
 
 async function generate(): Promise<string> {
   const document = liftDefs(buildDocument()) as unknown as OpenAPI3;
-  const ast = await openapiTS(document, { silent: true, alphabetize: false });
+  // defaultNonNullable off: a request field with a default stays optional (the server fills it in)
+  const ast = await openapiTS(document, { silent: true, alphabetize: false, defaultNonNullable: false });
   return HEADER + astToString(ast);
 }
 

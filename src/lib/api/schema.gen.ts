@@ -34,7 +34,7 @@ export interface paths {
          * This OpenAPI 3.1 document
          * @description **Who may call:** anyone, signed in or not.
          *
-         *     Rendered for people at /api/docs.
+         *     Generated from the route declarations (server/*\/routes.ts) and the schemas the server validates with; rendered for people at /api/docs.
          */
         get: operations["getOpenapiJson"];
         put?: never;
@@ -120,53 +120,9 @@ export interface paths {
          * Change your own password
          * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
          *
-         *     Your other sessions end, your personal API tokens are revoked and open password-reset links stop working; this session stays signed in.
+         *     Your other sessions end, your personal API tokens are revoked and open password-reset links stop working; this session stays signed in. Wrong current passwords are limited per account like failed sign-ins (429).
          */
         post: operations["postMePassword"];
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
-        trace?: never;
-    };
-    "/auth/password-reset/request": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        get?: never;
-        put?: never;
-        /**
-         * Ask for a password-reset link by e-mail
-         * @description **Who may call:** anyone, signed in or not.
-         *
-         *     Always answers 202 with the same message, whether or not the address has an account; an enabled account gets a one-time link `PUBLIC_URL/reset-password?token=…`. Every request counts towards the sign-in limit.
-         */
-        post: operations["postAuthPasswordResetRequest"];
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
-        trace?: never;
-    };
-    "/auth/password-reset/confirm": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        get?: never;
-        put?: never;
-        /**
-         * Set a new password with the e-mailed token
-         * @description **Who may call:** anyone, signed in or not.
-         *
-         *     Ends every session of the account and revokes its API tokens. An unknown, expired or used token is a 400; failed attempts are limited.
-         */
-        post: operations["postAuthPasswordResetConfirm"];
         delete?: never;
         options?: never;
         head?: never;
@@ -217,46 +173,6 @@ export interface paths {
          *     Disabling an account ends its sessions. You cannot disable yourself or take away your own admin role (400).
          */
         patch: operations["patchAdminUsersById"];
-        trace?: never;
-    };
-    "/admin/outbox": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        /**
-         * Every e-mail Starveil wrote, newest first
-         * @description **Who may call:** admin (admin passes every guard).
-         */
-        get: operations["getAdminOutbox"];
-        put?: never;
-        post?: never;
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
-        trace?: never;
-    };
-    "/overview": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        /**
-         * Survey name, star and instrument counts
-         * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
-         */
-        get: operations["getOverview"];
-        put?: never;
-        post?: never;
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
         trace?: never;
     };
     "/instruments": {
@@ -311,6 +227,28 @@ export interface paths {
          *     The code cannot change (uploads and stored measurements name it). New bands apply to uploads from now on; stored measurements keep theirs. Audited.
          */
         patch: operations["patchInstrumentsByCode"];
+        trace?: never;
+    };
+    "/overview": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Survey name, star and instrument counts
+         * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
+         *
+         *     Counts only the stars this person may know exist; `todo` lists what waits for them.
+         */
+        get: operations["getOverview"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
         trace?: never;
     };
     "/stars": {
@@ -374,7 +312,7 @@ export interface paths {
          * Upload a CSV batch
          * @description **Who may call:** observer, curator, admin (admin passes every guard).
          *
-         *     Multipart form. Identical bytes again answer 200 with the existing batch (idempotent re-upload). Small files are checked before the answer; larger ones continue in the background (poll GET /batches/{id}). A batch whose headers are ambiguous or incomplete waits in `needs_mapping`.
+         *     Multipart form. Identical bytes again answer 200 with the existing batch (idempotent re-upload). Small files are checked before the answer; larger ones continue in the background (poll GET /batches/{id}). A batch whose headers are ambiguous or incomplete waits in `needs_mapping`. A repeated `instrument` or `mapping` field, or a control character in the file name, is a 400 naming it.
          */
         post: operations["postBatches"];
         delete?: never;
@@ -557,6 +495,10 @@ export interface paths {
         /**
          * The review table of a batch, paged, sorted and filtered on the server
          * @description **Who may call:** observer, curator, admin (admin passes every guard); observers see their own batches only (another observer’s batch answers 404).
+         *
+         *     Filters are `filter.<column>=value` (also written `filter[<column>]=value`); an empty filter is ignored.
+         *
+         *     Measurement fields are snake_case (`star_source_id`, `theta_deg`), the page fields camelCase.
          */
         get: operations["getBatchesByIdMeasurements"];
         put?: never;
@@ -737,6 +679,50 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/batches/{id}/decision": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * The curator’s decision and note on a batch, as its uploader reads it
+         * @description **Who may call:** observer, curator, admin (admin passes every guard); observers see their own batches only (another observer’s batch answers 404).
+         *
+         *     The note a curator wrote when approving or returning the batch, who decided and when, the measurements by state after the decision, and the corrected files linked to it.
+         */
+        get: operations["getBatchesByIdDecision"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/batches/{id}/replaces": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Link this upload as the corrected file of a returned batch
+         * @description **Who may call:** observer, curator, admin (admin passes every guard); observers see their own batches only (another observer’s batch answers 404).
+         *
+         *     Send the corrected file with POST /batches first, then link it here to the returned batch it replaces (`batchId`). 409 when that batch is not returned (`not_returned`) or this one already replaces another (`already_linked`). Audited.
+         */
+        post: operations["postBatchesByIdReplaces"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/tomography/runs": {
         parameters: {
             query?: never;
@@ -814,7 +800,7 @@ export interface paths {
          * Every cell of a finished run, compact (for a sky map)
          * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
          *
-         *     A run that is not finished answers 409. (Today an id that is not a positive integer, e.g. `abc` or `0`, answers with the latest finished run instead of a 400.)
+         *     A run that is not finished answers 409. The id must be a positive integer: `abc` or `0` is a 400 naming `id` (there is no "latest" shorthand here; GET /tomography/runs lists the runs).
          */
         get: operations["getTomographyRunsByIdCells"];
         put?: never;
@@ -836,7 +822,7 @@ export interface paths {
          * Dust layers per cell: by pixel or in a cone
          * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
          *
-         *     Give either `nside` and `ipix` (nested, in the run’s coordinate system) or `ra`, `dec` and `radius` (ICRS). A cone returns every cell of the run that overlaps it — the cell containing the point always among them, even when its centre is outside the cone — each with `separationDeg` (cone centre to cell centre), nearest first; the cells are found through the HEALPix index (an inclusive disc query gives candidate pixel ranges; each candidate is then tested exactly, refined to 1/64 of a cell at the cone’s edge), never by reading the whole run. Per cell: star count, number of layers and its support, layers (distance, Stokes, angle), jumps between successive layers and the run it came from; criteria parameters keep only the cells that meet them. Starlight polarization is parallel to the plane-of-sky magnetic field; dust emission is polarized perpendicular to it, so add 90° to a layer angle before comparing it with an emission map.
+         *     Give either `nside` and `ipix` (nested, in the run’s coordinate system) or `ra`, `dec` and `radius` (ICRS). A cone returns every cell of the run that overlaps it — the cell containing the point always among them, even when its centre is outside the cone — each with `separationDeg` (cone centre to cell centre), nearest first; the cells are found through the HEALPix index (an inclusive disc query gives candidate pixel ranges; each candidate is then tested exactly, refined to 1/64 of a cell at the cone’s edge), never by reading the whole run. Per cell: star count, number of layers and its support, layers (distance, Stokes, angle), jumps between successive layers and the run it came from; criteria parameters keep only the cells that meet them. Starlight polarization is parallel to the plane-of-sky magnetic field; dust emission is polarized perpendicular to it, so add 90° to a layer angle before comparing it with an emission map. Unlike GET /sky and /masks, `run=0` here means the latest finished run, as no `run` does.
          */
         get: operations["getSightlines"];
         put?: never;
@@ -885,6 +871,70 @@ export interface paths {
          * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
          */
         get: operations["getReleasesByTag"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/auth/password-reset/request": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Ask for a password-reset link by e-mail
+         * @description **Who may call:** anyone, signed in or not.
+         *
+         *     Always answers 202 with the same message, whether or not the address has an account; an enabled account gets a one-time link `PUBLIC_URL/reset-password?token=…`. Every request counts towards the sign-in limit.
+         */
+        post: operations["postAuthPasswordResetRequest"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/auth/password-reset/confirm": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Set a new password with the e-mailed token
+         * @description **Who may call:** anyone, signed in or not.
+         *
+         *     Ends every session of the account and revokes its API tokens. An unknown, expired or used token is a 400; failed attempts are limited.
+         */
+        post: operations["postAuthPasswordResetConfirm"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/admin/outbox": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Every e-mail Starveil wrote, newest first
+         * @description **Who may call:** admin (admin passes every guard).
+         */
+        get: operations["getAdminOutbox"];
         put?: never;
         post?: never;
         delete?: never;
@@ -950,7 +1000,7 @@ export interface paths {
          * Every cell of a run in pixel order, page by page, with layers and jumps
          * @description **Who may call:** any signed-in role (observer, curator, modeler, admin).
          *
-         *     Pages follow the HEALPix nested pixel order of the run: pass the answer’s `next` (also in the Starveil-Next-Cursor header) as `cursor` until it is null. Criteria keep only the cells that meet them.
+         *     Pages follow the HEALPix nested pixel order of the run: pass the answer’s `next` (also in the Starveil-Next-Cursor header) as `cursor` until it is null. Criteria keep only the cells that meet them. `run=0` is a 400 (unlike GET /sightlines, where it means the latest run).
          */
         get: operations["getSky"];
         put?: never;
@@ -1123,50 +1173,6 @@ export interface paths {
         patch: operations["patchPlausibility"];
         trace?: never;
     };
-    "/batches/{id}/decision": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        /**
-         * The curator’s decision and note on a batch, as its uploader reads it
-         * @description **Who may call:** observer, curator, admin (admin passes every guard); observers see their own batches only (another observer’s batch answers 404).
-         *
-         *     The note a curator wrote when approving or returning the batch, who decided and when, the measurements by state after the decision, and the corrected files linked to it.
-         */
-        get: operations["getBatchesByIdDecision"];
-        put?: never;
-        post?: never;
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
-        trace?: never;
-    };
-    "/batches/{id}/replaces": {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        get?: never;
-        put?: never;
-        /**
-         * Link this upload as the corrected file of a returned batch
-         * @description **Who may call:** observer, curator, admin (admin passes every guard); observers see their own batches only (another observer’s batch answers 404).
-         *
-         *     Send the corrected file with POST /batches first, then link it here to the returned batch it replaces (`batchId`). 409 when that batch is not returned (`not_returned`) or this one already replaces another (`already_linked`). Audited.
-         */
-        post: operations["postBatchesByIdReplaces"];
-        delete?: never;
-        options?: never;
-        head?: never;
-        patch?: never;
-        trace?: never;
-    };
 }
 export type webhooks = Record<string, never>;
 export interface components {
@@ -1225,7 +1231,7 @@ export interface components {
              * @description true when the value has not been checked against its source
              * @default false
              */
-            fromMemory: boolean;
+            fromMemory?: boolean;
             note?: string;
         };
         /** New instrument (admin) */
@@ -1322,38 +1328,38 @@ export interface components {
              * @default 32
              * @enum {unknown}
              */
-            nside: 16 | 32 | 64 | 128 | 256;
+            nside?: 16 | 32 | 64 | 128 | 256;
             /**
              * @description cells and angles in Galactic (G) or equatorial ICRS (C) coordinates
              * @default G
              * @enum {unknown}
              */
-            coordsys: "G" | "C";
+            coordsys?: "G" | "C";
             /**
              * @default R
              * @enum {unknown}
              */
-            band: "U" | "B" | "V" | "R" | "I";
+            band?: "U" | "B" | "V" | "R" | "I";
             /**
              * @description cells with fewer stars are skipped
              * @default 10
              */
-            minStars: number;
+            minStars?: number;
             /**
              * @description Monte Carlo distance draws per cell
              * @default 100
              */
-            draws: number;
+            draws?: number;
             /**
              * @description |Δθ| above which two significant layers make a sightline complex
              * @default 30
              */
-            jumpThresholdDeg: number;
+            jumpThresholdDeg?: number;
             /**
              * @description count: fewest stars in a segment between two breaks
              * @default 3
              */
-            minSegmentLength: number;
+            minSegmentLength?: number;
             /**
              * @description bring measurements of every band to this band with the Serkowski law before combining (then `band` is set to it); absent or null: only measurements in `band`
              * @enum {unknown}
@@ -1363,7 +1369,7 @@ export interface components {
              * @description µm: λmax of the Serkowski law for the band normalisation
              * @default 0.55
              */
-            lambdaMaxUm: number;
+            lambdaMaxUm?: number;
             /** @description K of the Serkowski law; default 0.01 + 1.66·λmax (Whittet et al. 1992) */
             serkowskiK?: number;
             /** @description a cone (ICRS degrees); absent = the whole catalog */
@@ -3133,55 +3139,6 @@ export interface operations {
             400: components["responses"]["BadRequest"];
             401: components["responses"]["Unauthenticated"];
             403: components["responses"]["Forbidden"];
-        };
-    };
-    postAuthPasswordResetRequest: {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        requestBody: {
-            content: {
-                "application/json": components["schemas"]["api.password-reset-request"];
-            };
-        };
-        responses: {
-            /** @description accepted */
-            202: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content: {
-                    "application/json": components["schemas"]["responses.message"];
-                };
-            };
-            400: components["responses"]["BadRequest"];
-            429: components["responses"]["TooManyRequests"];
-        };
-    };
-    postAuthPasswordResetConfirm: {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        requestBody: {
-            content: {
-                "application/json": components["schemas"]["api.password-reset-confirm"];
-            };
-        };
-        responses: {
-            /** @description the new password is set */
-            204: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content?: never;
-            };
-            400: components["responses"]["BadRequest"];
             429: components["responses"]["TooManyRequests"];
         };
     };
@@ -3265,57 +3222,6 @@ export interface operations {
             401: components["responses"]["Unauthenticated"];
             403: components["responses"]["Forbidden"];
             404: components["responses"]["NotFound"];
-        };
-    };
-    getAdminOutbox: {
-        parameters: {
-            query?: {
-                /** @description count of messages per page, 1 to 500 (default 50) */
-                limit?: number;
-                /** @description count of messages to skip, ≥ 0 (default 0) */
-                offset?: number;
-            };
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        requestBody?: never;
-        responses: {
-            /** @description one page of the outbox */
-            200: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content: {
-                    "application/json": components["schemas"]["responses.outbox"];
-                };
-            };
-            400: components["responses"]["BadRequest"];
-            401: components["responses"]["Unauthenticated"];
-            403: components["responses"]["Forbidden"];
-            429: components["responses"]["TooManyRequests"];
-        };
-    };
-    getOverview: {
-        parameters: {
-            query?: never;
-            header?: never;
-            path?: never;
-            cookie?: never;
-        };
-        requestBody?: never;
-        responses: {
-            /** @description the overview */
-            200: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content: {
-                    "application/json": components["schemas"]["responses.overview"];
-                };
-            };
-            401: components["responses"]["Unauthenticated"];
-            429: components["responses"]["TooManyRequests"];
         };
     };
     getInstruments: {
@@ -3426,6 +3332,28 @@ export interface operations {
             404: components["responses"]["NotFound"];
         };
     };
+    getOverview: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description the overview */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.overview"];
+                };
+            };
+            401: components["responses"]["Unauthenticated"];
+            429: components["responses"]["TooManyRequests"];
+        };
+    };
     getStars: {
         parameters: {
             query?: {
@@ -3445,8 +3373,8 @@ export interface operations {
                 flag?: "above_efficiency_envelope" | "above_p_ceiling" | "low_p_snr" | "inconsistent_repeats" | "low_parallax_snr" | "no_distance";
                 /** @description column to sort by (default id; a cone search without sort is nearest first) */
                 sort?: "id" | "name" | "source_id" | "ra_deg" | "dec_deg" | "glon_deg" | "glat_deg" | "parallax_mas" | "n_measurements";
-                /** @description sort direction (default asc) */
-                order?: "asc" | "desc";
+                /** @description sort direction: desc, or asc (the default; any value other than desc counts as asc) */
+                order?: string;
                 /** @description count of stars per page, 1 to 1000 (default 50) */
                 limit?: number;
                 /** @description count of stars to skip, ≥ 0 (default 0) */
@@ -3458,7 +3386,7 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
-            /** @description one page of stars */
+            /** @description one page of stars. Field names in this answer mix camelCase (e.g. `sourceId`, `nMeasurements`) and snake_case (e.g. `ra_deg`, `dec_deg`, `glon_deg`); both are kept as published (see Field names in the introduction). */
             200: {
                 headers: {
                     [name: string]: unknown;
@@ -3484,7 +3412,7 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
-            /** @description the star */
+            /** @description the star. Field names in this answer mix camelCase (e.g. `sourceId`, `nMeasurements`, `batchId`) and snake_case (e.g. `ra_deg`, `dec_deg`, `glon_deg`); both are kept as published (see Field names in the introduction). */
             200: {
                 headers: {
                     [name: string]: unknown;
@@ -3655,7 +3583,7 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
-            /** @description one page of rows, by line */
+            /** @description one page of rows, by line. Field names in this answer mix camelCase (e.g. `measurementId`, `measurementState`, `duplicateOf`) and snake_case (e.g. `q_err`, `u_err`, `p_err`); both are kept as published (see Field names in the introduction). */
             200: {
                 headers: {
                     [name: string]: unknown;
@@ -3776,10 +3704,10 @@ export interface operations {
             query?: {
                 /** @description batches in this state (default awaiting_review) */
                 state?: "awaiting_review" | "approved" | "returned" | "needs_mapping" | "checking" | "failed";
-                /** @description age, rows or uploader (default age; another value also sorts by age) */
-                sort?: "age" | "rows" | "uploader";
-                /** @description sort direction (default desc); any value but asc is desc */
-                order?: "asc" | "desc";
+                /** @description age, rows or uploader (default age; any other value also sorts by age) */
+                sort?: string;
+                /** @description sort direction: asc, or desc (the default; any value other than asc counts as desc) */
+                order?: string;
             };
             header?: never;
             path?: never;
@@ -3811,8 +3739,8 @@ export interface operations {
                 offset?: number;
                 /** @description column to sort by (default line) */
                 sort?: "line" | "state" | "band" | "instrument" | "mjd" | "q" | "u" | "p" | "p_debiased" | "theta_deg" | "theta_err_deg" | "distance_pc" | "star_name";
-                /** @description sort direction (default asc); any value but desc is asc */
-                order?: "asc" | "desc";
+                /** @description sort direction: desc, or asc (the default; any value other than desc counts as asc) */
+                order?: string;
                 /** @description only measurements in this state */
                 "filter.state"?: "pending" | "conflict" | "ambiguous" | "approved" | "rejected" | "withdrawn";
                 /** @description only this band */
@@ -3835,7 +3763,7 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
-            /** @description one page of the table */
+            /** @description one page of the table. Field names in this answer mix camelCase (e.g. `measurementId`, `measurementState`, `duplicateOf`) and snake_case (e.g. `ra_deg`, `dec_deg`, `q_err`); both are kept as published (see Field names in the introduction). */
             200: {
                 headers: {
                     [name: string]: unknown;
@@ -4013,7 +3941,7 @@ export interface operations {
         requestBody?: {
             content: {
                 "application/json": {
-                    /** @description why (default "revert of change N") */
+                    /** @description why (default "revert of change N"); any other value is ignored */
                     reason?: string;
                 };
             };
@@ -4089,6 +4017,66 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["responses.batch-decision"];
+                };
+            };
+            400: components["responses"]["BadRequest"];
+            401: components["responses"]["Unauthenticated"];
+            403: components["responses"]["Forbidden"];
+            404: components["responses"]["NotFound"];
+            409: components["responses"]["Conflict"];
+        };
+    };
+    getBatchesByIdDecision: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description batch id (positive integer) */
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description the decision */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.calibration-decision"];
+                };
+            };
+            400: components["responses"]["BadRequest"];
+            401: components["responses"]["Unauthenticated"];
+            403: components["responses"]["Forbidden"];
+            404: components["responses"]["NotFound"];
+            429: components["responses"]["TooManyRequests"];
+        };
+    };
+    postBatchesByIdReplaces: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description batch id (positive integer) */
+                id: number;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["api.calibration-replaces"];
+            };
+        };
+        responses: {
+            /** @description the new batch’s decision record, naming the batch it replaces */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.calibration-decision"];
                 };
             };
             400: components["responses"]["BadRequest"];
@@ -4215,7 +4203,7 @@ export interface operations {
         };
         requestBody?: never;
         responses: {
-            /** @description the cells */
+            /** @description the cells. Field names in this answer mix camelCase (e.g. `starsUsed`, `measurementsUsed`, `startedBy`) and snake_case (e.g. `lon_deg`, `lat_deg`, `ra_deg`); both are kept as published (see Field names in the introduction). */
             200: {
                 headers: {
                     [name: string]: unknown;
@@ -4244,12 +4232,12 @@ export interface operations {
                 dec?: number;
                 /** @description deg, cone radius, (0, 30]; instead of nside and ipix */
                 radius?: number;
-                /** @description tomography run id (positive integer); default the latest finished run */
+                /** @description tomography run id; 0 or absent: the latest finished run */
                 run?: number;
                 /** @description release tag: answer from that frozen release's run (and, with include=stars, its frozen star copies) */
                 release?: string;
-                /** @description stars: also the stars of each cell as the run used them; only for cones of radius ≤ 5° touching at most 50 cells (else 400 naming include) */
-                include?: "stars";
+                /** @description stars: also the stars of each cell as the run used them; only for cones of radius ≤ 5° touching at most 50 cells (else 400 naming include); any other value is ignored */
+                include?: string;
                 /** @description count: keep cells with at least this many stars (default 0) */
                 minStars?: number;
                 /** @description count: keep cells with at least this many layers (default 0) */
@@ -4260,11 +4248,11 @@ export interface operations {
                 minSignificance?: number;
                 /** @description pc: keep cells with a layer at least this far (layer distance = its near edge, median over draws) */
                 minDistancePc?: number;
-                /** @description pc: keep cells with a layer at most this far; not below minDistancePc */
+                /** @description pc: keep cells with a layer at most this far; not below minDistancePc (else 400 naming maxDistancePc) */
                 maxDistancePc?: number;
-                /** @description Stokes and angle convention of the answer (default iau). iau: angles from north through east, U as measured. cosmo: every U-like value changes sign (U_COSMO = −U_IAU) and angles become (180° − θ_IAU) mod 180, jumps −Δθ; p, errors and significances do not change */
+                /** @description Stokes and angle convention of the answer (default iau; case ignored). iau: angles from north through east, U as measured. cosmo: every U-like value changes sign (U_COSMO = −U_IAU) and angles become (180° − θ_IAU) mod 180, jumps −Δθ; p, errors and significances do not change */
                 convention?: "iau" | "cosmo";
-                /** @description json (default) or csv: one row per layer with a units header */
+                /** @description json (default) or csv: one row per layer with a units header (case ignored) */
                 format?: "json" | "csv";
             };
             header?: never;
@@ -4352,7 +4340,7 @@ export interface operations {
             query?: never;
             header?: never;
             path: {
-                /** @description release tag (letters, digits, dot, dash, underscore) */
+                /** @description release tag (letters, digits, dot, dash, underscore; at most 60); a tag that names no release answers 404 */
                 tag: string;
             };
             cookie?: never;
@@ -4371,6 +4359,85 @@ export interface operations {
             400: components["responses"]["BadRequest"];
             401: components["responses"]["Unauthenticated"];
             404: components["responses"]["NotFound"];
+            429: components["responses"]["TooManyRequests"];
+        };
+    };
+    postAuthPasswordResetRequest: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["api.password-reset-request"];
+            };
+        };
+        responses: {
+            /** @description accepted */
+            202: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.message"];
+                };
+            };
+            400: components["responses"]["BadRequest"];
+            429: components["responses"]["TooManyRequests"];
+        };
+    };
+    postAuthPasswordResetConfirm: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["api.password-reset-confirm"];
+            };
+        };
+        responses: {
+            /** @description the new password is set */
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+            400: components["responses"]["BadRequest"];
+            429: components["responses"]["TooManyRequests"];
+        };
+    };
+    getAdminOutbox: {
+        parameters: {
+            query?: {
+                /** @description count of messages per page, 1 to 500 (default 50) */
+                limit?: number;
+                /** @description count of messages to skip, ≥ 0 (default 0) */
+                offset?: number;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description one page of the outbox */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.outbox"];
+                };
+            };
+            400: components["responses"]["BadRequest"];
+            401: components["responses"]["Unauthenticated"];
+            403: components["responses"]["Forbidden"];
             429: components["responses"]["TooManyRequests"];
         };
     };
@@ -4470,11 +4537,11 @@ export interface operations {
                 minSignificance?: number;
                 /** @description pc: keep cells with a layer at least this far (layer distance = its near edge, median over draws) */
                 minDistancePc?: number;
-                /** @description pc: keep cells with a layer at most this far; not below minDistancePc */
+                /** @description pc: keep cells with a layer at most this far; not below minDistancePc (else 400 naming maxDistancePc) */
                 maxDistancePc?: number;
-                /** @description Stokes and angle convention of the answer (default iau). iau: angles from north through east, U as measured. cosmo: every U-like value changes sign (U_COSMO = −U_IAU) and angles become (180° − θ_IAU) mod 180, jumps −Δθ; p, errors and significances do not change */
+                /** @description Stokes and angle convention of the answer (default iau; case ignored). iau: angles from north through east, U as measured. cosmo: every U-like value changes sign (U_COSMO = −U_IAU) and angles become (180° − θ_IAU) mod 180, jumps −Δθ; p, errors and significances do not change */
                 convention?: "iau" | "cosmo";
-                /** @description json (default) or csv: one row per layer with a units header */
+                /** @description json (default) or csv: one row per layer with a units header (case ignored) */
                 format?: "json" | "csv";
             };
             header?: never;
@@ -4511,7 +4578,7 @@ export interface operations {
     getMasks: {
         parameters: {
             query?: {
-                /** @description fits (default), moc-json, moc-ascii, csv or json */
+                /** @description fits (default), moc-json, moc-ascii, csv or json (case ignored) */
                 format?: "fits" | "moc-json" | "moc-ascii" | "csv" | "json";
                 /** @description HEALPix NSIDE of the mask: a power of two from the run’s NSIDE up to 512 (default the run’s) */
                 nside?: number;
@@ -4529,9 +4596,9 @@ export interface operations {
                 minSignificance?: number;
                 /** @description pc: keep cells with a layer at least this far (layer distance = its near edge, median over draws) */
                 minDistancePc?: number;
-                /** @description pc: keep cells with a layer at most this far; not below minDistancePc */
+                /** @description pc: keep cells with a layer at most this far; not below minDistancePc (else 400 naming maxDistancePc) */
                 maxDistancePc?: number;
-                /** @description Stokes and angle convention of the answer (default iau). iau: angles from north through east, U as measured. cosmo: every U-like value changes sign (U_COSMO = −U_IAU) and angles become (180° − θ_IAU) mod 180, jumps −Δθ; p, errors and significances do not change */
+                /** @description Stokes and angle convention of the answer (default iau; case ignored). iau: angles from north through east, U as measured. cosmo: every U-like value changes sign (U_COSMO = −U_IAU) and angles become (180° − θ_IAU) mod 180, jumps −Δθ; p, errors and significances do not change */
                 convention?: "iau" | "cosmo";
             };
             header?: never;
@@ -4553,6 +4620,8 @@ export interface operations {
                     "Starveil-Flagged-Cells"?: number;
                     /** @description HEALPix order of the MOC (moc formats) */
                     "Starveil-Moc-Order"?: number;
+                    /** @description rows of the CSV (format=csv) */
+                    "Starveil-Rows"?: number;
                     [name: string]: unknown;
                 };
                 content: {
@@ -4785,66 +4854,6 @@ export interface operations {
             400: components["responses"]["BadRequest"];
             401: components["responses"]["Unauthenticated"];
             403: components["responses"]["Forbidden"];
-        };
-    };
-    getBatchesByIdDecision: {
-        parameters: {
-            query?: never;
-            header?: never;
-            path: {
-                /** @description batch id (positive integer) */
-                id: number;
-            };
-            cookie?: never;
-        };
-        requestBody?: never;
-        responses: {
-            /** @description the decision */
-            200: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content: {
-                    "application/json": components["schemas"]["responses.calibration-decision"];
-                };
-            };
-            400: components["responses"]["BadRequest"];
-            401: components["responses"]["Unauthenticated"];
-            403: components["responses"]["Forbidden"];
-            404: components["responses"]["NotFound"];
-            429: components["responses"]["TooManyRequests"];
-        };
-    };
-    postBatchesByIdReplaces: {
-        parameters: {
-            query?: never;
-            header?: never;
-            path: {
-                /** @description batch id (positive integer) */
-                id: number;
-            };
-            cookie?: never;
-        };
-        requestBody: {
-            content: {
-                "application/json": components["schemas"]["api.calibration-replaces"];
-            };
-        };
-        responses: {
-            /** @description the new batch’s decision record, naming the batch it replaces */
-            200: {
-                headers: {
-                    [name: string]: unknown;
-                };
-                content: {
-                    "application/json": components["schemas"]["responses.calibration-decision"];
-                };
-            };
-            400: components["responses"]["BadRequest"];
-            401: components["responses"]["Unauthenticated"];
-            403: components["responses"]["Forbidden"];
-            404: components["responses"]["NotFound"];
-            409: components["responses"]["Conflict"];
         };
     };
 }

@@ -93,6 +93,8 @@ export type Run = S['responses.tomography-run'];
 export type RunState = Run['state'];
 export type RunParams = S['responses.tomography-run.params'];
 export type RunList = S['responses.tomography-runs'];
+/** The body of POST /tomography/runs. */
+export type RunRequest = S['api.tomography-run'];
 export type RunSummary = S['responses.run-summary'];
 export type RunCells = S['responses.tomography-cells'];
 export type SkyCell = RunCells['cells'][number];

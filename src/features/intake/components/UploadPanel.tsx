@@ -5,7 +5,7 @@ import { ApiError } from '../../../lib/apiClient';
 import { useBatch, WORKING_STATES } from '../../../lib/api/batch';
 import { useInstruments } from '../../../lib/api/instruments';
 import { useUploadBatch } from '../api/uploadBatch';
-import { formatBytes, formatCount } from '../../../lib/format';
+import { formatBytes } from '../../../lib/format';
 import type { FieldProblem } from '../types';
 import { ProgressBar } from '../../../components/ui/ProgressBar';
 import { CheckProgress } from './CheckProgress';

@@ -134,7 +134,7 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
   const template = visibleColumns.map((c) => `${c.getSize()}px`).join(' ');
   const width = table.getTotalSize();
   // line, state and star stay in place while scrolling sideways (sticky cells with an opaque ground)
-  const frozen = useMemo(() => frozenOffsets(visibleColumns.map((c) => ({ id: c.id, size: c.getSize() }))), [visibleColumns, template]); // eslint-disable-line react-hooks/exhaustive-deps
+  const frozen = useMemo(() => frozenOffsets(visibleColumns.map((c) => ({ id: c.id, size: c.getSize() }))), [visibleColumns, template]); // template: a column's size changed
 
   // Ask for the next page as the rows in view reach the end of what is loaded.
   const lastIndex = items.length ? items[items.length - 1].index : -1;

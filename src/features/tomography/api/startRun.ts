@@ -1,11 +1,12 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Run, RunParams } from '../types';
+import type { RunRequest } from '../../../lib/api/types';
+import type { Run } from '../types';
 import { RUNS_KEY, runsQueryOptions } from './runs';
 import { runQueryOptions } from './run';
 
 /** The body of POST /tomography/runs: every parameter, the cone only when the run is limited to one. */
-export type StartRunInput = Omit<RunParams, 'region'> & { region?: RunParams['region'] };
+export type StartRunInput = RunRequest;
 
 /** Start a run (curator, admin); the server answers 202 with the queued run. */
 export const startRun = (input: StartRunInput) => {

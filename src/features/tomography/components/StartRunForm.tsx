@@ -37,14 +37,15 @@ export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }
   const submit = (e: FormEvent) => {
     e.preventDefault();
     const body: StartRunInput = {
-      nside: Number(f.nside),
+      // the selects offer only the allowed values
+      nside: Number(f.nside) as StartRunInput['nside'],
       coordsys: f.coordsys,
-      band: f.band,
+      band: f.band as StartRunInput['band'],
       minStars: numberOf(f.minStars),
       draws: numberOf(f.draws),
       jumpThresholdDeg: numberOf(f.jumpThresholdDeg),
       minSegmentLength: numberOf(f.minSegmentLength),
-      ...(normalise ? { referenceBand: f.band } : {}),
+      ...(normalise ? { referenceBand: f.band as StartRunInput['band'] } : {}),
       ...(cone ? { region: { ra: numberOf(f.ra), dec: numberOf(f.dec), radius: numberOf(f.radius) } } : {}),
     };
     // JSON has no NaN: a blank number goes as null, which the server refuses naming the field

@@ -47,7 +47,7 @@ export function SightlinePage() {
             sub={
               <span className="num">
                 {params.coordsys === 'G' ? `l ${deg(cell.centre.lonDeg)}, b ${deg(cell.centre.latDeg, 2, true)} · ` : ''}RA {deg(cell.centre.raDeg)}, Dec {deg(cell.centre.decDeg, 2, true)} (ICRS) · run {q.data.run.id}, {params.band} band,{' '}
-                {frameName(params.coordsys)} angles · fingerprint <code title={q.data.run.fingerprint}>{shortFingerprint(q.data.run.fingerprint)}</code>
+                {frameName(params.coordsys)} angles · fingerprint <code title={q.data.run.fingerprint ?? undefined}>{shortFingerprint(q.data.run.fingerprint)}</code>
               </span>
             }
           >
