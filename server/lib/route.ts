@@ -182,8 +182,8 @@ function paramProblem(c: CompiledParams, errors: ErrorObject[], raw: Record<stri
 function checkParams(c: CompiledParams, input: Record<string, unknown>): Record<string, unknown> {
   const raw: Record<string, unknown> = {};
   for (const [name, value] of Object.entries(input)) {
-    // an empty query parameter counts as absent (?limit= takes the default)
-    if (c.where === 'query' && value === '') continue;
+    // undeclared query parameters are ignored (the handler can still read req.query), an empty one counts as absent
+    if (!(name in c.specs) || (c.where === 'query' && value === '')) continue;
     raw[name] = c.specs[name]?.lowercase && typeof value === 'string' ? value.toLowerCase() : value;
   }
   const values = { ...raw };

@@ -50,7 +50,6 @@ export const reviewRoutes = [
     method: 'get', path: '/batches/:id/measurements', tag: 'Review', who: OBS_CUR, whoNote: OWN_BATCHES,
     summary: 'The review table of a batch, paged, sorted and filtered on the server',
     description: 'Filters are `filter.<column>=value` (also written `filter[<column>]=value`); an empty filter is ignored.',
-    namingNote: 'Measurement fields are snake_case (`star_source_id`, `theta_deg`), the page fields camelCase.',
     params: idPath('batch'),
     query: {
       ...pageQuery(500, 5000, 'measurements'),
