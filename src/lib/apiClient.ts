@@ -1,4 +1,7 @@
 /** The one small API client: every server call goes through here (and through TanStack Query above it). */
+import type { ErrorBody } from './api/types';
+
+/** An error answer ({"error": {code, message, details?}}, the document's responses/error) with its HTTP status. */
 export class ApiError extends Error {
   constructor(
     readonly status: number,
@@ -25,7 +28,7 @@ async function request<T>(method: string, path: string, body?: Body, init: Reque
   const text = await res.text();
   const data = text ? JSON.parse(text) : undefined;
   if (!res.ok) {
-    const e = data?.error ?? {};
+    const e: Partial<ErrorBody['error']> = (data as Partial<ErrorBody> | undefined)?.error ?? {};
     throw new ApiError(res.status, e.code ?? 'error', e.message ?? `${res.status} ${res.statusText}`, e.details);
   }
   return data as T;

@@ -79,8 +79,33 @@ export const EDITABLE_FIELDS = [
 ] as const;
 export type EditableField = (typeof EDITABLE_FIELDS)[number];
 
+/** GET /batches/:id/decision: the curator's decision and note, for the uploader. */
+export type BatchDecisionRecord = Json<'/batches/{id}/decision', 'get'>;
+export type BatchRef = NonNullable<BatchDecisionRecord['replaces']>;
+
 // ---- calibration -------------------------------------------------------------------------------
 export type PlausibilitySettings = S['responses.calibration-plausibility'];
+export type BatchCalibration = Json<'/batches/{id}/calibration', 'get'>;
+export type CalibrationGroup = BatchCalibration['calibrations'][number];
+export type StandardResidual = CalibrationGroup['standards'][number];
+export type CalibrationApplied = Json<'/batches/{id}/calibration/apply', 'post'>;
+export type CalibrationReverted = Json<'/batches/{id}/calibration/revert', 'post'>;
+export type InstrumentCalibrationHistory = Json<'/instruments/{code}/calibrations', 'get'>;
+export type InstrumentCalibration = InstrumentCalibrationHistory['calibrations'][number];
+export type StandardStarList = Json<'/standard-stars', 'get'>;
+export type StandardStar = StandardStarList['standards'][number];
+/** The body of POST /standard-stars. */
+export type StandardStarRequest = S['api.calibration-standard-star'];
+
+// ---- overview, accounts, tokens, outbox ---------------------------------------------------------
+export type Overview = Json<'/overview', 'get'>;
+export type AccountList = Json<'/admin/users', 'get'>;
+export type Account = AccountList['users'][number];
+export type TokenList = Json<'/tokens', 'get'>;
+export type ApiToken = TokenList['tokens'][number];
+export type CreatedToken = Json<'/tokens', 'post'>;
+export type OutboxPage = Json<'/admin/outbox', 'get'>;
+export type OutboxMessage = OutboxPage['messages'][number];
 
 // ---- catalog -----------------------------------------------------------------------------------
 export type Star = S['responses.star'];

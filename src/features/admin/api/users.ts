@@ -1,16 +1,8 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Role } from '../../../lib/roles';
+import type { Account } from '../../../lib/api/types';
 
-export interface Account {
-  id: number;
-  email: string;
-  name: string;
-  role: Role;
-  disabled: boolean;
-  createdAt: string;
-  lastSignInAt: string | null;
-}
+export type { Account } from '../../../lib/api/types';
 
 export const getUsers = () => api.get<{ users: Account[] }>('/admin/users');
 export const usersQueryOptions = () => queryOptions({ queryKey: ['admin', 'users'], queryFn: getUsers });

@@ -1,11 +1,8 @@
 import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
+import type { CalibrationApplied } from '../../../lib/api/types';
 
-export interface ApplyResult {
-  batchId: number;
-  applied: { id: number; instrument: string; band: string; night: string | null; rowsCalibrated: number }[];
-  rowsCalibrated: number;
-}
+export type ApplyResult = CalibrationApplied;
 
 export const applyCalibration = ({ batchId, reason }: { batchId: number; reason?: string }) => api.post<ApplyResult>(`/batches/${batchId}/calibration/apply`, reason ? { reason } : {});
 

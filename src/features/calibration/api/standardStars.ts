@@ -1,8 +1,9 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
+import type { StandardStarList } from '../../../lib/api/types';
 import type { StandardStar } from '../types';
 
-export const getStandardStars = () => api.get<{ standards: StandardStar[] }>('/standard-stars');
+export const getStandardStars = () => api.get<StandardStarList>('/standard-stars');
 export const standardStarsQueryOptions = () => queryOptions({ queryKey: ['calibration', 'standards'], queryFn: getStandardStars });
 export const useStandardStars = () => useQuery(standardStarsQueryOptions());
 

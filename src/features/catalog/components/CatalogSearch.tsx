@@ -2,10 +2,9 @@ import { useState, type FormEvent } from 'react';
 import { Button } from '../../../components/ui/primitives';
 import type { Cone } from '../types';
 
-export interface FieldProblem {
-  field: string;
-  message: string;
-}
+import type { FieldProblem } from '../../../lib/api/types';
+
+export type { FieldProblem };
 
 const FIELD_LABEL: Record<string, string> = { ra: 'RA', dec: 'Dec', l: 'l', b: 'b', radius: 'Radius' };
 

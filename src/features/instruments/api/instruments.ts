@@ -1,20 +1,11 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
+import type { Instrument, InstrumentBand } from '../../../lib/api/types';
 
 export const BANDS = ['U', 'B', 'V', 'R', 'I'] as const;
-export type Band = (typeof BANDS)[number];
+export type Band = InstrumentBand;
 
-export interface RegisteredInstrument {
-  id: number;
-  code: string;
-  name: string;
-  bands: Band[];
-  description: string | null;
-  createdAt: string;
-  updatedAt: string | null;
-  /** stored measurements taken with it */
-  measurements: number;
-}
+export type RegisteredInstrument = Instrument;
 
 export interface InstrumentInput {
   code: string;
@@ -24,7 +15,7 @@ export interface InstrumentInput {
 }
 
 // same query key as the upload form's instrument list, so both refresh together
-export const useRegisteredInstruments = () => useQuery({ queryKey: ['instruments'], queryFn: () => api.get<{ instruments: RegisteredInstrument[] }>('/instruments') });
+export const useRegisteredInstruments = () => useQuery({ queryKey: ['instruments'], queryFn: () => api.get<{ instruments: Instrument[] }>('/instruments') });
 
 export function useCreateInstrument() {
   const qc = useQueryClient();

@@ -1,23 +1,10 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
+import type { BatchDecisionRecord } from '../../../lib/api/types';
 
-export interface BatchRef {
-  id: number;
-  filename: string;
-  state: string;
-}
+export type { BatchDecisionRecord, BatchRef } from '../../../lib/api/types';
 
-export interface BatchDecisionRecord {
-  batchId: number;
-  state: string;
-  decision: 'approved' | 'returned' | null;
-  note: string | null;
-  reviewedAt: string | null;
-  reviewedBy: { name: string } | null;
-  counts: Record<'approved' | 'rejected' | 'withdrawn' | 'conflict' | 'ambiguous' | 'pending', number>;
-  replaces: BatchRef | null;
-  replacedBy: BatchRef[];
-}
+
 
 export const getBatchDecision = (batchId: number) => api.get<BatchDecisionRecord>(`/batches/${batchId}/decision`);
 export const batchDecisionQueryOptions = (batchId: number) => queryOptions({ queryKey: ['review', 'decision', batchId], queryFn: () => getBatchDecision(batchId) });

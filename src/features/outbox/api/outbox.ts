@@ -1,19 +1,10 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
+import type { OutboxMessage, OutboxPage } from '../../../lib/api/types';
 
-export type OutboxStatus = 'stored' | 'sending' | 'sent' | 'failed';
+export type OutboxStatus = OutboxMessage['status'];
 
-export interface OutboxMessage {
-  id: number;
-  to: string;
-  from: string;
-  subject: string;
-  text: string;
-  createdAt: string;
-  transport: 'outbox' | 'smtp';
-  status: OutboxStatus;
-  error: string | null;
-}
+export type { OutboxMessage } from '../../../lib/api/types';
 
 export interface OutboxPageParams {
   limit: number;
@@ -22,7 +13,7 @@ export interface OutboxPageParams {
 
 /** Every e-mail Starveil composed, newest first (admin only). */
 export const getOutbox = (p: OutboxPageParams) =>
-  api.get<{ messages: OutboxMessage[]; total: number }>(`/admin/outbox?${new URLSearchParams({ limit: String(p.limit), offset: String(p.offset) })}`);
+  api.get<OutboxPage>(`/admin/outbox?${new URLSearchParams({ limit: String(p.limit), offset: String(p.offset) })}`);
 
 export const outboxQueryOptions = (p: OutboxPageParams) =>
   queryOptions({

@@ -1,6 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api, ApiError } from '../../../lib/apiClient';
-import type { EditableField, ReviewRow, RowWarning, StoredMeasurement } from '../types';
+import type { EditableField, ReviewRow, StoredMeasurement } from '../types';
+import type { MeasurementEditAnswer } from '../../../lib/api/types';
 import { findCachedRow, mergeWarnings, patchCachedRow, rowPatchFromStored } from './cache';
 import { measurementHistoryQueryOptions } from './history';
 
@@ -14,10 +15,7 @@ export interface EditInput {
   line?: number;
 }
 
-export interface EditAnswer {
-  measurement: StoredMeasurement;
-  warnings: RowWarning[];
-}
+export type EditAnswer = MeasurementEditAnswer;
 
 export const editMeasurement = (id: number, body: { changes: Partial<Record<EditableField, number | string | null>>; version: number; reason?: string }) =>
   api.patch<EditAnswer>(`/measurements/${id}`, body);

@@ -1,9 +1,9 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { ApiToken } from './tokens';
+import type { CreatedToken } from '../../../lib/api/types';
 
 /** The answer to a creation: the only time the secret is shown. */
-export type CreatedToken = Pick<ApiToken, 'id' | 'name' | 'createdAt'> & { token: string };
+export type { CreatedToken } from '../../../lib/api/types';
 
 export const createToken = (input: { name: string }) => api.post<CreatedToken>('/tokens', input);
 
