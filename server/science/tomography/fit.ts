@@ -45,16 +45,12 @@
  *   angles differ by more than jumpThresholdDeg; that implies ≥ 2 layers with snr ≥ minLayerSnr.
  */
 
-import { mulberry32, hashSeed } from '../random';
 import { layerContribution } from './contribution';
 import { angleDifferenceDeg } from '../axial';
-import { SegmentTable } from './segmentTable';
-import { PeltSolver } from './partition';
-import { mergeBlends } from './blend';
-import { makeStarDistanceSampler, distanceSigmaPc } from './distanceDraws';
+import { CellOrdering, drawFits, OrderingFitter, segmentsOf } from './ordering';
 import { fitSightlineSurvey } from './fitSurvey';
 import type {
-  FitOptions, SightlineResult, TomographyJump, TomographyLayer, TomographySegment, TomographyStar,
+  FitOptions, SightlineResult, TomographyJump, TomographyLayer, TomographyStar,
 } from './types';
 
 export interface ResolvedFitOptions {
@@ -156,64 +152,11 @@ export function percentileSorted(sorted: ArrayLike<number>, prob: number): numbe
   return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
 }
 
-/** Fits one ordering of a cell: PELT, then blend merging. Reuses its buffers. */
-class OrderingFitter {
-  readonly dist: Float64Array;
-  readonly sigma: Float64Array;
-  readonly bounds: number[] = [];
-  private readonly breaks: number[] = [];
-  private readonly solver: PeltSolver;
-  blendsMerged = 0;
-
-  constructor(
-    readonly table: SegmentTable,
-    private readonly opt: ResolvedFitOptions,
-    private readonly penalty: number,
-  ) {
-    this.dist = new Float64Array(table.n);
-    this.sigma = new Float64Array(table.n);
-    this.solver = new PeltSolver(table.n);
-  }
-
-  /** Segments the table's current ordering (dist and sigma already filled). */
-  run(): void {
-    const n = this.table.n;
-    this.solver.solve(n, this.opt.minSegmentLength, this.penalty, this.table, this.breaks);
-    const b = this.bounds;
-    b.length = 0;
-    b.push(0);
-    for (const x of this.breaks) b.push(x);
-    b.push(n);
-    this.blendsMerged = mergeBlends(this.table, b, this.dist, this.sigma, this.opt);
-  }
-
-  /**
-   * Whether the nearest segment is consistent with zero polarization. Only its stars securely in
-   * front of the first break enter the test — d_i + 2σ_i below the break position — because
-   * stars from behind the cloud that sort in front through distance errors would otherwise make
-   * a clear foreground look polarized (all of them when none is secure).
-   */
+/** The classic fit of one ordering: PELT and blend merging, its foreground test and positions. */
+class ClassicOrderingFitter extends OrderingFitter {
+  /** The nearest segment is consistent with zero: χ² (foregroundChi2) within the BIC-like penalty. */
   clearForeground(): boolean {
-    const table = this.table;
-    const end = this.bounds[1];
-    const t = table.select(0, end);
-    const s2 = t.selScatterVar;
-    const edge = end < table.n ? 0.5 * (this.dist[end - 1] + this.dist[end]) : Infinity;
-    let wq = 0, sq = 0, wu = 0, su = 0, used = 0;
-    for (let pass = 0; pass < 2 && used === 0; pass++) {
-      for (let i = 0; i < end; i++) {
-        if (pass === 0 && !(this.dist[i] + 2 * this.sigma[i] < edge)) continue;
-        const a = 1 / (table.vq[i] + s2), b = 1 / (table.vu[i] + s2);
-        wq += a; sq += a * table.q[i]; wu += b; su += b * table.u[i];
-        used++;
-      }
-    }
-    const chi2 = (sq * sq) / wq + (su * su) / wu; // (q̄/σ_q̄)² + (ū/σ_ū)²
-    return chi2 <= this.opt.foregroundPenaltyParams * Math.log(table.n);
-  }
-
-  layerCount(clear: boolean): number {
-    return this.bounds.length - 2 + (clear ? 0 : 1);
+    return this.foregroundChi2() <= this.opt.foregroundPenaltyParams * Math.log(this.table.n);
   }
 
   /**
@@ -234,20 +177,6 @@ class OrderingFitter {
     let total = 0;
     for (let j = 0; j < this.bounds.length - 1; j++) total += this.table.cost(this.bounds[j], this.bounds[j + 1]);
     return total + this.penalty * (this.bounds.length - 2);
-  }
-}
-
-/** Sort positions by key (ties by canonical index), starting from a nearly sorted permutation. */
-function insertionSortBy(perm: Int32Array, key: Float64Array): void {
-  for (let i = 1; i < perm.length; i++) {
-    const p = perm[i];
-    const k = key[p];
-    let j = i - 1;
-    while (j >= 0 && (key[perm[j]] > k || (key[perm[j]] === k && perm[j] > p))) {
-      perm[j + 1] = perm[j];
-      j--;
-    }
-    perm[j + 1] = p;
   }
 }
 
@@ -277,27 +206,13 @@ export function fitSightlineClassic(stars: TomographyStar[], options: FitOptions
   if (n === 0) return emptyResult(opt.cellId, opt.draws);
   const canon = stars.slice().sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
   const penalty = opt.penaltyParamsPerBreak * Math.log(n);
-  const table = new SegmentTable(
-    canon.map((s) => s.q), canon.map((s) => s.u), canon.map((s) => s.qErr), canon.map((s) => s.uErr),
-    hashSeed(opt.cellId, 'keys'),
-  );
-  const fitter = new OrderingFitter(table, opt, penalty);
-  const sigmaCanon = Float64Array.from(canon, distanceSigmaPc);
-  const nominalDist = Float64Array.from(canon, (s) => s.distancePc);
+  const ordering = new CellOrdering(canon, opt.cellId);
+  const table = ordering.table;
+  const fitter = new ClassicOrderingFitter(table, opt, penalty);
 
   // Nominal fit at catalogue distances.
-  const perm = new Int32Array(n);
-  for (let i = 0; i < n; i++) perm[i] = i;
-  insertionSortBy(perm, nominalDist);
-  const nominalPerm = perm.slice();
-  const applyOrder = (dist: Float64Array): void => {
-    table.setOrder(perm);
-    for (let pos = 0; pos < n; pos++) {
-      fitter.dist[pos] = dist[perm[pos]];
-      fitter.sigma[pos] = sigmaCanon[perm[pos]];
-    }
-  };
-  applyOrder(nominalDist);
+  ordering.sortBy(ordering.nominalDist, fitter);
+  const nominalPerm = ordering.perm.slice();
   fitter.run();
   const bounds = fitter.bounds.slice();
   const clear = fitter.clearForeground();
@@ -306,47 +221,21 @@ export function fitSightlineClassic(stars: TomographyStar[], options: FitOptions
   const totalCost = fitter.totalCost();
   const nominalPositions = new Float64Array(Math.max(1, nLayers));
   fitter.positions(clear, nominalPositions, 0);
-
-  const segments: TomographySegment[] = [];
-  for (let j = 0; j < bounds.length - 1; j++) {
-    const start = bounds[j], end = bounds[j + 1];
-    const t = table.select(start, end);
-    segments.push({
-      start, end,
-      nearestPc: fitter.dist[start], farthestPc: fitter.dist[end - 1],
-      meanQ: t.selMeanQ, meanU: t.selMeanU,
-      meanQErr: Math.sqrt(t.selVarMeanQ), meanUErr: Math.sqrt(t.selVarMeanU),
-      scatter: Math.sqrt(t.selScatterVar), cost: t.selCost,
-    });
-  }
+  const segments = segmentsOf(table, bounds, fitter.dist);
 
   // Monte Carlo over distance draws.
   const D = opt.draws;
   const hist: number[] = [];
   const matched = new Float64Array(Math.max(1, D * nLayers));
   let nMatched = 0;
-  if (D > 0) {
-    const samplers = canon.map(makeStarDistanceSampler);
-    const drawDist = new Float64Array(n);
-    const maxLayers = n + 1;
-    const scratchPos = new Float64Array(maxLayers);
-    for (let d = 0; d < D; d++) {
-      const rng = mulberry32(hashSeed(opt.cellId, d));
-      for (let i = 0; i < n; i++) drawDist[i] = samplers[i](rng);
-      insertionSortBy(perm, drawDist);
-      applyOrder(drawDist);
-      fitter.run();
-      const c = fitter.clearForeground();
-      const L = fitter.layerCount(c);
-      while (hist.length <= L) hist.push(0);
-      hist[L]++;
-      if (L === nLayers && nLayers > 0) {
-        fitter.positions(c, scratchPos, 0, opt.breakPosition === 'uniform' ? rng : undefined);
-        for (let k = 0; k < nLayers; k++) matched[k * D + nMatched] = scratchPos[k];
-        nMatched++;
-      } else if (L === nLayers) {
-        nMatched++;
-      }
+  const scratchPos = new Float64Array(n + 1);
+  for (const draw of drawFits(ordering, fitter, opt, hist)) {
+    if (draw.count === nLayers && nLayers > 0) {
+      fitter.positions(draw.clear, scratchPos, 0, opt.breakPosition === 'uniform' ? draw.rng : undefined);
+      for (let k = 0; k < nLayers; k++) matched[k * D + nMatched] = scratchPos[k];
+      nMatched++;
+    } else if (draw.count === nLayers) {
+      nMatched++;
     }
   }
   while (hist.length <= nLayers) hist.push(0);
@@ -379,30 +268,20 @@ export function fitSightlineClassic(stars: TomographyStar[], options: FitOptions
     });
   }
 
-  const jumps: TomographyJump[] = [];
-  for (let k = 1; k < layers.length; k++) jumps.push(jumpBetween(layers[k - 1], layers[k]));
-  const complex = isComplex(layers, opt.minLayerSnr, opt.jumpThresholdDeg);
-
-  return {
-    cellId: opt.cellId,
+  return sightlineResult(opt, { canon, perm: nominalPerm, bounds }, {
     nStars: n,
     nLayers,
     layerCountSupport: D > 0 ? nMatched / D : 1,
     layerCountHistogram: hist,
     clearForeground: clear,
     layers,
-    jumps,
-    complex,
     segments,
-    breaksFromNominal: bounds.slice(1, -1),
-    starOrder: Array.from(nominalPerm, (i) => canon[i].id),
     blendsMerged,
     matchedDraws: nMatched,
-    draws: D,
     totalCost,
     method: 'classic',
     starsNotPlaced: [],
-  };
+  });
 }
 
 export function jumpBetween(from: TomographyLayer, to: TomographyLayer): TomographyJump {
@@ -415,6 +294,41 @@ export function jumpBetween(from: TomographyLayer, to: TomographyLayer): Tomogra
     sigmaDeg,
     significance: sigmaDeg > 0 ? Math.abs(deltaThetaDeg) / sigmaDeg : Infinity,
   };
+}
+
+/** A fit's result from its parts (keys in the stored order); jumps and the complex flag follow from the layers. */
+export function sightlineResult(
+  opt: ResolvedFitOptions,
+  nominal: { canon: TomographyStar[]; perm: ArrayLike<number>; bounds: number[] },
+  r: Omit<SightlineResult, 'cellId' | 'jumps' | 'complex' | 'draws' | 'breaksFromNominal' | 'starOrder'>,
+): SightlineResult {
+  return {
+    cellId: opt.cellId,
+    nStars: r.nStars,
+    nLayers: r.nLayers,
+    layerCountSupport: r.layerCountSupport,
+    layerCountHistogram: r.layerCountHistogram,
+    clearForeground: r.clearForeground,
+    layers: r.layers,
+    jumps: layerJumps(r.layers),
+    complex: isComplex(r.layers, opt.minLayerSnr, opt.jumpThresholdDeg),
+    segments: r.segments,
+    breaksFromNominal: nominal.bounds.slice(1, -1),
+    starOrder: Array.from(nominal.perm, (i) => nominal.canon[i].id),
+    blendsMerged: r.blendsMerged,
+    matchedDraws: r.matchedDraws,
+    draws: opt.draws,
+    totalCost: r.totalCost,
+    method: r.method,
+    starsNotPlaced: r.starsNotPlaced,
+  };
+}
+
+/** The jumps between successive layers. */
+export function layerJumps(layers: TomographyLayer[]): TomographyJump[] {
+  const jumps: TomographyJump[] = [];
+  for (let k = 1; k < layers.length; k++) jumps.push(jumpBetween(layers[k - 1], layers[k]));
+  return jumps;
 }
 
 /** Two successive layers among those with snr ≥ minLayerSnr differ by more than the threshold. */

@@ -58,17 +58,15 @@
  *    the reported (median) layer distances, so the segment means shown belong to the layers shown.
  */
 
-import { mulberry32, hashSeed } from '../random';
 import { layerContribution } from './contribution';
 import { correctParallax } from '../distance';
-import { SegmentTable } from './segmentTable';
-import { PeltSolver } from './partition';
-import { mergeBlends } from './blend';
-import { makeStarDistanceSampler, distanceSigmaPc } from './distanceDraws';
+import type { SegmentTable } from './segmentTable';
+import { distanceSigmaPc } from './distanceDraws';
+import { CellOrdering, drawFits, OrderingFitter, segmentsOf } from './ordering';
 import {
-  resolveFitOptions, validateStars, emptyResult, percentileSorted, jumpBetween, isComplex, type ResolvedFitOptions,
+  resolveFitOptions, validateStars, emptyResult, percentileSorted, sightlineResult, type ResolvedFitOptions,
 } from './fit';
-import type { FitOptions, SightlineResult, TomographyJump, TomographyLayer, TomographySegment, TomographyStar } from './types';
+import type { FitOptions, SightlineResult, TomographyLayer, TomographyStar } from './types';
 
 /** Precision of a star's distance as a parallax S/N: ϖ/σϖ (zero point applied), else d/σ_d. */
 export function distanceSnr(s: TomographyStar): number {
@@ -79,48 +77,20 @@ export function distanceSnr(s: TomographyStar): number {
   return sd > 0 ? s.distancePc / sd : Infinity;
 }
 
-function sortPermBy(perm: Int32Array, key: Float64Array): void {
-  for (let i = 1; i < perm.length; i++) {
-    const p = perm[i];
-    const k = key[p];
-    let j = i - 1;
-    while (j >= 0 && (key[perm[j]] > k || (key[perm[j]] === k && perm[j] > p))) {
-      perm[j + 1] = perm[j];
-      j--;
-    }
-    perm[j + 1] = p;
-  }
-}
-
 /** Segments one ordering: PELT, blend merging, nearest split, step test; then the foreground reading. */
-class SurveyOrderingFitter {
-  readonly dist: Float64Array;
-  readonly sigma: Float64Array;
-  readonly bounds: number[] = [];
-  private readonly breaks: number[] = [];
-  private readonly solver: PeltSolver;
+class SurveyOrderingFitter extends OrderingFitter {
   private readonly stepThreshold: number;
   private readonly clearThreshold: number;
-  blendsMerged = 0;
 
-  constructor(readonly table: SegmentTable, private readonly opt: ResolvedFitOptions, private readonly penalty: number) {
-    this.dist = new Float64Array(table.n);
-    this.sigma = new Float64Array(table.n);
-    this.solver = new PeltSolver(table.n);
+  constructor(table: SegmentTable, opt: ResolvedFitOptions, penalty: number) {
+    super(table, opt, penalty);
     const lnN = Math.log(Math.max(2, table.n));
     this.stepThreshold = stepChi2Threshold(table.n, opt.stepFamilyAlpha);
     this.clearThreshold = Math.max(this.stepThreshold, opt.foregroundPenaltyParams * lnN);
   }
 
   run(): void {
-    const n = this.table.n;
-    this.solver.solve(n, this.opt.minSegmentLength, this.penalty, this.table, this.breaks);
-    const b = this.bounds;
-    b.length = 0;
-    b.push(0);
-    for (const x of this.breaks) b.push(x);
-    b.push(n);
-    this.blendsMerged = mergeBlends(this.table, b, this.dist, this.sigma, this.opt);
+    super.run();
     // Split before merging (a mixed nearest segment's large scatter would hide the steps behind
     // it), and again after (merging can leave the unpolarized stars inside a longer segment).
     this.splitNearest();
@@ -209,30 +179,9 @@ class SurveyOrderingFitter {
     }
   }
 
-  /**
-   * Whether the nearest segment is consistent with zero (classic fit's test): only its stars
-   * securely in front of the first break (d + 2σ below it) enter, all of them when none is.
-   */
+  /** Whether the nearest segment is consistent with zero: foregroundChi2 within clearThreshold. */
   clearForeground(): boolean {
-    const table = this.table;
-    const end = this.bounds[1];
-    const t = table.select(0, end);
-    const s2 = t.selScatterVar;
-    const edge = end < table.n ? 0.5 * (this.dist[end - 1] + this.dist[end]) : Infinity;
-    let wq = 0, sq = 0, wu = 0, su = 0, used = 0;
-    for (let pass = 0; pass < 2 && used === 0; pass++) {
-      for (let i = 0; i < end; i++) {
-        if (pass === 0 && !(this.dist[i] + 2 * this.sigma[i] < edge)) continue;
-        const a = 1 / (table.vq[i] + s2), c = 1 / (table.vu[i] + s2);
-        wq += a; sq += a * table.q[i]; wu += c; su += c * table.u[i];
-        used++;
-      }
-    }
-    return (sq * sq) / wq + (su * su) / wu <= this.clearThreshold;
-  }
-
-  layerCount(clear: boolean): number {
-    return this.bounds.length - 2 + (clear ? 0 : 1);
+    return this.foregroundChi2() <= this.clearThreshold;
   }
 
   /** Layer positions into out; with gapLo/gapHi also the two stars straddling each break. */
@@ -267,27 +216,14 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
   const starsNotPlaced = canonAll.filter((s) => !placedIds.has(s.id)).map((s) => s.id);
   const n = canon.length;
   const penalty = opt.penaltyParamsPerBreak * Math.log(n);
-  const table = new SegmentTable(
-    canon.map((s) => s.q), canon.map((s) => s.u), canon.map((s) => s.qErr), canon.map((s) => s.uErr),
-    hashSeed(opt.cellId, 'keys'),
-  );
+  const ordering = new CellOrdering(canon, opt.cellId);
+  const table = ordering.table;
   const fitter = new SurveyOrderingFitter(table, opt, penalty);
-  const sigmaCanon = Float64Array.from(canon, distanceSigmaPc);
-  const nominalDist = Float64Array.from(canon, (s) => s.distancePc);
-  const perm = new Int32Array(n);
-  for (let i = 0; i < n; i++) perm[i] = i;
-  const applyOrder = (dist: Float64Array): void => {
-    table.setOrder(perm);
-    for (let pos = 0; pos < n; pos++) {
-      fitter.dist[pos] = dist[perm[pos]];
-      fitter.sigma[pos] = sigmaCanon[perm[pos]];
-    }
-  };
+  const nominalDist = ordering.nominalDist;
 
   // Nominal fit (catalogue distances): the tie-breaker, and the reading when draws = 0.
-  sortPermBy(perm, nominalDist);
-  const nominalPerm = perm.slice();
-  applyOrder(nominalDist);
+  ordering.sortBy(nominalDist, fitter);
+  const nominalPerm = ordering.perm.slice();
   fitter.run();
   const nominalClear = fitter.clearForeground();
   const nominalCount = fitter.layerCount(nominalClear);
@@ -304,29 +240,16 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
   const drawPositions: Float64Array[] = [];
   const drawGapLo: Float64Array[] = [];
   const drawGapHi: Float64Array[] = [];
-  if (D > 0) {
-    const samplers = canon.map(makeStarDistanceSampler);
-    const drawDist = new Float64Array(n);
-    const scratch = new Float64Array(n + 1);
-    const scratchLo = new Float64Array(n + 1);
-    const scratchHi = new Float64Array(n + 1);
-    for (let d = 0; d < D; d++) {
-      const rng = mulberry32(hashSeed(opt.cellId, d));
-      for (let i = 0; i < n; i++) drawDist[i] = samplers[i](rng);
-      sortPermBy(perm, drawDist);
-      applyOrder(drawDist);
-      fitter.run();
-      const c = fitter.clearForeground();
-      const L = fitter.layerCount(c);
-      while (hist.length <= L) hist.push(0);
-      hist[L]++;
-      drawCount[d] = L;
-      drawClear[d] = c ? 1 : 0;
-      fitter.positions(c, scratch, opt.breakPosition === 'uniform' ? rng : undefined, scratchLo, scratchHi);
-      drawPositions.push(scratch.slice(0, L));
-      drawGapLo.push(scratchLo.slice(0, L));
-      drawGapHi.push(scratchHi.slice(0, L));
-    }
+  const scratch = new Float64Array(n + 1);
+  const scratchLo = new Float64Array(n + 1);
+  const scratchHi = new Float64Array(n + 1);
+  for (const { draw: d, rng, clear: c, count: L } of drawFits(ordering, fitter, opt, hist)) {
+    drawCount[d] = L;
+    drawClear[d] = c ? 1 : 0;
+    fitter.positions(c, scratch, opt.breakPosition === 'uniform' ? rng : undefined, scratchLo, scratchHi);
+    drawPositions.push(scratch.slice(0, L));
+    drawGapLo.push(scratchLo.slice(0, L));
+    drawGapHi.push(scratchHi.slice(0, L));
   }
 
   // Choice 2: the modal count over the draws (nominal as tie-breaker).
@@ -380,21 +303,10 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
   // Keep every segment non-empty: cuts strictly increasing within 1..n−1.
   const nb = bounds.length - 2;
   for (let j = 1; j <= nb; j++) bounds[j] = Math.min(Math.max(bounds[j], bounds[j - 1] + 1), n - (nb - j + 1));
-  perm.set(nominalPerm); // the draws left perm in their own order
-  applyOrder(nominalDist);
+  ordering.perm.set(nominalPerm); // the draws left perm in their own order
+  ordering.apply(nominalDist, fitter);
 
-  const segments: TomographySegment[] = [];
-  for (let j = 0; j < bounds.length - 1; j++) {
-    const start = bounds[j], end = bounds[j + 1];
-    const t = table.select(start, end);
-    segments.push({
-      start, end,
-      nearestPc: fitter.dist[start], farthestPc: fitter.dist[end - 1],
-      meanQ: t.selMeanQ, meanU: t.selMeanU,
-      meanQErr: Math.sqrt(t.selVarMeanQ), meanUErr: Math.sqrt(t.selVarMeanU),
-      scatter: Math.sqrt(t.selScatterVar), cost: t.selCost,
-    });
-  }
+  const segments = segmentsOf(table, bounds, fitter.dist);
   let totalCost = penalty * (bounds.length - 2);
   for (const s of segments) totalCost += s.cost;
 
@@ -450,30 +362,20 @@ export function fitSightlineSurvey(stars: TomographyStar[], options: FitOptions 
     });
   }
 
-  const jumps: TomographyJump[] = [];
-  for (let k = 1; k < layers.length; k++) jumps.push(jumpBetween(layers[k - 1], layers[k]));
-  const complex = isComplex(layers, opt.minLayerSnr, opt.jumpThresholdDeg);
-
-  return {
-    cellId: opt.cellId,
+  return sightlineResult(opt, { canon, perm: nominalPerm, bounds }, {
     nStars: nAll,
     nLayers,
     layerCountSupport: D > 0 ? (hist[nLayers] ?? 0) / D : 1,
     layerCountHistogram: hist,
     clearForeground: clear,
     layers,
-    jumps,
-    complex,
     segments,
-    breaksFromNominal: bounds.slice(1, -1),
-    starOrder: Array.from(nominalPerm, (i) => canon[i].id),
     blendsMerged,
     matchedDraws: D > 0 ? nMatched : 0,
-    draws: D,
     totalCost,
     method: 'survey',
     starsNotPlaced,
-  };
+  });
 }
 
 /** Choice 3: χ²₂ threshold 2·ln((n − 1)/α), Bonferroni over the n − 1 possible break places. */
