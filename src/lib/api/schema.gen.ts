@@ -497,8 +497,6 @@ export interface paths {
          * @description **Who may call:** observer, curator, admin (admin passes every guard); observers see their own batches only (another observer’s batch answers 404).
          *
          *     Filters are `filter.<column>=value` (also written `filter[<column>]=value`); an empty filter is ignored.
-         *
-         *     Measurement fields are snake_case (`star_source_id`, `theta_deg`), the page fields camelCase.
          */
         get: operations["getBatchesByIdMeasurements"];
         put?: never;
