@@ -5,6 +5,10 @@ import { AppError, badRequest, conflict, notFound } from '../errors.js';
 import { COST, DEMO_PASSWORD, hashPassword, verifyPassword } from './passwords.js';
 import type { Role, SessionUser } from './roles.js';
 
+// what other capabilities use of auth, through this file: hashing a new password, the demo password, sign-in-like rate limits
+export { DEMO_PASSWORD, hashPassword } from './passwords.js';
+export { attemptLimiter } from './rate-limit.js';
+
 export interface UserRow {
   id: number;
   email: string;

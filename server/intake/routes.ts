@@ -2,15 +2,16 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { RequestHandler } from 'express';
 import multer from 'multer';
+import { stringify } from 'csv-stringify/sync';
 import type { Config } from '../config.js';
 import { AppError, badRequest } from '../errors.js';
 import { reply, route } from '../lib/route.js';
 import { idPath, pageQuery, query } from '../lib/query.js';
+import { BATCH_STATES } from '../lib/visibility.js';
 import { COLUMNS } from '../measurements/columns.js';
 import type { IntakeService } from './service.js';
 
 const ROW_STATES = ['accepted', 'rejected', 'duplicate', 'conflict', 'ambiguous'];
-const BATCH_STATES = ['received', 'needs_mapping', 'checking', 'awaiting_review', 'failed', 'approved', 'returned'];
 
 /** A repeated text field or an unusable file name in an upload (multer turns a repeated field into an array). */
 function uploadFieldProblem(body: Record<string, unknown> | undefined, filename: string): { field: string; message: string } | null {
@@ -96,7 +97,7 @@ export const intakeRoutes = [
   route<IntakeDeps, object, { state?: string; limit: number; offset: number }>({
     method: 'get', path: '/batches', tag: 'Intake', who: OBS_CUR, whoNote: OWN_BATCHES,
     summary: 'Batches, newest first',
-    query: { state: query('only batches in this state', { type: 'string', enum: BATCH_STATES }), ...pageQuery(100, 500, 'batches') },
+    query: { state: query('only batches in this state', { type: 'string', enum: [...BATCH_STATES] }), ...pageQuery(100, 500, 'batches') },
     responses: { 200: { description: 'one page of batches', schema: 'responses/batches' } },
     errors: [400],
     handler: ({ user, query: q }, { intake }) => intake.list(user, q),
@@ -188,7 +189,8 @@ export const intakeRoutes = [
         q: '0.0123', u: '-0.0045', q_err: '0.0008', u_err: '0.0008', angle_frame: 'equatorial', parallax_mas: '1.9', parallax_err_mas: '0.05',
         mjd: '61005.2431', instrument: 'KR-HAWK', ebv: '0.21',
       };
-      const csv = `${header.join(',')}\r\n${header.map((h) => example[h] ?? '').join(',')}\r\n`;
+      // our own fixed text (no formula neutralising: the example values must upload as they are)
+      const csv = stringify([header, header.map((h) => example[h] ?? '')], { record_delimiter: 'windows' });
       res.type('text/csv; charset=utf-8').attachment('starveil-template.csv').send(csv);
       return undefined;
     },

@@ -2,8 +2,7 @@ import crypto from 'node:crypto';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { AppError, badRequest } from '../errors.js';
-import { DEMO_PASSWORD, hashPassword } from '../auth/passwords.js';
-import { endAccountAccess } from '../auth/service.js';
+import { DEMO_PASSWORD, endAccountAccess, hashPassword } from '../auth/service.js';
 import type { Mailer } from './transport.js';
 
 /** sha256 (hex) of a reset token: what the database keeps instead of the token. */

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex';
 import { ipKeyGenerator } from 'express-rate-limit';
-import { attemptLimiter } from '../auth/rate-limit.js';
+import { attemptLimiter } from '../auth/service.js';
 import { reply, route } from '../lib/route.js';
 import { pageQuery } from '../lib/query.js';
 import type { Config } from '../config.js';

@@ -4,8 +4,8 @@ import { conventionQuery, criteriaOf, criteriaQuery, formatQuery, limitQuery, qu
 import { npixForNside } from '../science/healpix.js';
 import { mocToAscii, mocToJson, mocSkyFraction, mocCellCount } from '../science/moc.js';
 import type { StokesConvention } from '../science/convention.js';
-import { SIGHTLINE_CONVENTIONS } from '../tomography/routes.js';
-import { runSummary, sendCells, setProvenanceHeaders, streamCsv } from './format.js';
+import { runSummary, sendCells, setProvenanceHeaders, SIGHTLINE_CONVENTIONS } from '../tomography/service.js';
+import { streamCsv } from '../lib/csv.js';
 import { assertMaskCsvSize, maskCells, maskCsvPieces, maskFits, maskMoc, maskNside } from './mask.js';
 import type { SkyService } from './service.js';
 
@@ -63,7 +63,7 @@ export const maskRoutes = [
       const page = await sky.page(run, { cursor, limit: q.limit, criteria });
       const next = page.next === null ? null : String(page.next);
       if (next !== null) res.setHeader('Starveil-Next-Cursor', next);
-      sendCells(res, {
+      await sendCells(res, {
         what: 'sky listing: cells in HEALPix NESTED order',
         run, convention: q.convention, format: q.format, criteria,
         cells: page.cells,

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import { route } from '../lib/route.js';
 import { idPath, orderQuery, pageQuery, query } from '../lib/query.js';
+import { BATCH_STATES } from '../lib/visibility.js';
 import type { MeasurementService } from '../measurements/service.js';
 import { MEASUREMENT_SORTS, type ReviewService } from './service.js';
 import { assertMayReadBatch, decisionOf, linkCorrectedFile } from './queries.js';
@@ -14,7 +15,6 @@ export interface ReviewDeps {
 const CUR = ['curator'] as const;
 const OBS_CUR = ['observer', 'curator'] as const;
 const OWN_BATCHES = 'observers see their own batches only (another observer’s batch answers 404)';
-const QUEUE_STATES = ['awaiting_review', 'approved', 'returned', 'needs_mapping', 'checking', 'failed'];
 const FLAGS = ['above_efficiency_envelope', 'above_p_ceiling', 'low_p_snr', 'inconsistent_repeats', 'low_parallax_snr', 'no_distance'];
 
 /** `filter.<column>=` or `filter[<column>]=` query parameters → {column: value} (empty values dropped). */
@@ -33,7 +33,7 @@ export const reviewRoutes = [
     method: 'get', path: '/review/queue', tag: 'Review', who: CUR,
     summary: 'Batches awaiting review (or in another state)',
     query: {
-      state: query('batches in this state (default awaiting_review)', { type: 'string', enum: QUEUE_STATES, default: 'awaiting_review' }),
+      state: query('batches in this state (default awaiting_review)', { type: 'string', enum: [...BATCH_STATES], default: 'awaiting_review' }),
       sort: query('age, rows or uploader (default age; any other value also sorts by age)', { type: 'string', examples: ['age', 'rows', 'uploader'], default: 'age' }),
       ...orderQuery('desc'),
     },

@@ -3,19 +3,8 @@ import { badRequest } from '../errors.js';
 import { reply, route } from '../lib/route.js';
 import { coneQuery, conventionQuery, criteriaOf, criteriaQuery, formatQuery, idPath, query, releaseQuery, type CriteriaValues } from '../lib/query.js';
 import { npixForNside } from '../science/healpix.js';
-import { filterCells, sendCells, type CellForOutput } from '../masks/format.js';
 import type { StokesConvention } from '../science/convention.js';
-import type { TomographyService } from './service.js';
-
-/** Conventions stated in every sightline answer, so a script never has to guess. */
-export const SIGHTLINE_CONVENTIONS = {
-  stokes: 'q, u are fractions (Q/I, U/I); deltaQ/deltaU are a layer’s own contribution',
-  angles: 'degrees, IAU convention (from the frame’s north through east), in [0, 180); jumps wrapped to (−90, 90]',
-  frame: 'angles and Stokes refer to the run’s coordinate system: G = Galactic, C = equatorial ICRS',
-  pixels: 'HEALPix nested ordering in the run’s coordinate system',
-  distances: 'parsec; a layer’s distance is the median of its near edge over Monte Carlo draws, with the 16th–84th percentile range',
-  magneticField: 'starlight polarization is parallel to the plane-of-sky magnetic field; thermal dust emission is polarized perpendicular to it (field angle = emission angle + 90°)',
-};
+import { filterCells, sendCells, SIGHTLINE_CONVENTIONS, type CellForOutput, type TomographyService } from './service.js';
 
 export interface TomographyDeps {
   tomography: TomographyService;
@@ -133,7 +122,7 @@ export const tomographyRoutes = [
       } else {
         throw badRequest('give either ra, dec and radius (degrees, ICRS) or nside and ipix (nested)', { fields: [{ field: 'ra', message: 'or nside+ipix' }] });
       }
-      sendCells(res, { what: 'sightlines', run, criteria, convention: q.convention, format: q.format, cells: filterCells(cells as unknown as CellForOutput[], criteria), conventions: SIGHTLINE_CONVENTIONS });
+      await sendCells(res, { what: 'sightlines', run, criteria, convention: q.convention, format: q.format, cells: filterCells(cells as unknown as CellForOutput[], criteria), conventions: SIGHTLINE_CONVENTIONS });
       return undefined;
     },
   }),

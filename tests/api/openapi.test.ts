@@ -535,12 +535,18 @@ describe('live answers match the document (drift)', () => {
     await hit(modeler, 'get', '/tomography/runs/x', '/tomography/runs/:id', 400);
     const cells = await hit(modeler, 'get', '/tomography/runs/1/cells', '/tomography/runs/:id/cells', 200);
     await hit(modeler, 'get', '/tomography/runs/999999/cells', '/tomography/runs/:id/cells', 404);
+    // not a positive integer: a 400, as documented (there is no "latest" shorthand for a run's cells)
+    await hit(modeler, 'get', '/tomography/runs/abc/cells', '/tomography/runs/:id/cells', 400);
+    await hit(modeler, 'get', '/tomography/runs/0/cells', '/tomography/runs/:id/cells', 400);
     const cell = cells.body.cells.find((c: Json) => c.n_layers >= 2);
     const pixel = await hit(modeler, 'get', `/sightlines?nside=32&ipix=${cell.ipix}&include=stars`, '/sightlines', 200);
     expect(pixel.body.cells[0].stars.length).toBeGreaterThan(0);
     await hit(modeler, 'get', `/sightlines?ra=${cell.ra_deg}&dec=${cell.dec_deg}&radius=4&convention=cosmo&minLayers=2`, '/sightlines', 200);
     await hit(modeler, 'get', `/sightlines?nside=32&ipix=${cell.ipix}&format=csv`, '/sightlines', 200);
     await hit(modeler, 'get', '/sightlines', '/sightlines', 400);
+    // run=0 is the latest finished run here (GET /sky refuses it: see the sky scenario)
+    await hit(modeler, 'get', `/sightlines?run=0&nside=32&ipix=${cell.ipix}`, '/sightlines', 200);
+    await hit(modeler, 'get', '/sightlines?nside=32&ipix=1&limit=1&minLayers=abc', '/sightlines', 400);
     await hit(modeler, 'get', '/sightlines?nside=32&ipix=1&run=999999', '/sightlines', 404);
 
     await hit(curator, 'post', '/releases', '/releases', 201, { tag: 'DRIFT-1', notes: 'drift check' });
@@ -617,6 +623,7 @@ describe('live answers match the document (drift)', () => {
     await hit(modeler, 'get', `/sky?limit=2&cursor=${page.body.next}&convention=cosmo`, '/sky', 200);
     await hit(modeler, 'get', '/sky?limit=2&minLayers=3&format=csv', '/sky', 200);
     await hit(modeler, 'get', '/sky?cursor=next', '/sky', 400);
+    await hit(modeler, 'get', '/sky?run=0', '/sky', 400);
     await hit(modeler, 'get', '/sky?release=NO-SUCH', '/sky', 404);
 
     await hit(modeler, 'get', '/masks?format=json', '/masks', 200);
