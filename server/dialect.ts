@@ -174,6 +174,32 @@ export async function selectWhereIn<T = Record<string, unknown>>(db: Knex | Knex
   return out;
 }
 
+/**
+ * Call `each` with every row of a SELECT as a value array, without holding all rows in memory
+ * (SQLite: a statement iterator; other engines: one query).
+ */
+export async function iterateRows(db: Knex | Knex.Transaction, sql: string, params: unknown[], each: (row: unknown[]) => void): Promise<void> {
+  if (isSqlite(db as Knex)) {
+    const { stmt } = await cachedStatement(db, sql);
+    for (const r of stmt.raw(true).iterate(...params) as IterableIterator<unknown[]>) each(r);
+    return;
+  }
+  const res = (await db.raw(sql, params as Knex.RawBinding[])) as { rows: Record<string, unknown>[] };
+  for (const r of res.rows) each(Object.values(r));
+}
+
+/**
+ * SQLite: turn the checking of foreign keys on this (background) connection off or on. A batch
+ * check writes its new stars last (sorted on the sky, so their index pages are written once)
+ * after the rows that point at them; all of it stays invisible until the batch flips. Other
+ * engines keep their checks (and the caller writes stars first).
+ */
+export async function setForeignKeyChecks(db: Knex, on: boolean): Promise<boolean> {
+  if (!isSqlite(db)) return false;
+  await db.raw(`PRAGMA foreign_keys = ${on ? 'ON' : 'OFF'}`);
+  return true;
+}
+
 export interface WriteStep {
   table: string;
   cols: readonly string[];

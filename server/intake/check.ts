@@ -1,12 +1,12 @@
 import fs from 'node:fs';
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
-import { deleteInShortTransactions, reserveIds, writeStats, selectWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
+import { deleteInShortTransactions, maxId, reserveIds, setForeignKeyChecks, writeStats, selectRowsWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
 import { AppError } from '../errors.js';
 import { deriveMeasurement } from '../measurements/derive.js';
 import type { ColumnMapping } from '../measurements/mapping.js';
 import { MEAS_COLS, measurementValues, ROW_COLS, STAR_COLS } from '../measurements/stored.js';
-import { CrossMatcher, type MatchQuery, type MatchResult, type StarRef } from './crossmatch.js';
+import { CrossMatcher, PRELOAD_STARS_PER_ROW, type MatchQuery, type MatchResult, type StarRef } from './crossmatch.js';
 import { NUM, NUM_SLOTS, warningsJsonOf, writeDerived, type PrepareContext } from './prepare.js';
 import { preparedChunks } from './prepare-stream.js';
 import { VISIBLE_BATCH_STATES } from './visibility.js';
@@ -160,6 +160,13 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   const starVisible = (bid: number | null) => bid === null || approvedOrOwn.has(bid);
   const now = new Date().toISOString();
   const matcher = new CrossMatcher(db, opts.crossmatchArcsec, starVisible);
+  // a batch large beside the catalog reads every star once, in storage order, instead of
+  // looking positions up chunk by chunk
+  if ((await maxId(db, 'stars')) <= rowsTotal * PRELOAD_STARS_PER_ROW) await matcher.preloadAll();
+  // SQLite: new stars are written last, sorted on the sky (their hpx15 and position index pages
+  // are then written once each, not once per short transaction); elsewhere chunk by chunk
+  const deferStars = await setForeignKeyChecks(db, false);
+  const deferred: unknown[][] = [];
   const starIds = new IdBlock(db, 'stars');
   const rowIds = new IdBlock(db, 'batch_rows');
   const measIds = new IdBlock(db, 'measurements');
@@ -169,13 +176,14 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   let lastReport = 0;
 
   const ctx: PrepareContext = { headers, mapping, batchInstrument: b.instrument, instruments: [...instruments], crossmatchArcsec: opts.crossmatchArcsec };
-  const T: Record<string, number> = { wait: 0, ids: 0, prefetch: 0, match: 0, known: 0, rows: 0, write: 0 };
+  const T: Record<string, number> = { wait: 0, ids: 0, prefetch: 0, match: 0, known: 0, rows: 0, write: 0, stars: 0 };
   let tt = performance.now();
   const lap = (k: string) => {
     const t = performance.now();
     T[k] += t - tt;
     tt = t;
   };
+  try {
   for await (const c of preparedChunks(b.stored_path, proposal.delimiter, ctx, (x) => (bytesDone = x), Number(b.size_bytes) >= PARSE_WORKER_MIN_BYTES)) {
     const n = c.n;
     const num = c.num;
@@ -192,10 +200,8 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
       const o = i * NUM_SLOTS;
       const q: MatchQuery = { raDeg: num[o + NUM.pos_ra], decDeg: num[o + NUM.pos_dec] };
       if (c.sourceId[i] !== null) q.sourceId = c.sourceId[i]!;
-      else q.pixels = c.pix.subarray(c.pixStart[i], c.pixStart[i + 1]);
       queries[i] = q;
     }
-    matcher.resetChunk();
     await matcher.prefetch(queries.filter((q): q is MatchQuery => q !== null));
     lap('prefetch');
     const toLoad = new Set<number>();
@@ -209,12 +215,13 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     // measurements the uploader may see of the matched stars, for de-duplication
     type Known = { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number; line?: number };
     const known = new Map<string, Known[]>();
-    for (const r of await selectWhereIn<Known & { star_id: number; band: string; instrument: string; state: string; batch_id: number }>(db, 'measurements', 'star_id', [...toLoad], ['id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'state', 'batch_id'])) {
-      if (r.state !== 'approved' && !own.has(r.batch_id)) continue;
-      const k = `${r.star_id}|${r.band}|${r.instrument}`;
+    for (const r of await selectRowsWhereIn(db, 'measurements', 'star_id', [...toLoad], ['id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'state', 'batch_id'])) {
+      if (r[9] !== 'approved' && !own.has(r[10] as number)) continue;
+      const k = `${r[1]}|${r[2]}|${r[3]}`;
+      const e: Known = { id: r[0] as number, mjd: r[4] as number | null, q: r[5] as number, u: r[6] as number, q_err: r[7] as number, u_err: r[8] as number };
       const list = known.get(k);
-      if (list) list.push(r);
-      else known.set(k, [r]);
+      if (list) list.push(e);
+      else known.set(k, [e]);
     }
 
     lap('known');
@@ -253,7 +260,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
           hpx15: num[o + NUM.star_hpx15], batch_id: batchId,
         };
         starMatch = 'new';
-        newStars.push([star.id, star.name, star.source_id, star.ra_deg, star.dec_deg, num[o + NUM.star_glon], num[o + NUM.star_glat], star.parallax_mas, star.parallax_err_mas, star.hpx15, now, me, batchId]);
+        (deferStars ? deferred : newStars).push([star.id, star.name, star.source_id, star.ra_deg, star.dec_deg, num[o + NUM.star_glon], num[o + NUM.star_glat], star.parallax_mas, star.parallax_err_mas, star.hpx15, now, me, batchId]);
         matcher.remember(star);
         newInChunk = true;
         counts.newStars++;
@@ -311,7 +318,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     await writeInShortTransactions(
       db,
       [
-        { table: 'stars', cols: STAR_COLS, rows: newStars },
+        { table: 'stars', cols: STAR_COLS, rows: deferStars ? [] : newStars },
         { table: 'batch_rows', cols: ROW_COLS, rows: rowsOut },
         { table: 'measurements', cols: MEAS_COLS, rows: measOut },
       ],
@@ -323,6 +330,15 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
       lastReport = Date.now();
       report({ batchId, rowsDone: counts.rows, bytesDone, rowsTotal: Math.max(rowsTotal, counts.rows) });
     }
+  }
+  if (deferred.length) {
+    deferred.sort((a, b) => (a[9] as number) - (b[9] as number));
+    await writeInShortTransactions(db, [{ table: 'stars', cols: STAR_COLS, rows: deferred }], WRITE_BUDGET_MS);
+    deferred.length = 0;
+  }
+  lap('stars');
+  } finally {
+    if (deferStars) await setForeignKeyChecks(db, true);
   }
   if (process.env.STARVEIL_INTAKE_TIMING) fs.appendFileSync(process.env.STARVEIL_INTAKE_TIMING, `batch ${batchId} ${counts.rows} rows: ${Object.entries(T).map(([k, v]) => `${k} ${(v / 1000).toFixed(1)}s`).join(', ')}; ${JSON.stringify(writeStats)}\n`);
   counts.matchedStars = matched.size;

@@ -1,30 +1,17 @@
 import type { Knex } from 'knex';
 import { queryDiscNest } from '../science/healpix.js';
-import { angularSeparationDeg } from '../science/separation.js';
 import { INDEX_NSIDE } from '../measurements/derive.js';
-import { selectRowsInRanges, selectRowsWhereIn } from '../dialect.js';
+import { iterateRows, selectRowsInRanges, selectRowsWhereIn } from '../dialect.js';
+import { StarGrid, type GridStar } from './star-grid.js';
 
 const STAR_COLS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15', 'batch_id'];
 
-export interface StarRef {
-  id: number;
-  name: string | null;
-  source_id: string | null;
-  ra_deg: number;
-  dec_deg: number;
-  parallax_mas: number | null;
-  parallax_err_mas: number | null;
-  hpx15: number;
-  /** the batch that created the star (null: catalog seed or curator) */
-  batch_id?: number | null;
-}
+export type StarRef = GridStar;
 
 export interface MatchQuery {
   sourceId?: string;
   raDeg: number;
   decDeg: number;
-  /** queryDiscNest of the position at the tolerance, when already computed */
-  pixels?: ArrayLike<number> & Iterable<number>;
 }
 
 export type MatchResult = (
@@ -38,83 +25,75 @@ export type MatchResult = (
   hidden?: StarRef[];
 };
 
+/** Read every star up front when the catalog holds at most this many per row of the batch. */
+export const PRELOAD_STARS_PER_ROW = 25;
+
+const starOf = (r: unknown[]): GridStar => ({
+  id: r[0] as number, name: r[1] as string | null, source_id: r[2] as string | null, ra_deg: r[3] as number, dec_deg: r[4] as number,
+  parallax_mas: r[5] as number | null, parallax_err_mas: r[6] as number | null, hpx15: Number(r[7]), batch_id: r[8] === null || r[8] === undefined ? null : Number(r[8]),
+});
 
 /**
  * Ties rows to known stars: by source_id first, else by position within the tolerance. Two or
  * more stars within the tolerance are reported as ambiguous for the curator — never guessed.
- * Stars created earlier in the same batch are found too (`remember`). Only stars the uploader
- * may see take part (`visible(batch_id)`: the catalog, approved batches, the uploader's own);
- * others are reported as `hidden`, for a note that only curators read.
+ * Stars created earlier in the same batch are found too (`remember`: they stay in memory for the
+ * whole batch). Only stars the uploader may see take part (`visible(batch_id)`: the catalog,
+ * approved batches, the uploader's own); others are reported as `hidden`, for a note that only
+ * curators read.
+ *
+ * Catalog stars come into memory in one of two ways: all at once (`preloadAll`, one sequential
+ * read: for a batch that is large beside the catalog), or per chunk of rows (`prefetch`: by
+ * source_id, then by the HEALPix order-15 pixels of each position's disc, one index range per run
+ * of consecutive pixels).
  */
 export class CrossMatcher {
-  private bySource = new Map<string, StarRef>();
-  private byPixel = new Map<number, StarRef[]>();
-  private hiddenBySource = new Map<string, StarRef>();
-  private hiddenByPixel = new Map<number, StarRef[]>();
-  private loadedPixels = new Set<number>();
-  private loadedSources = new Set<string>();
+  private readonly grid: StarGrid;
+  private complete = false;
+  private readonly loadedPixels = new Set<number>();
+  private readonly loadedSources = new Set<string>();
+  /** stars read by prefetch (which may meet a star twice) */
+  private readonly loadedIds = new Set<number>();
 
   constructor(
     private readonly db: Knex | Knex.Transaction,
     private readonly toleranceArcsec: number,
     private readonly visible: (batchId: number | null) => boolean = () => true,
-  ) {}
-
-  private pixelCache = new WeakMap<MatchQuery, number[]>();
-  private pixelsFor(q: MatchQuery): Iterable<number> {
-    if (q.pixels) return q.pixels;
-    let px = this.pixelCache.get(q);
-    if (!px) this.pixelCache.set(q, (px = queryDiscNest(INDEX_NSIDE, q.raDeg, q.decDeg, this.toleranceArcsec / 3600, true)));
-    return px;
+  ) {
+    this.grid = new StarGrid(toleranceArcsec);
   }
 
-  /** Forget what was loaded for the previous chunk (it is in the database now). */
-  resetChunk(): void {
-    this.bySource.clear();
-    this.byPixel.clear();
-    this.hiddenBySource.clear();
-    this.hiddenByPixel.clear();
-    this.loadedPixels.clear();
-    this.loadedSources.clear();
-    this.pixelCache = new WeakMap();
+  /** Read every star of the catalog (each star once, in storage order). */
+  async preloadAll(): Promise<number> {
+    let n = 0;
+    await iterateRows(this.db, `SELECT ${STAR_COLS.map((c) => `"${c}"`).join(',')} FROM stars`, [], (r) => {
+      this.grid.add(starOf(r));
+      n++;
+    });
+    this.complete = true;
+    return n;
   }
 
   remember(star: StarRef): void {
-    if (star.source_id) this.bySource.set(star.source_id, star);
-    const list = this.byPixel.get(star.hpx15);
-    if (list) list.push(star);
-    else this.byPixel.set(star.hpx15, [star]);
+    this.grid.add(star);
   }
 
-  /** Load every catalog star a chunk of queries could match, in a few queries. */
+  /** Load every catalog star a chunk of queries could match (nothing once preloaded). */
   async prefetch(queries: MatchQuery[]): Promise<void> {
-    const seen = new Set<number>();
+    if (this.complete) return;
     const add = (rows: unknown[][]) => {
       for (const r of rows) {
-        const id = r[0] as number;
-        if (seen.has(id)) continue;
-        seen.add(id);
-        const sourceId = r[2] as string | null;
-        if (sourceId && this.bySource.has(sourceId)) continue;
-        const batchId = r[8] === null || r[8] === undefined ? null : Number(r[8]);
-        const star: StarRef = { id, name: r[1] as string | null, source_id: sourceId, ra_deg: r[3] as number, dec_deg: r[4] as number, parallax_mas: r[5] as number | null, parallax_err_mas: r[6] as number | null, hpx15: Number(r[7]), batch_id: batchId };
-        if (this.visible(batchId)) this.remember(star);
-        else {
-          if (sourceId) this.hiddenBySource.set(sourceId, star);
-          const list = this.hiddenByPixel.get(star.hpx15);
-          if (list) list.push(star);
-          else this.hiddenByPixel.set(star.hpx15, [star]);
-        }
+        if (this.loadedIds.has(r[0] as number)) continue;
+        this.loadedIds.add(r[0] as number);
+        this.grid.add(starOf(r));
       }
     };
-    // by source_id first; only rows whose id is unknown need the positional look-up
     const sources = [...new Set(queries.map((q) => q.sourceId).filter((s): s is string => !!s && !this.loadedSources.has(s)))];
     add(await selectRowsWhereIn(this.db, 'stars', 'source_id', sources, STAR_COLS));
     for (const s of sources) this.loadedSources.add(s);
     const pixels = new Set<number>();
     for (const q of queries) {
-      if (q.sourceId && this.bySource.has(q.sourceId)) continue;
-      for (const p of this.pixelsFor(q)) if (!this.loadedPixels.has(p)) pixels.add(p);
+      if (q.sourceId && this.grid.slotOfSource(q.sourceId) !== undefined) continue;
+      for (const p of queryDiscNest(INDEX_NSIDE, q.raDeg, q.decDeg, this.toleranceArcsec / 3600, true)) if (!this.loadedPixels.has(p)) pixels.add(p);
     }
     // neighbouring nested pixels are often consecutive: one range per run
     const sorted = Float64Array.from(pixels).sort();
@@ -129,40 +108,31 @@ export class CrossMatcher {
 
   /** Match one row (after prefetch of its chunk). */
   match(q: MatchQuery): MatchResult {
+    const g = this.grid;
+    let held: StarRef | undefined;
     if (q.sourceId) {
-      const s = this.bySource.get(q.sourceId);
-      if (s) return { kind: 'source_id', star: s };
-    }
-    const r = this.matchVisible(q);
-    if (!this.hiddenByPixel.size && !this.hiddenBySource.size) return r;
-    const hidden: StarRef[] = [];
-    const held = q.sourceId ? this.hiddenBySource.get(q.sourceId) : undefined;
-    if (held) hidden.push(held);
-    for (const p of this.pixelsFor(q)) {
-      for (const star of this.hiddenByPixel.get(p) ?? []) {
-        if (star === held) continue;
-        if (angularSeparationDeg(q.raDeg, q.decDeg, star.ra_deg, star.dec_deg) * 3600 <= this.toleranceArcsec) hidden.push(star);
+      const k = g.slotOfSource(q.sourceId);
+      if (k !== undefined) {
+        if (this.visible(g.batchOf(k))) return { kind: 'source_id', star: g.star(k) };
+        held = g.star(k);
       }
     }
-    if (held && r.kind === 'none') return { kind: 'held', star: held, hidden };
-    return hidden.length ? { ...r, hidden } : r;
-  }
-
-  private matchVisible(q: MatchQuery): MatchResult {
     const near: { star: StarRef; separationArcsec: number }[] = [];
-    const seen = new Set<number>();
-    for (const p of this.pixelsFor(q)) {
-      for (const star of this.byPixel.get(p) ?? []) {
-        if (seen.has(star.id)) continue;
-        seen.add(star.id);
-        // a star that has a different source_id is a different star, however close
-        if (q.sourceId && star.source_id && star.source_id !== q.sourceId) continue;
-        const sep = angularSeparationDeg(q.raDeg, q.decDeg, star.ra_deg, star.dec_deg) * 3600;
-        if (sep <= this.toleranceArcsec) near.push({ star, separationArcsec: sep });
+    const hidden: StarRef[] = held ? [held] : [];
+    for (const { k, sepArcsec } of g.near(q.raDeg, q.decDeg)) {
+      if (!this.visible(g.batchOf(k))) {
+        if (!held || g.star(k).id !== held.id) hidden.push(g.star(k));
+        continue;
       }
+      // a star that has a different source_id is a different star, however close
+      const s = g.sourceOf(k);
+      if (q.sourceId && s && s !== q.sourceId) continue;
+      near.push({ star: g.star(k), separationArcsec: sepArcsec });
     }
-    if (near.length === 1) return { kind: 'position', star: near[0].star };
-    if (near.length > 1) return { kind: 'ambiguous', candidates: near.sort((a, b) => a.separationArcsec - b.separationArcsec) };
-    return { kind: 'none' };
+    const extra = hidden.length ? { hidden } : {};
+    if (held && !near.length) return { kind: 'held', star: held, ...extra };
+    if (near.length === 1) return { kind: 'position', star: near[0].star, ...extra };
+    if (near.length > 1) return { kind: 'ambiguous', candidates: near, ...extra };
+    return { kind: 'none', ...extra };
   }
 }

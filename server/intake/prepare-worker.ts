@@ -34,7 +34,7 @@ const send = (m: ToMain, transfer?: ArrayBuffer[]) => port.postMessage(m, transf
     while (credits <= 0) await new Promise<void>((r) => (wake = r));
     credits--;
     const chunk = prepare(records);
-    send({ kind: 'chunk', chunk, bytes }, [chunk.num.buffer as ArrayBuffer, chunk.pix.buffer as ArrayBuffer, chunk.lines.buffer as ArrayBuffer, chunk.pixStart.buffer as ArrayBuffer, chunk.ok.buffer as ArrayBuffer]);
+    send({ kind: 'chunk', chunk, bytes }, [chunk.num.buffer as ArrayBuffer, chunk.lines.buffer as ArrayBuffer, chunk.ok.buffer as ArrayBuffer]);
   }
   send({ kind: 'end', bytes });
 })().catch((e: unknown) => {

@@ -2,14 +2,13 @@ import { deriveMeasurement, INDEX_NSIDE, type Derived } from '../measurements/de
 import { normaliseRow, type CanonicalRow, type RowIssue } from '../measurements/normalise.js';
 import type { ColumnMapping } from '../measurements/mapping.js';
 import { designation } from '../measurements/designation.js';
-import { ang2pixNest, queryDiscNest } from '../science/healpix.js';
+import { ang2pixNest } from '../science/healpix.js';
 import { icrsToGalactic } from '../science/frames.js';
 import type { CsvRecord } from './csv.js';
 
 /**
  * The database-free half of checking a batch: field count, normalise, instrument and band,
- * derive (without the catalog parallax), the star a new row would create and the HEALPix pixels
- * its position match needs. Runs on a worker thread for large files; the output is flat arrays
+ * derive (without the catalog parallax), and the star a new row would create. Runs on a worker thread for large files; the output is flat arrays
  * (cheap to structured-clone). Rows that could use a matched star's parallax carry their canonical
  * row so the main thread can derive them again once the star is known.
  */
@@ -48,9 +47,6 @@ export interface PreparedChunk {
   sourceId: (string | null)[];
   /** name of the star a new row creates */
   starName: (string | null)[];
-  /** pixels of row i without a source_id: pix[pixStart[i] .. pixStart[i+1]) */
-  pixStart: Int32Array;
-  pix: Float64Array;
   /** rows with no parallax and no distance: the canonical row and its normalise warnings */
   redo: ({ row: CanonicalRow; warnings: RowIssue[] } | null)[];
 }
@@ -105,21 +101,18 @@ export function chunkPreparer(ctx: PrepareContext) {
   const headerOf = (canon: string) => mapping[canon] ?? canon;
   const instruments = new Map(ctx.instruments);
   const known = [...instruments.values()].map((i) => i.code).join(', ');
-  const radiusDeg = ctx.crossmatchArcsec / 3600;
 
   return function prepare(records: CsvRecord[]): PreparedChunk {
     const n = records.length;
     const c: PreparedChunk = {
       n, lines: new Int32Array(n), valuesJson: new Array(n), ok: new Uint8Array(n), errorsJson: new Array(n).fill(null), warningsJson: new Array(n).fill(null),
       num: new Float64Array(n * NUM_SLOTS).fill(NaN), band: new Array(n).fill(null), instrument: new Array(n).fill(null), distanceMethod: new Array(n).fill(null),
-      flagsJson: new Array(n).fill(null), sourceId: new Array(n).fill(null), starName: new Array(n).fill(null), pixStart: new Int32Array(n + 1), pix: new Float64Array(0), redo: new Array(n).fill(null),
+      flagsJson: new Array(n).fill(null), sourceId: new Array(n).fill(null), starName: new Array(n).fill(null), redo: new Array(n).fill(null),
     };
-    const pix: number[] = [];
     for (let i = 0; i < n; i++) {
       const rec = records[i];
       c.lines[i] = rec.line;
       c.valuesJson[i] = JSON.stringify(rec.fields);
-      c.pixStart[i] = pix.length;
       const text: Record<string, string | undefined> = {};
       for (const [canon, idx] of indexOf) text[canon] = idx >= 0 ? rec.fields[idx] : undefined;
       const errors: RowIssue[] = [];
@@ -162,11 +155,7 @@ export function chunkPreparer(ctx: PrepareContext) {
       c.num[o + NUM.star_plx_err] = nn(row.parallax_err_mas ?? null);
       c.sourceId[i] = row.source_id ?? null;
       c.starName[i] = row.name ?? designation(ra, dec);
-      // rows with a source_id usually match by it; the matcher finds their pixels if they do not
-      if (row.source_id === undefined) for (const p of queryDiscNest(INDEX_NSIDE, ra, dec, radiusDeg, true)) pix.push(p);
     }
-    c.pixStart[n] = pix.length;
-    c.pix = Float64Array.from(pix);
     return c;
   };
 }

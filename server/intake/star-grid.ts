@@ -1,0 +1,151 @@
+/**
+ * An in-memory index of star positions for the cross-match of one batch: unit vectors binned
+ * into a 3-D grid of cubes (edge ≈ 7′, at least the tolerance as a chord), so every star within
+ * the tolerance of a point lies in a cube that the point's tolerance box touches — usually one,
+ * at most 2×2×2. No special cases at the poles or at RA 0/360 (common practice for fixed-radius
+ * neighbour search on the sphere). Each candidate is then checked with the exact separation
+ * (Vincenty, science/separation.ts).
+ *
+ * Stars are kept in growable typed arrays (a million stars take ~80 MB), never as one object
+ * each; a StarRef is built only for a star a row matched.
+ */
+import { angularSeparationDeg } from '../science/separation.js';
+
+const D2R = Math.PI / 180;
+
+export interface GridStar {
+  id: number;
+  name: string | null;
+  source_id: string | null;
+  ra_deg: number;
+  dec_deg: number;
+  parallax_mas: number | null;
+  parallax_err_mas: number | null;
+  hpx15: number;
+  batch_id: number | null;
+}
+
+/** Cube edge in unit-vector space unless the tolerance is larger: 2e-3 rad ≈ 6.9′ (about one star per cube at a million stars). */
+const MIN_CELL = 2e-3;
+/** Cube coordinates run over ±1/h ≤ ±500: 10 bits each, one exact integer key. */
+const cellKey = (ix: number, iy: number, iz: number) => ((ix + 512) << 20) | ((iy + 512) << 10) | (iz + 512);
+
+export class StarGrid {
+  private n = 0;
+  private cap = 0;
+  private ids = new Float64Array(0);
+  private ra = new Float64Array(0);
+  private dec = new Float64Array(0);
+  private plx = new Float64Array(0);
+  private plxErr = new Float64Array(0);
+  private hpx = new Float64Array(0);
+  private batch = new Float64Array(0);
+  private next = new Int32Array(0);
+  private names: (string | null)[] = [];
+  private sources: (string | null)[] = [];
+  private readonly head = new Map<number, number>();
+  private readonly bySource = new Map<string, number>();
+  /** cube edge in unit-vector space */
+  private readonly h: number;
+  private readonly chord: number;
+
+  constructor(readonly toleranceArcsec: number) {
+    this.chord = 2 * Math.sin((toleranceArcsec / 3600) * D2R * 0.5);
+    this.h = Math.max(this.chord, MIN_CELL);
+  }
+
+  get size(): number {
+    return this.n;
+  }
+
+  private grow(): void {
+    const cap = Math.max(1024, this.cap * 2);
+    const f = (a: Float64Array) => {
+      const b = new Float64Array(cap);
+      b.set(a);
+      return b;
+    };
+    this.ids = f(this.ids);
+    this.ra = f(this.ra);
+    this.dec = f(this.dec);
+    this.plx = f(this.plx);
+    this.plxErr = f(this.plxErr);
+    this.hpx = f(this.hpx);
+    this.batch = f(this.batch);
+    const nx = new Int32Array(cap);
+    nx.set(this.next);
+    this.next = nx;
+    this.cap = cap;
+  }
+
+  /** Add a star (the caller adds each star once). Returns its slot. */
+  add(s: GridStar): number {
+    if (this.n === this.cap) this.grow();
+    const k = this.n++;
+    this.ids[k] = s.id;
+    this.ra[k] = s.ra_deg;
+    this.dec[k] = s.dec_deg;
+    this.plx[k] = s.parallax_mas ?? NaN;
+    this.plxErr[k] = s.parallax_err_mas ?? NaN;
+    this.hpx[k] = s.hpx15;
+    this.batch[k] = s.batch_id ?? NaN;
+    this.names[k] = s.name;
+    this.sources[k] = s.source_id;
+    if (s.source_id) this.bySource.set(s.source_id, k);
+    const ra = s.ra_deg * D2R;
+    const dec = s.dec_deg * D2R;
+    const c = Math.cos(dec);
+    const key = cellKey(Math.floor((c * Math.cos(ra)) / this.h), Math.floor((c * Math.sin(ra)) / this.h), Math.floor(Math.sin(dec) / this.h));
+    const prev = this.head.get(key);
+    this.next[k] = prev === undefined ? -1 : prev;
+    this.head.set(key, k);
+    return k;
+  }
+
+  star(k: number): GridStar {
+    const b = this.batch[k];
+    const p = this.plx[k];
+    const pe = this.plxErr[k];
+    return { id: this.ids[k], name: this.names[k], source_id: this.sources[k], ra_deg: this.ra[k], dec_deg: this.dec[k], parallax_mas: Number.isNaN(p) ? null : p, parallax_err_mas: Number.isNaN(pe) ? null : pe, hpx15: this.hpx[k], batch_id: Number.isNaN(b) ? null : b };
+  }
+
+  batchOf(k: number): number | null {
+    const b = this.batch[k];
+    return Number.isNaN(b) ? null : b;
+  }
+
+  sourceOf(k: number): string | null {
+    return this.sources[k];
+  }
+
+  slotOfSource(sourceId: string): number | undefined {
+    return this.bySource.get(sourceId);
+  }
+
+  /** Slots of the stars within the tolerance of (ra, dec), with their separations in arcsec, nearest first. */
+  near(raDeg: number, decDeg: number): { k: number; sepArcsec: number }[] {
+    const ra = raDeg * D2R;
+    const dec = decDeg * D2R;
+    const c = Math.cos(dec);
+    const x = c * Math.cos(ra);
+    const y = c * Math.sin(ra);
+    const z = Math.sin(dec);
+    const h = this.h;
+    const r = this.chord;
+    const x0 = Math.floor((x - r) / h), x1 = Math.floor((x + r) / h);
+    const y0 = Math.floor((y - r) / h), y1 = Math.floor((y + r) / h);
+    const z0 = Math.floor((z - r) / h), z1 = Math.floor((z + r) / h);
+    let out: { k: number; sepArcsec: number }[] | null = null;
+    for (let ix = x0; ix <= x1; ix++)
+      for (let iy = y0; iy <= y1; iy++)
+        for (let iz = z0; iz <= z1; iz++) {
+          for (let k = this.head.get(cellKey(ix, iy, iz)) ?? -1; k !== -1; k = this.next[k]) {
+            const sep = angularSeparationDeg(raDeg, decDeg, this.ra[k], this.dec[k]) * 3600;
+            if (sep <= this.toleranceArcsec) (out ??= []).push({ k, sepArcsec: sep });
+          }
+        }
+    if (!out) return [];
+    if (out.length > 1) out.sort((a, b) => a.sepArcsec - b.sepArcsec);
+    return out;
+  }
+}
