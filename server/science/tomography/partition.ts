@@ -123,6 +123,17 @@ export class PeltSolver {
     const useAnchors = single !== undefined && coster.lowerBound !== undefined && n >= ANCHOR_MIN_N;
     const useLazy = useAnchors && coster.upperBound !== undefined;
     if (useAnchors) anchorStamp.fill(-1, 0, n + 1);
+    // C(c..t) ≥ C(c..anchor) + LB(anchor..t): raises lb[c] to that, LB priced once per anchor and t.
+    const anchoredLb = (c: number, t: number): number => {
+      const an = anchor[c];
+      if (anchorStamp[an] !== t) {
+        anchorStamp[an] = t;
+        anchorBound[an] = coster.lowerBound!(an, t);
+      }
+      const a = base[c] + anchorBound[an];
+      if (a > lb[c]) lb[c] = a;
+      return lb[c];
+    };
     F[0] = -penalty;
     Fhi[0] = -penalty;
     known[0] = 1;
@@ -169,32 +180,13 @@ export class PeltSolver {
       if (useLazy && first >= 0) {
         // Lazy step: if every other candidate's lower bound is at least the first's upper
         // bound, the first is the argmin; F(t) is then priced only if ever needed.
-        const an0 = anchor[first];
-        if (an0 < t) {
-          if (anchorStamp[an0] !== t) {
-            anchorStamp[an0] = t;
-            anchorBound[an0] = coster.lowerBound!(an0, t);
-          }
-          const a = base[first] + anchorBound[an0];
-          if (a > lb[first]) lb[first] = a;
-        }
+        if (anchor[first] < t) anchoredLb(first, t);
         const hi = Fhi[first] + coster.upperBound!(first, t) + penalty;
         lazy = true;
         for (let j = 0; j < nCand; j++) {
           const c = cand[j];
           if (c === first || F[c] + lb[c] + penalty >= hi) continue;
-          if (anchor[c] < t) {
-            const an = anchor[c];
-            if (anchorStamp[an] !== t) {
-              anchorStamp[an] = t;
-              anchorBound[an] = coster.lowerBound!(an, t);
-            }
-            const a = base[c] + anchorBound[an];
-            if (a > lb[c]) {
-              lb[c] = a;
-              if (F[c] + a + penalty >= hi) continue;
-            }
-          }
+          if (anchor[c] < t && F[c] + anchoredLb(c, t) + penalty >= hi) continue;
           lazy = false;
           break;
         }
@@ -221,19 +213,7 @@ export class PeltSolver {
           const c = cand[j];
           if (c === first) continue;
           if (F[c] + lb[c] + penalty >= best) continue; // cannot win at t (bound only)
-          if (useAnchors && anchor[c] < t) {
-            // C(c..t) ≥ C(c..anchor) + LB(anchor..t); LB once per anchor and t.
-            const an = anchor[c];
-            if (anchorStamp[an] !== t) {
-              anchorStamp[an] = t;
-              anchorBound[an] = coster.lowerBound!(an, t);
-            }
-            const a = base[c] + anchorBound[an];
-            if (a > lb[c]) {
-              lb[c] = a;
-              if (F[c] + a + penalty >= best) continue;
-            }
-          }
+          if (useAnchors && anchor[c] < t && F[c] + anchoredLb(c, t) + penalty >= best) continue;
           const exact = coster.cost(c, t);
           this.evaluations++;
           lb[c] = exact;

@@ -169,18 +169,28 @@ export class SegmentTable implements SegmentCoster {
     }
   }
 
-  /** Row index of the fit of [start, end) if already stored, else −1. */
-  private peek(start: number, end: number): number {
-    const ka = this.prefA[end] ^ this.prefA[start];
-    const kb = this.prefB[end] ^ this.prefB[start];
+  /** Key and slot of the last find(): where a new fit of that segment is stored. */
+  private findKa = 0;
+  private findKb = 0;
+  private findSlot = 0;
+
+  /**
+   * Row index of the fit of [start, end) if already stored, else −1 (open addressing on the
+   * segment's two XOR keys and length; findSlot is then the free slot for it).
+   */
+  private find(start: number, end: number): number {
+    const ka = (this.findKa = this.prefA[end] ^ this.prefA[start]);
+    const kb = (this.findKb = this.prefB[end] ^ this.prefB[start]);
     const len = end - start;
     let slot = (ka ^ Math.imul(kb, 0x9e3779b1)) & this.mask;
     for (;;) {
       const l = this.tabLen[slot];
-      if (l === 0) return -1;
+      if (l === 0) break;
       if (l === len && this.tabA[slot] === ka && this.tabB[slot] === kb) return this.tabRow[slot];
       slot = (slot + 1) & this.mask;
     }
+    this.findSlot = slot;
+    return -1;
   }
 
   /**
@@ -191,7 +201,7 @@ export class SegmentTable implements SegmentCoster {
    * global minimum.
    */
   upperBound(start: number, end: number): number {
-    const r = this.peek(start, end);
+    const r = this.find(start, end);
     if (r >= 0) return this.rows[r * FIT_SIZE + FIT_COST];
     const len = end - start;
     if (len < PREFIX_GRID_MIN_LENGTH) return this.cost(start, end);
@@ -207,19 +217,13 @@ export class SegmentTable implements SegmentCoster {
 
   /** Row index (into the fit store) of the fit of [start, end), computing it if new. */
   private row(start: number, end: number): number {
-    const ka = this.prefA[end] ^ this.prefA[start];
-    const kb = this.prefB[end] ^ this.prefB[start];
-    const len = end - start;
-    let slot = (ka ^ Math.imul(kb, 0x9e3779b1)) & this.mask;
-    for (;;) {
-      const l = this.tabLen[slot];
-      if (l === 0) break;
-      if (l === len && this.tabA[slot] === ka && this.tabB[slot] === kb) {
-        this.hits++;
-        return this.tabRow[slot];
-      }
-      slot = (slot + 1) & this.mask;
+    const found = this.find(start, end);
+    if (found >= 0) {
+      this.hits++;
+      return found;
     }
+    const len = end - start;
+    const slot = this.findSlot;
     const r = this.nRows++;
     // Building the prefix sums costs about what sampling 2n stars directly does: build them
     // once this ordering's long misses have sampled that many. (Once built, every long miss
@@ -232,8 +236,8 @@ export class SegmentTable implements SegmentCoster {
     }
     this.misses++;
     this.tabLen[slot] = len;
-    this.tabA[slot] = ka;
-    this.tabB[slot] = kb;
+    this.tabA[slot] = this.findKa;
+    this.tabB[slot] = this.findKb;
     this.tabRow[slot] = r;
     if (2 * this.nRows > this.mask) this.grow();
     return r;
@@ -379,30 +383,13 @@ export class SegmentTable implements SegmentCoster {
         let v = La + (Xa > xa2 ? Xa : xa2);
         const vb = Lb + (xb1 > Xb ? xb1 : Xb);
         if (vb < v) v = vb;
-        if (Da < Db) {
-          const tc = (Xb - Xa - Db * tb + Da * ta) / (Da - Db);
-          if (tc > ta && tc < tb) {
-            const x = Xa + Da * (tc - ta);
-            const gc = La + slope * (tc - ta) + (x > 0 ? x : 0);
-            if (gc < v) v = gc;
-          }
-        }
-        if (Da < 0) {
-          const tz = ta - Xa / Da;
-          if (tz > ta && tz < tb) {
-            const x = Xb + Db * (tz - tb);
-            const gz = La + slope * (tz - ta) + (x > 0 ? x : 0);
-            if (gz < v) v = gz;
-          }
-        }
-        if (Db < 0) {
-          const tz = tb - Xb / Db;
-          if (tz > ta && tz < tb) {
-            const x = Xa + Da * (tz - ta);
-            const gz = La + slope * (tz - ta) + (x > 0 ? x : 0);
-            if (gz < v) v = gz;
-          }
-        }
+        // the two tangents cross; one tangent reaches zero (there the other one is the max)
+        const tc = Da < Db ? (Xb - Xa - Db * tb + Da * ta) / (Da - Db) : NaN;
+        if (tc > ta && tc < tb) v = lowerOf(v, La, slope, tc - ta, Xa + Da * (tc - ta));
+        const tza = Da < 0 ? ta - Xa / Da : NaN;
+        if (tza > ta && tza < tb) v = lowerOf(v, La, slope, tza - ta, Xb + Db * (tza - tb));
+        const tzb = Db < 0 ? tb - Xb / Db : NaN;
+        if (tzb > ta && tzb < tb) v = lowerOf(v, La, slope, tzb - ta, Xa + Da * (tzb - ta));
         if (v < best) best = v;
       }
       ta = tb; La = Lb; Xa = Xb; Da = Db; haveDa = haveDb; mqa = mq; mua = mu; ka = k;
@@ -471,4 +458,10 @@ function nextPow2(x: number): number {
   let c = 1;
   while (c < x) c <<= 1;
   return c;
+}
+
+/** min(v, g) with g = La + slope·dt + max(x, 0), the bound's value at a crossing (v kept when g is NaN). */
+function lowerOf(v: number, La: number, slope: number, dt: number, x: number): number {
+  const g = La + slope * dt + (x > 0 ? x : 0);
+  return g < v ? g : v;
 }
