@@ -48,6 +48,9 @@ export type IntakeColumn = IntakeColumnsResponse['columns'][number];
 export type Instrument = S['responses.instrument'];
 export type InstrumentList = S['responses.instruments'];
 export type InstrumentBand = Instrument['bands'][number];
+/** The bodies of POST /instruments and PATCH /instruments/:code. */
+export type InstrumentCreate = S['api.instrument-create'];
+export type InstrumentUpdate = S['api.instrument-update'];
 
 // ---- review ------------------------------------------------------------------------------------
 export type StoredMeasurementRow = S['responses.stored-measurement'];

@@ -1,27 +1,16 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { StandardStarList } from '../../../lib/api/types';
+import type { StandardStarList, StandardStarRequest } from '../../../lib/api/types';
 import type { StandardStar } from '../types';
 
 export const getStandardStars = () => api.get<StandardStarList>('/standard-stars');
 export const standardStarsQueryOptions = () => queryOptions({ queryKey: ['calibration', 'standards'], queryFn: getStandardStars });
 export const useStandardStars = () => useQuery(standardStarsQueryOptions());
 
-export interface NewStandard {
-  name: string;
-  band: string;
-  pPct: number;
-  pErr?: number;
-  thetaDeg?: number | null;
-  thetaErrDeg?: number;
-  raDeg?: number;
-  decDeg?: number;
-  source: string;
-  fromMemory?: boolean;
-  note?: string;
-}
+/** The body of POST /standard-stars (p in percent as pPct, or as a fraction p). */
+export type NewStandard = StandardStarRequest;
 
-export const addStandardStar = (body: NewStandard) => api.post<StandardStar>('/standard-stars', body as unknown as Record<string, unknown>);
+export const addStandardStar = (body: NewStandard) => api.post<StandardStar>('/standard-stars', body);
 
 export function useAddStandardStar() {
   const qc = useQueryClient();

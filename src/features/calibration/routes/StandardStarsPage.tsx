@@ -2,7 +2,7 @@ import { useState, type FormEvent } from 'react';
 import { Button, Card, Field, Notice, PageTitle, Select, TextInput } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
 import { useMe } from '../../../lib/api/me';
-import { useAddStandardStar, useStandardStars } from '../api/standardStars';
+import { useAddStandardStar, useStandardStars, type NewStandard } from '../api/standardStars';
 import { usePlausibility } from '../../../lib/api/plausibility';
 
 const num = (s: string) => (s.trim() === '' ? undefined : Number(s));
@@ -14,7 +14,7 @@ function AddStandardForm() {
   const submit = (e: FormEvent) => {
     e.preventDefault();
     add.mutate(
-      { name: f.name, band: f.band, pPct: Number(f.pPct), thetaDeg: num(f.thetaDeg) ?? null, raDeg: num(f.ra), decDeg: num(f.dec), source: f.source, fromMemory: f.fromMemory },
+      { name: f.name, band: f.band as NewStandard['band'], pPct: Number(f.pPct), thetaDeg: num(f.thetaDeg) ?? null, raDeg: num(f.ra), decDeg: num(f.dec), source: f.source, fromMemory: f.fromMemory },
       { onSuccess: () => setF({ ...f, name: '', pPct: '', thetaDeg: '', ra: '', dec: '' }) },
     );
   };

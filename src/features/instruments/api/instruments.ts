@@ -1,18 +1,13 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Instrument, InstrumentBand } from '../../../lib/api/types';
+import type { Instrument, InstrumentBand, InstrumentCreate, InstrumentUpdate } from '../../../lib/api/types';
 
 export const BANDS = ['U', 'B', 'V', 'R', 'I'] as const;
 export type Band = InstrumentBand;
 
 export type RegisteredInstrument = Instrument;
 
-export interface InstrumentInput {
-  code: string;
-  name: string;
-  bands: Band[];
-  description?: string | null;
-}
+export type InstrumentInput = InstrumentCreate;
 
 // same query key as the upload form's instrument list, so both refresh together
 export const useRegisteredInstruments = () => useQuery({ queryKey: ['instruments'], queryFn: () => api.get<{ instruments: Instrument[] }>('/instruments') });
@@ -25,7 +20,7 @@ export function useCreateInstrument() {
 export function useUpdateInstrument() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: ({ code, ...changes }: { code: string } & Partial<Omit<InstrumentInput, 'code'>>) => api.patch<RegisteredInstrument>(`/instruments/${encodeURIComponent(code)}`, changes),
+    mutationFn: ({ code, ...changes }: { code: string } & InstrumentUpdate) => api.patch<RegisteredInstrument>(`/instruments/${encodeURIComponent(code)}`, changes),
     onSuccess: () => qc.invalidateQueries({ queryKey: ['instruments'] }),
   });
 }
