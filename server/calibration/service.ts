@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import { recordAudit } from '../audit/service.js';
+import { recordAudit, type AuditEntry } from '../audit/service.js';
 import { bulkInsertRows, isSqlite } from '../dialect.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import { deriveMeasurement, type Derived } from '../measurements/derive.js';
@@ -370,6 +370,30 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
     }
   }
 
+  type Rewrite = { update: Record<string, unknown>; audit: AuditEntry };
+
+  /**
+   * Rewrites the measurements of these links in short transactions (inChunks): `step` gets each
+   * link with its row as it is now and returns the row's update and audit entry, or null to leave
+   * it; `check` may refuse a whole chunk first (by throwing).
+   */
+  async function rewriteLinked(links: Link[], step: (l: Link, m: Meas | undefined, trx: Knex.Transaction) => Promise<Rewrite | null> | Rewrite | null, check?: (chunk: Link[], cur: Map<number, Meas>) => void) {
+    await inChunks(links, async (trx, chunk) => {
+      const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
+      check?.(chunk, cur);
+      const updates: Record<string, unknown>[] = [];
+      const audits: AuditEntry[] = [];
+      for (const l of chunk) {
+        const r = await step(l, cur.get(l.measurement_id), trx);
+        if (!r) continue;
+        updates.push(r.update);
+        audits.push(r.audit);
+      }
+      await updateMeasurements(trx, updates);
+      await recordAudit(trx, audits);
+    });
+  }
+
   /**
    * Undo an apply that did not finish: rows still as the apply left them get their values before
    * back; a row edited since is left as edited and named. The calibrations become `failed`.
@@ -378,23 +402,17 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
     const links = await loadLinks(calIds);
     const left: number[] = [];
     const now = new Date().toISOString();
-    await inChunks(links, async (trx, chunk) => {
-      const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
-      const updates: Record<string, unknown>[] = [];
-      const audits: Parameters<typeof recordAudit>[1] = [];
-      for (const l of chunk) {
-        const m = cur.get(l.measurement_id);
-        if (!m) continue;
-        if (m.calibration_id !== l.calibration_id || m.version !== l.after.version) {
-          left.push(l.measurement_id);
-          continue;
-        }
-        const { version: _v, ...values } = l.before;
-        updates.push({ ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
-        audits.push({ actorId, action: 'measurement.calibration_rollback', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: `calibration ${l.calibration_id} did not finish: ${why}` });
+    await rewriteLinked(links, (l, m) => {
+      if (!m) return null;
+      if (m.calibration_id !== l.calibration_id || m.version !== l.after.version) {
+        left.push(l.measurement_id);
+        return null;
       }
-      await updateMeasurements(trx, updates);
-      await recordAudit(trx, audits);
+      const { version: _v, ...values } = l.before;
+      return {
+        update: { ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id },
+        audit: { actorId, action: 'measurement.calibration_rollback', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: `calibration ${l.calibration_id} did not finish: ${why}` },
+      };
     });
     const reason = why + (left.length ? `; ${left.length} row(s) edited after being calibrated were left as edited (e.g. ${left.slice(0, 5).join(', ')})` : '');
     await writeTx(async (trx) => {
@@ -411,25 +429,19 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
     const links = await loadLinks(calIds);
     const left: number[] = [];
     const now = new Date().toISOString();
-    await inChunks(links, async (trx, chunk) => {
-      const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
-      const updates: Record<string, unknown>[] = [];
-      const audits: Parameters<typeof recordAudit>[1] = [];
-      for (const l of chunk) {
-        const m = cur.get(l.measurement_id);
-        if (!m || (m.calibration_id === l.calibration_id && m.version === l.after.version)) continue; // not reached by the revert
-        if (m.calibration_id !== null || m.version !== l.after.version + 1) {
-          left.push(l.measurement_id);
-          continue;
-        }
-        const { version: _v, ...values } = l.after;
-        const after = { ...l.after, version: m.version + 1 };
-        updates.push({ ...values, calibration_id: l.calibration_id, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
-        await trx('calibration_rows').where({ id: l.id }).update({ after_json: JSON.stringify(after) });
-        audits.push({ actorId, action: 'measurement.calibration_revert_undone', entityType: 'measurement', entityId: m.id, before: snapshot(m), after: { ...after, calibrationId: l.calibration_id }, reason: `revert of calibration ${l.calibration_id} did not finish: ${why}` });
+    await rewriteLinked(links, async (l, m, trx) => {
+      if (!m || (m.calibration_id === l.calibration_id && m.version === l.after.version)) return null; // not reached by the revert
+      if (m.calibration_id !== null || m.version !== l.after.version + 1) {
+        left.push(l.measurement_id);
+        return null;
       }
-      await updateMeasurements(trx, updates);
-      await recordAudit(trx, audits);
+      const { version: _v, ...values } = l.after;
+      const after = { ...l.after, version: m.version + 1 };
+      await trx('calibration_rows').where({ id: l.id }).update({ after_json: JSON.stringify(after) });
+      return {
+        update: { ...values, calibration_id: l.calibration_id, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id },
+        audit: { actorId, action: 'measurement.calibration_revert_undone', entityType: 'measurement', entityId: m.id, before: snapshot(m), after: { ...after, calibrationId: l.calibration_id }, reason: `revert of calibration ${l.calibration_id} did not finish: ${why}` },
+      };
     });
     const reason = why + (left.length ? `; ${left.length} row(s) edited after being restored were left as edited (e.g. ${left.slice(0, 5).join(', ')})` : '');
     await writeTx(async (trx) => {
@@ -622,21 +634,20 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
         }
         const now = new Date().toISOString();
         try {
-          await inChunks(links, async (trx, chunk) => {
-            const cur = new Map<number, Meas>(((await trx('measurements').whereIn('id', chunk.map((l) => l.measurement_id))) as Meas[]).map((m) => [m.id, m]));
-            const late = chunk.filter((l) => cur.get(l.measurement_id)?.version !== l.after.version);
-            if (late.length) throw editedSince(late.map((l) => l.measurement_id));
-            const updates: Record<string, unknown>[] = [];
-            const audits: Parameters<typeof recordAudit>[1] = [];
-            for (const l of chunk) {
-              const m = cur.get(l.measurement_id)!;
+          await rewriteLinked(
+            links,
+            (l, m) => {
               const { version: _v, ...values } = l.before;
-              updates.push({ ...values, calibration_id: null, version: m.version + 1, updated_at: now, updated_by: actorId, id: m.id });
-              audits.push({ actorId, action: 'measurement.calibration_revert', entityType: 'measurement', entityId: m.id, before: { ...snapshot(m), calibrationId: l.calibration_id }, after: { ...values, version: m.version + 1 }, reason: reason ?? `revert of calibration ${l.calibration_id}` });
-            }
-            await updateMeasurements(trx, updates);
-            await recordAudit(trx, audits);
-          });
+              return {
+                update: { ...values, calibration_id: null, version: m!.version + 1, updated_at: now, updated_by: actorId, id: m!.id },
+                audit: { actorId, action: 'measurement.calibration_revert', entityType: 'measurement', entityId: m!.id, before: { ...snapshot(m!), calibrationId: l.calibration_id }, after: { ...values, version: m!.version + 1 }, reason: reason ?? `revert of calibration ${l.calibration_id}` },
+              };
+            },
+            (chunk, cur) => {
+              const late = chunk.filter((l) => cur.get(l.measurement_id)?.version !== l.after.version);
+              if (late.length) throw editedSince(late.map((l) => l.measurement_id));
+            },
+          );
         } catch (err) {
           // a row was edited while the others were being restored: back to applied, as a whole
           await rollBackRevert(calIds, actorId, `the revert stopped part-way (${err instanceof Error ? err.message : String(err)})`);

@@ -173,26 +173,12 @@ function rotateStokes(s: Stokes, psiDeg: number): Stokes {
 }
 
 /** Equatorial (IAU) Stokes → Galactic (IAU) Stokes at ICRS position (α, δ): rotation by ψ. */
-export function rotateStokesToGalactic(
-  q: number,
-  u: number,
-  qErr: number,
-  uErr: number,
-  raDeg: number,
-  decDeg: number,
-): Stokes {
+export function rotateStokesToGalactic(q: number, u: number, qErr: number, uErr: number, raDeg: number, decDeg: number): Stokes {
   return rotateStokes({ q, u, qErr, uErr }, galacticPolePositionAngleDeg(raDeg, decDeg));
 }
 
 /** Galactic (IAU) Stokes → equatorial (IAU) Stokes at ICRS position (α, δ): rotation by −ψ. */
-export function rotateStokesToEquatorial(
-  q: number,
-  u: number,
-  qErr: number,
-  uErr: number,
-  raDeg: number,
-  decDeg: number,
-): Stokes {
+export function rotateStokesToEquatorial(q: number, u: number, qErr: number, uErr: number, raDeg: number, decDeg: number): Stokes {
   return rotateStokes({ q, u, qErr, uErr }, -galacticPolePositionAngleDeg(raDeg, decDeg));
 }
 
