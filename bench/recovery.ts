@@ -23,14 +23,9 @@ import { fitSightline } from '../server/science/tomography/fit';
 import { angleDifferenceDeg } from '../server/science/axial';
 import { percentileSorted } from '../server/science/tomography/fit';
 import type { SightlineResult } from '../server/science/tomography/types';
+import { numberFlag } from './flags';
 
-function flag(name: string, fallback: number): number {
-  const i = process.argv.indexOf(`--${name}`);
-  if (i < 0) return fallback;
-  const v = Number(process.argv[i + 1]);
-  if (!Number.isFinite(v) || v < 0) throw new Error(`--${name} ${process.argv[i + 1]}: expected a number ≥ 0`);
-  return v;
-}
+const flag = numberFlag;
 
 const FIELDS = flag('fields', 150);
 const DRAWS = flag('draws', 100);

@@ -13,14 +13,9 @@ import { mulberry32, hashSeed } from '../server/science/random';
 import { synthesizeField, type SyntheticCloudSpec } from '../server/science/tomography/synthesize';
 import { fitSightline } from '../server/science/tomography/fit';
 import { runCellsInWorkers, type TomographyCell } from '../server/tomography/pool';
+import { numberFlag } from './flags';
 
-function flag(name: string, fallback: number): number {
-  const i = process.argv.indexOf(`--${name}`);
-  if (i < 0) return fallback;
-  const v = Number(process.argv[i + 1]);
-  if (!Number.isFinite(v) || v < 0) throw new Error(`--${name} ${process.argv[i + 1]}: expected a number ≥ 0`);
-  return v;
-}
+const flag = numberFlag;
 
 const nStars = flag('stars', 1_000_000);
 const nside = flag('nside', 64);
