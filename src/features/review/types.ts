@@ -15,9 +15,12 @@ export type {
   SortOrder,
 } from '../../lib/api/types';
 
-export const MEASUREMENT_STATES = ['pending', 'conflict', 'ambiguous', 'approved', 'rejected', 'withdrawn'] as const satisfies readonly MeasurementState[];
+/** Every state in display order: a Record over the generated union, so a state the server adds fails the typecheck until listed. */
+const STATE_ORDER: Record<MeasurementState, true> = { pending: true, conflict: true, ambiguous: true, approved: true, rejected: true, withdrawn: true };
+export const MEASUREMENT_STATES = Object.keys(STATE_ORDER) as readonly MeasurementState[];
 
-export const DISTANCE_METHODS = ['inverse_parallax', 'edsd_mode', 'given'] as const satisfies readonly DistanceMethod[];
+const DISTANCE_METHOD_ORDER: Record<DistanceMethod, true> = { inverse_parallax: true, edsd_mode: true, given: true };
+export const DISTANCE_METHODS = Object.keys(DISTANCE_METHOD_ORDER) as readonly DistanceMethod[];
 
 /** The states a batch can be looked up by in the queue. */
 export type QueueState = Extract<BatchState, 'awaiting_review' | 'approved' | 'returned'>;
