@@ -3,13 +3,11 @@ import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { deleteInShortTransactions, maxId, reserveIds, setForeignKeyChecks, writeStats, selectRowsWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
 import { AppError } from '../errors.js';
-import { deriveMeasurement } from '../measurements/derive.js';
-import type { ColumnMapping } from '../measurements/mapping.js';
-import { MEAS_COLS, measurementValues, ROW_COLS, STAR_COLS } from '../measurements/stored.js';
+import { deriveMeasurement, MEAS_COLS, ROW_COLS, STAR_COLS, type ColumnMapping } from '../measurements/service.js';
 import { CrossMatcher, PRELOAD_STARS_PER_ROW, type MatchQuery, type MatchResult, type StarRef } from './crossmatch.js';
-import { NUM, NUM_SLOTS, warningsJsonOf, writeDerived, type PrepareContext } from './prepare.js';
+import { measurementValues, NUM, NUM_SLOTS, warningsJsonOf, writeDerived, type PrepareContext } from './prepare.js';
 import { preparedChunks } from './prepare-stream.js';
-import { VISIBLE_BATCH_STATES } from './visibility.js';
+import { VISIBLE_BATCH_STATES } from '../lib/visibility.js';
 
 export type RowState = 'accepted' | 'rejected' | 'duplicate' | 'conflict' | 'ambiguous';
 

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex';
 import { queryDiscNest } from '../science/healpix.js';
-import { INDEX_NSIDE } from '../measurements/derive.js';
+import { INDEX_NSIDE } from '../measurements/service.js';
 import { iterateRows, selectRowsInRanges, selectRowsWhereIn } from '../dialect.js';
 import { StarGrid, type GridStar } from './star-grid.js';
 

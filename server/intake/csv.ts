@@ -1,7 +1,6 @@
 import fs from 'node:fs';
 import { isUtf8 } from 'node:buffer';
 import { parse, type CsvError } from 'csv-parse';
-import { stringify } from 'csv-stringify/sync';
 import { AppError, badRequest } from '../errors.js';
 
 export interface CsvHead {
@@ -310,53 +309,5 @@ async function* readCsvRecords(filePath: string, delimiter: string, opts: { incl
 }
 
 // ---------------------------------------------------------------------------------------------
-// Writing CSV that people open in spreadsheets
-
-/** True when the text is a plain decimal number (written as is: a spreadsheet reads it as a number). */
-function plainNumber(s: string): boolean {
-  if (s.length === 0 || s.length > 64) return false;
-  let i = 0;
-  const n = s.length;
-  const digit = (k: number) => s.charCodeAt(k) >= 48 && s.charCodeAt(k) <= 57;
-  if (s[i] === '+' || s[i] === '-') i++;
-  let d = 0;
-  while (i < n && digit(i)) (i++, d++);
-  if (i < n && s[i] === '.') {
-    i++;
-    while (i < n && digit(i)) (i++, d++);
-  }
-  if (d === 0) return false;
-  if (i < n && (s[i] === 'e' || s[i] === 'E')) {
-    i++;
-    if (i < n && (s[i] === '+' || s[i] === '-')) i++;
-    let e = 0;
-    while (i < n && digit(i)) (i++, e++);
-    if (e === 0) return false;
-  }
-  return i === n;
-}
-
-/**
- * A text cell made safe to open in a spreadsheet (OWASP, "CSV Injection"): a cell starting with
- * =, +, -, @, tab or carriage return would be read as a formula, so it gets a leading single
- * quote. Plain numbers (−0.5, +1e3) are left alone so they stay numbers.
- */
-export function neutraliseCell(s: string): string {
-  if (s.length === 0) return s;
-  const c = s[0];
-  if ((c === '=' || c === '+' || c === '-' || c === '@' || c === '\t' || c === '\r') && !(c !== '=' && c !== '@' && plainNumber(s))) return `'${s}`;
-  return s;
-}
-
-/** csv-stringify options shared by every CSV a person may open: formula cells neutralised, numbers as numbers. */
-export const SAFE_CSV_CAST = {
-  string: (v: string) => neutraliseCell(v),
-  number: (v: number) => (Number.isNaN(v) ? '' : String(v)),
-  boolean: (v: boolean) => (v ? '1' : '0'),
-  date: (v: Date) => v.toISOString(),
-};
-
-/** Rows as CSV text (CRLF line ends by default), every text cell neutralised. */
-export function safeCsv(rows: unknown[][], opts: { eol?: string } = {}): string {
-  return stringify(rows, { cast: SAFE_CSV_CAST, record_delimiter: opts.eol === '\n' ? 'unix' : 'windows' });
-}
+// Writing CSV lives in server/lib/csv.ts (one writer); re-exported for existing callers.
+export { neutraliseCell, safeCsv } from '../lib/csv.js';

@@ -1,6 +1,4 @@
-import { Worker } from 'node:worker_threads';
-import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
+import { startWorker } from '../lib/workers.js';
 import { AppError } from '../errors.js';
 import { readCsvRows } from './csv.js';
 import { chunkPreparer, type PrepareContext, type PreparedChunk } from './prepare.js';
@@ -15,21 +13,7 @@ const AHEAD = 2;
 /** Chunks the main thread prepares itself while the worker starts. */
 const INLINE_CHUNKS = 4;
 
-/** Same bootstrap as the tomography pool: tsx's register() in the worker, then the .ts entry. */
-function startWorker(data: unknown): Worker {
-  const here = import.meta.url;
-  if (here.endsWith('.ts')) {
-    const req = createRequire(here);
-    const apiPath = req.resolve('tsx/esm/api').replace(/index\.cjs$/, 'index.mjs');
-    const tsxApi = pathToFileURL(apiPath).href;
-    const workerUrl = new URL('./prepare-worker.ts', here).href;
-    const bootstrap =
-      `import(${JSON.stringify(tsxApi)}).then((m) => { m.register(); return import(${JSON.stringify(workerUrl)}); })` +
-      `.catch((e) => { setImmediate(() => { throw e; }); });`;
-    return new Worker(bootstrap, { eval: true, workerData: data });
-  }
-  return new Worker(new URL('./prepare-worker.js', here), { workerData: data });
-}
+const startPrepareWorker = (data: unknown) => startWorker(new URL('./prepare-worker.ts', import.meta.url), data);
 
 /**
  * Prepared chunks of a stored upload, in file order. `inWorker`: parse and prepare on a worker
@@ -41,7 +25,7 @@ export async function* preparedChunks(path: string, delimiter: string, ctx: Prep
     for await (const records of readCsvRows(path, delimiter, onBytes)) yield prepare(records);
     return;
   }
-  const worker = startWorker({ path, delimiter, ctx, ahead: AHEAD, skipChunks: INLINE_CHUNKS });
+  const worker = startPrepareWorker({ path, delimiter, ctx, ahead: AHEAD, skipChunks: INLINE_CHUNKS });
   const queue: ToMain[] = [];
   let wake: (() => void) | null = null;
   let failure: Error | null = null;

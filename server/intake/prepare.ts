@@ -1,7 +1,4 @@
-import { deriveMeasurement, INDEX_NSIDE, type Derived } from '../measurements/derive.js';
-import { normaliseRow, type CanonicalRow, type RowIssue } from '../measurements/normalise.js';
-import type { ColumnMapping } from '../measurements/mapping.js';
-import { designation } from '../measurements/designation.js';
+import { deriveMeasurement, designation, INDEX_NSIDE, MEAS_NUM, normaliseRow, type CanonicalRow, type ColumnMapping, type Derived, type RowIssue } from '../measurements/service.js';
 import { ang2pixNest } from '../science/healpix.js';
 import { icrsToGalactic } from '../science/frames.js';
 import type { CsvRecord } from './csv.js';
@@ -158,4 +155,17 @@ export function chunkPreparer(ctx: PrepareContext) {
     }
     return c;
   };
+}
+
+const MEAS_SLOTS = MEAS_NUM.map((k) => NUM[k]);
+
+/** Values of MEAS_COLS (measurements/stored.ts) for row i of a prepared chunk. */
+export function measurementValues(c: PreparedChunk, i: number, id: number, starId: number | null, batchId: number, rowId: number, state: string, now: string, conflictsWith: number | null): unknown[] {
+  const v: unknown[] = [id, starId, batchId, rowId, state, 1, c.band[i], c.instrument[i], c.distanceMethod[i], c.flagsJson[i], conflictsWith, now, now];
+  const o = i * NUM_SLOTS;
+  for (const k of MEAS_SLOTS) {
+    const x = c.num[o + k];
+    v.push(Number.isNaN(x) ? null : x);
+  }
+  return v;
 }

@@ -2,7 +2,7 @@ import type { Worker } from 'node:worker_threads';
 import type { Knex } from 'knex';
 import { clearBatchRows, type CheckOptions, type CheckProgress } from './check.js';
 import type { ToRunner, ToWorker } from './check-worker.js';
-import { startModuleWorker } from './worker-start.js';
+import { startWorker } from '../lib/workers.js';
 
 /** Attempts of one batch's check before it is marked failed (a worker that dies twice on it). */
 const MAX_ATTEMPTS = 3;
@@ -97,7 +97,7 @@ export class CheckRunner {
   private spawn(): Worker {
     // the check's memory is bounded by its chunk; a cap keeps V8 from growing its heap lazily
     // on a million-row batch (a worker over it ends and the batch is checked again, then failed)
-    const w = startModuleWorker(import.meta.url, 'check-worker', { dbFile: this.dbFile, opts: this.opts }, { maxOldGenerationSizeMb: 384 });
+    const w = startWorker(new URL('./check-worker.ts', import.meta.url), { dbFile: this.dbFile, opts: this.opts }, { resourceLimits: { maxOldGenerationSizeMb: 512 } });
     this.worker = w;
     w.on('message', (m: ToRunner) => {
       if (m.kind === 'progress') this.live.set(m.batchId, m);

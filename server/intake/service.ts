@@ -5,18 +5,18 @@ import type { Config } from '../config.js';
 import { AppError, badRequest, notFound } from '../errors.js';
 import type { SessionUser } from '../auth/roles.js';
 import { hasRole } from '../auth/roles.js';
-import type { RowIssue } from '../measurements/normalise.js';
-import { checkMapping, missingColumns, proposeMapping, type ColumnMapping, type MappingProposal } from '../measurements/mapping.js';
-import { safeCsv, sniffCsv } from './csv.js';
+import { checkMapping, DERIVED_COLUMNS, missingColumns, proposeMapping, type ColumnMapping, type MappingProposal, type RowIssue } from '../measurements/service.js';
+import { sniffCsv } from './csv.js';
+import { safeCsv } from '../lib/csv.js';
 import { storeUpload } from './storage.js';
 import { ZERO_COUNTS, type BatchCounts, type RowState } from './check.js';
 import { CheckRunner } from './runner.js';
-import { VISIBLE_BATCH_STATES } from './visibility.js';
-import { DERIVED_COLUMNS } from '../measurements/stored.js';
+import { VISIBLE_BATCH_STATES } from '../lib/visibility.js';
 
 export type { BatchCounts, RowState } from './check.js';
 
-export type BatchState = 'received' | 'needs_mapping' | 'checking' | 'awaiting_review' | 'failed' | 'approved' | 'returned';
+export type { BatchState } from '../lib/visibility.js';
+import type { BatchState } from '../lib/visibility.js';
 
 export interface IntakeOptions {
   crossmatchArcsec: number;

@@ -3,7 +3,6 @@ import { parseDecDeg, parseRaDeg } from '../science/sexagesimal.js';
 import { wrapAngle180 } from '../science/axial.js';
 import { schema } from '../lib/validate.js';
 import { COLUMN_BY_NAME, COLUMNS } from './columns.js';
-import type { ColumnMapping } from './mapping.js';
 
 export interface RowIssue {
   /** header of the uploaded file (or the canonical name when the row has no such header) */

@@ -3,10 +3,10 @@ import { recordAudit } from '../audit/service.js';
 import { AppError, badRequest, conflict, notFound } from '../errors.js';
 import { icrsToGalactic } from '../science/frames.js';
 import { ang2pixNest } from '../science/healpix.js';
-import { deriveMeasurement, INDEX_NSIDE, type Derived } from './derive.js';
+import { deriveMeasurement, INDEX_NSIDE } from './derive.js';
 import { designation } from './designation.js';
 import { normaliseRow, type CanonicalRow } from './normalise.js';
-import { hiddenBatchIds } from '../intake/visibility.js';
+import { hiddenBatchIds } from '../lib/visibility.js';
 import { derivedColumns } from './stored.js';
 import { rematchPosition } from './rematch.js';
 
@@ -36,6 +36,14 @@ const toText = (v: unknown) => (v === null || v === undefined ? undefined : Stri
 
 /** Persisted columns of a derived measurement: the one list in stored.ts, shared with intake's bulk writes. */
 export { derivedColumns } from './stored.js';
+// The public face of a measurement's life for the other capabilities (intake in bulk, review and
+// calibration one row at a time): the column contract, mapping, normalising, deriving, the stored columns.
+export { COLUMNS } from './columns.js';
+export { checkMapping, missingColumns, proposeMapping, type ColumnMapping, type MappingProposal } from './mapping.js';
+export { normaliseRow, type CanonicalRow, type RowIssue } from './normalise.js';
+export { deriveMeasurement, INDEX_NSIDE, type Derived } from './derive.js';
+export { designation } from './designation.js';
+export { DERIVED_COLUMNS, MEAS_COLS, MEAS_NUM, ROW_COLS, STAR_COLS } from './stored.js';
 
 /**
  * Owns a stored measurement's life after intake: validate an edit with the upload schema,

@@ -1,4 +1,3 @@
-import { NUM, NUM_SLOTS, type PreparedChunk } from '../intake/prepare.js';
 import type { Derived } from './derive.js';
 
 /**
@@ -13,19 +12,6 @@ export const MEAS_NUM = ['ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'hpx15', '
 export const MEAS_COLS = ['id', 'star_id', 'batch_id', 'batch_row_id', 'state', 'version', 'band', 'instrument', 'distance_method', 'flags_json', 'conflicts_with', 'created_at', 'updated_at', ...MEAS_NUM] as const;
 /** the derived values shown beside a batch row */
 export const DERIVED_COLUMNS = ['band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'p', 'p_err', 'p_debiased', 'theta_deg', 'theta_err_deg', 'q_gal', 'u_gal', 'theta_gal_deg', 'glon_deg', 'glat_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc', 'distance_method', 'state', 'flags_json'] as const;
-
-const MEAS_SLOTS = MEAS_NUM.map((k) => NUM[k]);
-
-/** Values of MEAS_COLS for row i of a prepared chunk. */
-export function measurementValues(c: PreparedChunk, i: number, id: number, starId: number | null, batchId: number, rowId: number, state: string, now: string, conflictsWith: number | null): unknown[] {
-  const v: unknown[] = [id, starId, batchId, rowId, state, 1, c.band[i], c.instrument[i], c.distanceMethod[i], c.flagsJson[i], conflictsWith, now, now];
-  const o = i * NUM_SLOTS;
-  for (const k of MEAS_SLOTS) {
-    const x = c.num[o + k];
-    v.push(Number.isNaN(x) ? null : x);
-  }
-  return v;
-}
 
 /** Text columns of a measurement that come from derivation (the rest of MEAS_COLS is numeric or bookkeeping). */
 export const MEAS_DERIVED_TEXT = ['band', 'instrument', 'distance_method', 'flags_json'] as const;
