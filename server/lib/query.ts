@@ -38,9 +38,9 @@ export const orderQuery = (fallback: 'asc' | 'desc'): Params => {
 };
 
 export const coneQuery = (maxRadiusDeg: number, note = ''): Params => ({
-  ra: { description: `deg, ICRS right ascension of the cone centre, [0, 360)${note}`, schema: { type: 'number', minimum: 0, exclusiveMaximum: 360 } },
-  dec: { description: `deg, ICRS declination of the cone centre, [−90, 90]${note}`, schema: { type: 'number', minimum: -90, maximum: 90 } },
-  radius: { description: `deg, cone radius, (0, ${maxRadiusDeg}]${note}`, schema: { type: 'number', exclusiveMinimum: 0, maximum: maxRadiusDeg } },
+  ra: { description: `deg, ICRS right ascension of the cone centre, [0, 360)${note}`, schema: { type: 'number', minimum: 0, exclusiveMaximum: 360 }, expected: '0 ≤ ra < 360 (deg, ICRS)' },
+  dec: { description: `deg, ICRS declination of the cone centre, [−90, 90]${note}`, schema: { type: 'number', minimum: -90, maximum: 90 }, expected: '−90 ≤ dec ≤ 90 (deg, ICRS)' },
+  radius: { description: `deg, cone radius, (0, ${maxRadiusDeg}]${note}`, schema: { type: 'number', exclusiveMinimum: 0, maximum: maxRadiusDeg }, expected: `0 < radius ≤ ${maxRadiusDeg} (deg)` },
 });
 
 /** release= — answer from a frozen release's run. */

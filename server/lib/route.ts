@@ -30,6 +30,8 @@ export interface ParamSpec {
   required?: boolean;
   /** compared without case: the text is lowercased before validation (e.g. format=CSV) */
   lowercase?: boolean;
+  /** what a bad value is told was expected, when the words from the schema are not the clearest (e.g. "0 < radius ≤ 30 (deg)") */
+  expected?: string;
 }
 
 export interface SuccessResponse {
@@ -112,11 +114,6 @@ export function route<D = any, P = Record<string, any>, Q = Record<string, any>,
   return spec as unknown as RouteSpec<D>;
 }
 
-/** A capability's routes with the services they need. */
-export interface RouteGroup<D = any> {
-  routes: RouteSpec<D>[];
-}
-
 // ---------------------------------------------------------------------------------------------
 // Parameter validation
 
@@ -167,14 +164,14 @@ function paramProblem(c: CompiledParams, errors: ErrorObject[], raw: Record<stri
     const name = e.keyword === 'required' ? (e.params as { missingProperty: string }).missingProperty : e.instancePath.slice(1).replace(/~1/g, '/').replace(/~0/g, '~');
     if (name && !names.includes(name)) names.push(name);
   }
-  const fields = names.map((name) => {
+  const expected = (name: string) => {
     const spec = c.specs[name];
-    return { field: name, message: raw[name] === undefined ? 'required' : `expected ${spec ? expectedText(spec.schema) : 'another value'}` };
-  });
+    return spec ? spec.expected ?? expectedText(spec.schema) : 'another value';
+  };
+  const fields = names.map((name) => ({ field: name, message: raw[name] === undefined ? 'required' : `expected ${expected(name)}` }));
   const first = names[0] ?? '(parameters)';
-  const spec = c.specs[first];
   const label = c.where === 'path' ? `The path parameter ${first}` : `The query parameter ${first}`;
-  const message = raw[first] === undefined ? `${label} is required.` : `${label} must be ${spec ? expectedText(spec.schema) : 'another value'}; got "${shown(raw[first])}".`;
+  const message = raw[first] === undefined ? `${label} is required.` : `${label} must be ${expected(first)}; got "${shown(raw[first])}".`;
   return badRequest(message, { fields });
 }
 
