@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
+import type { OutboxStatus } from './transport.js';
 
-/** Data access of the notifications: who gets a message, and the figures it reports. */
+/** Data access of mail: who gets a message, the figures it reports, the outbox as admins read it. */
 
 /** Enabled curators and admins, by id: who is told that a batch waits for review. */
 export function enabledReviewers(db: Knex): Promise<{ email: string; name: string }[]> {
@@ -25,4 +26,38 @@ export async function decidedBatch(db: Knex, batch: { id: number; uploaded_by: n
   const row = await db('batches').where({ id: batch.id }).first('counts_json');
   const counts = (row?.counts_json ? JSON.parse(row.counts_json) : {}) as Record<string, number>;
   return { uploader, counts };
+}
+
+export interface OutboxRow {
+  id: number;
+  to_address: string;
+  from_address: string;
+  subject: string;
+  text_body: string;
+  html_body: string | null;
+  transport: string;
+  status: OutboxStatus;
+  error: string | null;
+  created_at: string;
+  sent_at: string | null;
+}
+
+/** The outbox, newest first. */
+export async function listOutbox(db: Knex, page: { limit: number; offset: number }) {
+  const [{ n }] = await db('outbox').count({ n: '*' });
+  const rows: OutboxRow[] = await db('outbox').orderBy('id', 'desc').limit(page.limit).offset(page.offset);
+  return {
+    messages: rows.map((r) => ({
+      id: r.id,
+      to: r.to_address,
+      from: r.from_address,
+      subject: r.subject,
+      text: r.text_body,
+      createdAt: r.created_at,
+      transport: r.transport,
+      status: r.status,
+      error: r.error,
+    })),
+    total: Number(n),
+  };
 }

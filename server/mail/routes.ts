@@ -4,7 +4,7 @@ import { attemptLimiter } from '../auth/service.js';
 import { reply, route } from '../lib/route.js';
 import { pageQuery } from '../lib/query.js';
 import type { Config } from '../config.js';
-import { listOutbox } from './transport.js';
+import { listOutbox } from './queries.js';
 import type { PasswordResetService } from './passwordReset.js';
 
 export interface MailDeps {

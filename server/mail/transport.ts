@@ -112,37 +112,3 @@ export function createMailer(db: Knex, config: Pick<Config, 'mail' | 'publicUrl'
     },
   };
 }
-
-export interface OutboxRow {
-  id: number;
-  to_address: string;
-  from_address: string;
-  subject: string;
-  text_body: string;
-  html_body: string | null;
-  transport: string;
-  status: OutboxStatus;
-  error: string | null;
-  created_at: string;
-  sent_at: string | null;
-}
-
-/** The outbox, newest first. */
-export async function listOutbox(db: Knex, page: { limit: number; offset: number }) {
-  const [{ n }] = await db('outbox').count({ n: '*' });
-  const rows: OutboxRow[] = await db('outbox').orderBy('id', 'desc').limit(page.limit).offset(page.offset);
-  return {
-    messages: rows.map((r) => ({
-      id: r.id,
-      to: r.to_address,
-      from: r.from_address,
-      subject: r.subject,
-      text: r.text_body,
-      createdAt: r.created_at,
-      transport: r.transport,
-      status: r.status,
-      error: r.error,
-    })),
-    total: Number(n),
-  };
-}
