@@ -10,7 +10,7 @@ import { icrsToGalactic, galacticToIcrs } from '../science/frames.js';
 import { mocFromRanges, type CellRange, type Moc } from '../science/moc.js';
 import type { StokesConvention } from '../science/convention.js';
 import { csvChunks, type CsvColumn } from '../lib/csv.js';
-import { cellMeetsCriteria, describeCriteria, provenanceComments, type CellCriteria, type CellForOutput, type RunForOutput } from '../tomography/service.js';
+import { cellMeetsCriteria, describeCriteria, layerExtremes, provenanceComments, type CellCriteria, type CellForOutput, type RunForOutput } from '../tomography/service.js';
 
 /** Finest NSIDE a mask is written at (a FITS map at 512 is 3.1 million rows, 22 MB). */
 export const MAX_MASK_NSIDE = 512;
@@ -39,8 +39,7 @@ export interface MaskCell {
 
 export function maskCells(cells: CellForOutput[], criteria: CellCriteria): MaskCell[] {
   return cells.map((c) => {
-    let max: { deg: number; sig: number } | null = null;
-    for (const j of c.jumps) if (!max || Math.abs(j.deltaThetaDeg) > max.deg) max = { deg: Math.abs(j.deltaThetaDeg), sig: j.significance };
+    const { maxJump, nearestLayerPc, farthestLayerPc } = layerExtremes(c);
     return {
       ipix: c.ipix,
       lonDeg: c.centre.lonDeg,
@@ -49,10 +48,10 @@ export function maskCells(cells: CellForOutput[], criteria: CellCriteria): MaskC
       decDeg: c.centre.decDeg,
       nStars: c.nStars,
       nLayers: c.nLayers,
-      maxJumpDeg: max?.deg ?? null,
-      maxJumpSignificance: max?.sig ?? null,
-      nearestLayerPc: c.layers.length ? c.layers[0].distancePc : null,
-      farthestLayerPc: c.layers.length ? c.layers[c.layers.length - 1].distancePc : null,
+      maxJumpDeg: maxJump?.deg ?? null,
+      maxJumpSignificance: maxJump?.sig ?? null,
+      nearestLayerPc,
+      farthestLayerPc,
       flagged: cellMeetsCriteria(c, criteria),
     };
   });

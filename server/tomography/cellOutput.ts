@@ -33,6 +33,14 @@ export interface RunForOutput {
   release: string | null;
 }
 
+/** A cell's largest |Δθ| between successive layers (with its significance) and its nearest and farthest layer (pc). */
+export function layerExtremes(cell: { layers: Pick<TomographyLayer, 'distancePc'>[]; jumps: Pick<TomographyJump, 'deltaThetaDeg' | 'significance'>[] }) {
+  let maxJump: { deg: number; sig: number } | null = null;
+  for (const j of cell.jumps) if (!maxJump || Math.abs(j.deltaThetaDeg) > maxJump.deg) maxJump = { deg: Math.abs(j.deltaThetaDeg), sig: j.significance };
+  const n = cell.layers.length;
+  return { maxJump, nearestLayerPc: n ? cell.layers[0].distancePc : null, farthestLayerPc: n ? cell.layers[n - 1].distancePc : null };
+}
+
 /** Run metadata shared by every answer. */
 export const runSummary = (run: RunForOutput) => ({ id: run.id, params: run.params, fingerprint: run.fingerprint, finishedAt: run.finishedAt });
 

@@ -11,13 +11,14 @@ import { distanceFromParallax } from '../science/distance.js';
 import { galacticToIcrs, icrsToGalactic } from '../science/frames.js';
 import { ang2pixNest, maxPixelRadiusDeg, orderForNside, pix2angNest } from '../science/healpix.js';
 import { angularSeparationDeg } from '../science/separation.js';
+import { layerExtremes } from './cellOutput.js';
 import { candidateCellRanges, pixelOverlapsDisc } from './cone.js';
 import { runCellsInWorkers, type TomographyCell } from './pool.js';
 import type { SightlineResult, TomographyStar } from '../science/tomography/types.js';
 
 // What other capabilities (masks) use of tomography: the cells of a run as answers show them.
 export { cellMeetsCriteria, describeCriteria, filterCells, type CellCriteria } from './criteria.js';
-export { cellInConvention, runSummary, SIGHTLINE_CONVENTIONS, type CellForOutput, type RunForOutput } from './cellOutput.js';
+export { cellInConvention, layerExtremes, runSummary, SIGHTLINE_CONVENTIONS, type CellForOutput, type RunForOutput } from './cellOutput.js';
 export { provenanceComments } from './layersCsv.js';
 export { sendCells, setProvenanceHeaders, type CellsAnswer } from './sendCells.js';
 
@@ -123,7 +124,7 @@ export async function gatherStars(db: Knex, p: RunParams, from: { releaseId?: nu
 }
 
 function summarise(r: SightlineResult) {
-  const maxJump = r.jumps.reduce<{ deg: number; sig: number } | null>((best, j) => (!best || Math.abs(j.deltaThetaDeg) > best.deg ? { deg: Math.abs(j.deltaThetaDeg), sig: j.significance } : best), null);
+  const { maxJump, nearestLayerPc, farthestLayerPc } = layerExtremes(r);
   return {
     n_stars: r.nStars,
     n_layers: r.nLayers,
@@ -131,8 +132,8 @@ function summarise(r: SightlineResult) {
     complex: r.complex,
     max_jump_deg: maxJump?.deg ?? null,
     max_jump_significance: maxJump?.sig ?? null,
-    nearest_layer_pc: r.layers.length ? r.layers[0].distancePc : null,
-    farthest_layer_pc: r.layers.length ? r.layers[r.layers.length - 1].distancePc : null,
+    nearest_layer_pc: nearestLayerPc,
+    farthest_layer_pc: farthestLayerPc,
   };
 }
 
