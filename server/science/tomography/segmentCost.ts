@@ -51,13 +51,10 @@ export interface SegmentFit {
 const gridT = new Float64Array(MAX_GRID + 2);
 const gridF = new Float64Array(MAX_GRID + 2);
 
-// Results of the last evaluate() call.
-let evD1 = 0;
-let evD2 = 0;
-let evMeanQ = 0;
-let evMeanU = 0;
-let evWq = 0;
-let evWu = 0;
+// Results of the last evaluate() call: f's first and second derivatives, the means and weights.
+let evD1 = 0, evD2 = 0;
+let evMeanQ = 0, evMeanU = 0;
+let evWq = 0, evWu = 0;
 // Arguments and value of the last evaluate() call, so a point is not evaluated twice in a row.
 let lastQ: Float64Array | null = null;
 let lastStart = -1;
