@@ -1,7 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../apiClient';
-import type { Instrument } from './types';
+import type { InstrumentList } from './types';
 
-export const getInstruments = () => api.get<{ instruments: Instrument[] }>('/instruments');
+export const getInstruments = () => api.get<InstrumentList>('/instruments');
 export const instrumentsQueryOptions = () => queryOptions({ queryKey: ['instruments'], queryFn: getInstruments, staleTime: 10 * 60_000 });
 export const useInstruments = () => useQuery(instrumentsQueryOptions());

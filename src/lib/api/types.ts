@@ -7,13 +7,15 @@
 import type { components, paths } from './schema.gen';
 
 type S = components['schemas'];
-/** The JSON answer (200, else 201) of an operation. */
+/** The JSON answer (200, else 201, else 202) of an operation. */
 type Json<P extends keyof paths, M extends keyof paths[P]> = paths[P][M] extends { responses: infer R }
   ? R extends { 200: { content: { 'application/json': infer B } } }
     ? B
     : R extends { 201: { content: { 'application/json': infer B } } }
       ? B
-      : never
+      : R extends { 202: { content: { 'application/json': infer B } } }
+        ? B
+        : never
   : never;
 /** The query parameters of an operation. */
 type Query<P extends keyof paths, M extends keyof paths[P]> = paths[P][M] extends { parameters: { query?: infer Q } } ? NonNullable<Q> : never;

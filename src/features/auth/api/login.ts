@@ -1,8 +1,8 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Me } from '../../../lib/roles';
+import type { OperationAnswer } from '../../../lib/api/types';
 
-export const login = (input: { email: string; password: string }) => api.post<{ user: Me }>('/auth/login', input);
+export const login = (input: { email: string; password: string }) => api.post<OperationAnswer<'/auth/login', 'post'>>('/auth/login', input);
 
 export function useLogin() {
   const qc = useQueryClient();

@@ -1,6 +1,7 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Star, StarListParams } from '../types';
+import type { StarListParams } from '../types';
+import type { StarList } from '../../../lib/api/types';
 
 export function getStars(p: StarListParams) {
   const qs = new URLSearchParams({ sort: p.sort, order: p.order, limit: String(p.limit), offset: String(p.offset) });
@@ -12,7 +13,7 @@ export function getStars(p: StarListParams) {
     qs.set('radius', p.cone.radius);
   }
   if (p.flag) qs.set('flag', p.flag);
-  return api.get<{ stars: Star[]; total: number }>(`/stars?${qs}`);
+  return api.get<StarList>(`/stars?${qs}`);
 }
 
 export const starsQueryOptions = (p: StarListParams) => queryOptions({ queryKey: ['catalog', 'stars', p], queryFn: () => getStars(p), placeholderData: keepPreviousData });

@@ -1,16 +1,17 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Instrument, InstrumentBand, InstrumentCreate, InstrumentUpdate } from '../../../lib/api/types';
+import type { InstrumentBand, InstrumentCreate, InstrumentList, InstrumentUpdate } from '../../../lib/api/types';
 
 export const BANDS = ['U', 'B', 'V', 'R', 'I'] as const;
 export type Band = InstrumentBand;
 
-export type RegisteredInstrument = Instrument;
+/** An instrument as GET /instruments lists it. */
+export type RegisteredInstrument = InstrumentList['instruments'][number];
 
 export type InstrumentInput = InstrumentCreate;
 
 // same query key as the upload form's instrument list, so both refresh together
-export const useRegisteredInstruments = () => useQuery({ queryKey: ['instruments'], queryFn: () => api.get<{ instruments: Instrument[] }>('/instruments') });
+export const useRegisteredInstruments = () => useQuery({ queryKey: ['instruments'], queryFn: () => api.get<InstrumentList>('/instruments') });
 
 export function useCreateInstrument() {
   const qc = useQueryClient();

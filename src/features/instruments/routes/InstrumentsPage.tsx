@@ -1,6 +1,7 @@
 import { useState, type FormEvent, type ReactNode } from 'react';
 import { Button, Card, Field, Notice, PageTitle, TextInput } from '../../../components/ui/primitives';
 import { useMe } from '../../../lib/api/me';
+import { formatCount } from '../../../lib/format';
 import { BANDS, useCreateInstrument, useRegisteredInstruments, useUpdateInstrument, type Band, type RegisteredInstrument } from '../api/instruments';
 
 /**
@@ -70,7 +71,7 @@ function InstrumentRow({ instrument, editable }: { instrument: RegisteredInstrum
         <td><TextInput aria-label={`Name of ${instrument.code}`} value={form.name} onChange={(e) => setForm({ ...form, name: e.target.value })} /></td>
         <td className="min-w-40 pr-3"><BandPicker label={`Bands of ${instrument.code}`} value={form.bands} onChange={(bands) => setForm({ ...form, bands })} /></td>
         <td><TextInput aria-label={`Description of ${instrument.code}`} value={form.description} onChange={(e) => setForm({ ...form, description: e.target.value })} /></td>
-        <td className="num text-right">{instrument.measurements.toLocaleString('en')}</td>
+        <td className="num text-right">{formatCount(instrument.measurements)}</td>
         <td className="space-y-1 text-right">
           <Button
             disabled={update.isPending || form.bands.length === 0 || !form.name.trim()}
@@ -90,7 +91,7 @@ function InstrumentRow({ instrument, editable }: { instrument: RegisteredInstrum
       <td>{instrument.name}</td>
       <td>{instrument.bands.join(', ')}</td>
       <td className="text-muted">{instrument.description ?? '—'}</td>
-      <td className="num text-right">{instrument.measurements.toLocaleString('en')}</td>
+      <td className="num text-right">{formatCount(instrument.measurements)}</td>
       {editable && (
         <td className="text-right">
           <Button tone="quiet" onClick={() => { setForm({ name: instrument.name, bands: instrument.bands, description: instrument.description ?? '' }); setEditing(true); }}>Edit</Button>

@@ -1,13 +1,14 @@
 import { infiniteQueryOptions, useInfiniteQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { BatchRow, RowState } from '../types';
+import type { RowState } from '../types';
+import type { BatchRowsPage } from '../../../lib/api/types';
 
 export const ROWS_PAGE = 500;
 
 export function getBatchRows(id: number, p: { state?: RowState; offset: number; limit: number }) {
   const qs = new URLSearchParams({ offset: String(p.offset), limit: String(p.limit) });
   if (p.state) qs.set('state', p.state);
-  return api.get<{ rows: BatchRow[]; total: number }>(`/batches/${id}/rows?${qs}`);
+  return api.get<BatchRowsPage>(`/batches/${id}/rows?${qs}`);
 }
 
 /** Rows of a checked batch, a page at a time (the table asks for the next page as it scrolls). */

@@ -1,6 +1,7 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { Batch, BatchState } from '../types';
+import type { BatchState } from '../types';
+import type { BatchList } from '../../../lib/api/types';
 
 export interface BatchListParams {
   state?: BatchState | '';
@@ -12,7 +13,7 @@ export interface BatchListParams {
 export function getBatches(p: BatchListParams) {
   const qs = new URLSearchParams({ limit: String(p.limit), offset: String(p.offset) });
   if (p.state) qs.set('state', p.state);
-  return api.get<{ batches: Batch[]; total: number }>(`/batches?${qs}`);
+  return api.get<BatchList>(`/batches?${qs}`);
 }
 
 export const batchesQueryOptions = (p: BatchListParams) =>

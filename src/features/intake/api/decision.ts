@@ -1,6 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { BatchDecisionRecord } from '../../../lib/api/types';
+import type { Batch, BatchDecisionRecord } from '../../../lib/api/types';
 
 export type { BatchDecisionRecord, BatchRef } from '../../../lib/api/types';
 
@@ -15,7 +15,7 @@ export async function sendCorrectedFile({ returnedId, file, instrument }: { retu
   const form = new FormData();
   if (instrument) form.append('instrument', instrument);
   form.append('file', file, file.name);
-  const created = await api.post<{ id: number }>('/batches', form);
+  const created = await api.post<Batch>('/batches', form);
   return api.post<BatchDecisionRecord>(`/batches/${created.id}/replaces`, { batchId: returnedId });
 }
 

@@ -1,8 +1,8 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { HistoryEntry } from '../types';
+import type { MeasurementHistory } from '../../../lib/api/types';
 
-export const getMeasurementHistory = (id: number) => api.get<{ history: HistoryEntry[] }>(`/measurements/${id}/history`);
+export const getMeasurementHistory = (id: number) => api.get<MeasurementHistory>(`/measurements/${id}/history`);
 
 export const measurementHistoryQueryOptions = (id: number) =>
   queryOptions({ queryKey: ['review', 'history', id], queryFn: () => getMeasurementHistory(id) });

@@ -1,11 +1,11 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
-import type { StoredMeasurement } from '../types';
 import { patchCachedRow, rowPatchFromStored } from './cache';
 import { measurementHistoryQueryOptions } from './history';
+import type { OperationAnswer } from '../../../lib/api/types';
 
 export const revertEdit = ({ auditId, reason }: { auditId: number; measurementId: number; reason?: string }) =>
-  api.post<{ measurement: StoredMeasurement }>(`/audit/${auditId}/revert`, reason ? { reason } : {});
+  api.post<OperationAnswer<'/audit/{id}/revert', 'post'>>(`/audit/${auditId}/revert`, reason ? { reason } : {});
 
 /** Write an edit's old values back (the server records the revert as an edit of its own). */
 export function useRevertEdit(batchId: number) {

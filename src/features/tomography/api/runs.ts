@@ -1,12 +1,13 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
 import { WORKING_RUN_STATES, type Run } from '../types';
+import type { RunList } from '../../../lib/api/types';
 
 export const RUNS_KEY = ['tomography', 'runs'] as const;
 export const RUNS_POLL_MS = 2000;
 
 /** Every run, newest first (the server keeps the last 100 in the list). */
-export const getRuns = () => api.get<{ runs: Run[] }>('/tomography/runs');
+export const getRuns = () => api.get<RunList>('/tomography/runs');
 
 export const runsQueryOptions = () =>
   queryOptions({
