@@ -1,4 +1,4 @@
-/** Small display helpers for the intake pages. */
+/** Small display helpers the pages share: sizes, ages, counts, fixed decimals, percentages. */
 
 export function formatBytes(n: number): string {
   if (!Number.isFinite(n)) return '—';
