@@ -11,6 +11,7 @@ import { safeCsv } from '../lib/csv.js';
 import { storeUpload } from './storage.js';
 import { ZERO_COUNTS, type BatchCounts, type RowState } from './check.js';
 import { CheckRunner } from './runner.js';
+import { settlingOf } from '../lib/settling.js';
 import { VISIBLE_BATCH_STATES } from '../lib/visibility.js';
 
 export type { BatchCounts, RowState } from './check.js';
@@ -66,6 +67,8 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
       mapping: parseJson<ColumnMapping | null>(b.mapping_json, null),
       proposal: b.state === 'needs_mapping' && proposal ? { headers: proposal.headers, mapping: proposal.mapping, ambiguous: proposal.ambiguous, unmapped: proposal.unmapped, missing: proposal.missing, preview: proposal.preview } : null,
       failure: b.failure ?? null,
+      /** a large approve or return being applied in short transactions (null otherwise) */
+      settling: settlingOf(b),
     };
   }
 

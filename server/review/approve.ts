@@ -19,7 +19,9 @@ import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { AppError, notFound } from '../errors.js';
 
-export type Decision = 'approved' | 'returned';
+import { settlingOf, type Decision, type Settle } from '../lib/settling.js';
+
+export { settlingOf, type Decision };
 
 /** Batches with at most this many measurements to change are decided in the request's own transaction. */
 export const SYNC_DECISION_ROWS = 20_000;
@@ -34,16 +36,6 @@ export interface DecisionCounts {
   withdrawn?: number;
 }
 
-interface Settle {
-  decision: Decision;
-  actorId: number;
-  note: string | null;
-  from: string;
-  total: number;
-  changed: number;
-  moved: number;
-  startedAt: string;
-}
 
 export type DecisionStart =
   | { done: true; batch: { id: number; filename: string; uploaded_by: number }; counts: DecisionCounts }
@@ -139,11 +131,4 @@ export async function settleChunks(db: Knex, batchId: number, onProgress: (done:
     if (step.end) return step.counts;
     onProgress(step.done, step.total);
   }
-}
-
-/** Progress of a settling batch for its answer (null when it is not settling). */
-export function settlingOf(b: { settling?: string | null; settle_json?: string | null }): { decision: Decision; done: number; total: number; startedAt: string } | null {
-  if (!b.settling || !b.settle_json) return null;
-  const s = JSON.parse(b.settle_json) as Settle;
-  return { decision: s.decision, done: s.changed + s.moved, total: s.total, startedAt: s.startedAt };
 }
