@@ -86,8 +86,9 @@ export interface RouteSpec<D = any, P = Record<string, any>, Q = Record<string, 
   /** said beside the roles, e.g. "observers see their own batches only" */
   whoNote?: string;
   /**
-   * A personal API token (Authorization: Bearer) may call it. Default: every guarded GET route;
-   * tokens never write (server/tokens/middleware.ts refuses other methods before any route).
+   * A personal API token (Authorization: Bearer) may call it. Default: every GET route (`false`
+   * refuses a token with 403); tokens never write (server/tokens/middleware.ts refuses other
+   * methods before any route).
    */
   bearer?: boolean;
   params?: Record<string, ParamSpec>;
@@ -213,7 +214,19 @@ export function successStatus(spec: RouteSpec): number {
   return Math.min(...Object.keys(spec.responses).map(Number).filter((s) => s >= 200 && s < 300));
 }
 
-export const bearerAllowed = (spec: RouteSpec) => spec.bearer ?? (spec.who !== 'anyone' && spec.method === 'get');
+/** Whether a personal API token may call the route: every GET unless the declaration says `bearer: false`. */
+export const bearerAllowed = (spec: RouteSpec) => spec.bearer ?? spec.method === 'get';
+
+/** Validators compiled once per declaration (createApp may run many times in one process, as in tests). */
+const compiled = new WeakMap<RouteSpec, { params: CompiledParams | null; query: CompiledParams | null; body: ValidateFunction | null }>();
+function validatorsOf(spec: RouteSpec) {
+  let v = compiled.get(spec);
+  if (!v) {
+    v = { params: compileParams(spec.params, 'path'), query: compileParams(spec.query, 'query'), body: spec.body && 'schema' in spec.body ? schemaById(spec.body.schema) : null };
+    compiled.set(spec, v);
+  }
+  return v;
+}
 
 /** Routes open to anyone (sign-in, health): stated explicitly so a reader sees the choice. */
 const openToAnyone: RequestHandler = (_req, _res, next) => next();
@@ -225,9 +238,7 @@ const openToAnyone: RequestHandler = (_req, _res, next) => next();
  */
 export function mountRoutes<D>(router: Router, routes: RouteSpec<D>[], deps: D): void {
   for (const spec of routes) {
-    const params = compileParams(spec.params, 'path');
-    const query = compileParams(spec.query, 'query');
-    const body = spec.body && 'schema' in spec.body ? schemaById(spec.body.schema) : null;
+    const { params, query, body } = validatorsOf(spec);
     const status = successStatus(spec);
     const allowsBearer = bearerAllowed(spec);
 

@@ -18,8 +18,9 @@ const seen: Json[] = [];
 function tinyApp(user?: { id: number; email: string; name: string; role: 'observer' | 'curator' | 'modeler' | 'admin' }) {
   const app = express();
   app.use(express.json());
-  app.use((req, _res, next) => {
+  app.use((req, res, next) => {
     if (user) req.user = user;
+    if (req.get('x-test-token')) res.locals.apiTokenId = 1; // as server/tokens/middleware.ts marks a token's request
     next();
   });
   const r = express.Router();
@@ -43,6 +44,11 @@ function tinyApp(user?: { id: number; email: string; name: string; role: 'observ
       body: { schema: 'api/token-create', required: true },
       responses: { 201: { description: 'made' } },
       handler: ({ body }) => ({ made: body.name }),
+    }),
+    route({
+      method: 'get', path: '/private', tag: 'Test', who: 'signed-in', summary: 'not for tokens', bearer: false,
+      responses: { 200: { description: 'ok' } },
+      handler: () => ({ ok: true }),
     }),
     route({
       method: 'delete', path: '/things/:id', tag: 'Test', who: ['curator'], summary: 'remove a thing',
@@ -125,6 +131,14 @@ describe('mountRoutes', () => {
     const gone = await request(tinyApp(curator)).delete('/things/4');
     expect(gone.status).toBe(204);
     expect(gone.text).toBe('');
+  });
+
+  it('a declaration can refuse personal API tokens; GET routes take them by default', async () => {
+    const refused = await request(tinyApp(curator)).get('/private').set('x-test-token', '1');
+    expect(refused.status).toBe(403);
+    expect(refused.body.error.code).toBe('token_not_accepted');
+    expect((await request(tinyApp(curator)).get('/private')).status).toBe(200);
+    expect((await request(tinyApp(curator)).get('/things/1').set('x-test-token', '1')).status).toBe(200);
   });
 
   it('states expectations in words', () => {
