@@ -8,7 +8,7 @@ import { FLAG_NAMES, plausibilityService } from '../calibration/service.js';
 
 /** Flags a catalog search can ask for (plausibility flags and the stored quality flags). */
 export const STAR_FLAGS = [...FLAG_NAMES, 'low_parallax_snr', 'no_distance'];
-import { whereMeasurementVisible as whereMeasurementNotHidden, whereStarVisible as whereStarNotHidden } from '../lib/visibility.js';
+import { settlingBatchIds, whereApprovedSettled, whereMeasurementVisible as whereMeasurementNotHidden, whereStarVisible as whereStarNotHidden } from '../lib/visibility.js';
 
 const STAR_SORTS = ['id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'parallax_mas', 'n_measurements'] as const;
 
@@ -27,11 +27,12 @@ export interface StarQuery {
 
 /** Which measurements a person may read: modelers approved only; observers approved + their own batches'. */
 export function visibleMeasurements(db: Knex, user: SessionUser) {
-  // rows of a batch still being checked (or failed) are invisible to everyone (server/intake/visibility.ts)
+  // rows of a batch still being checked (or failed) are invisible to everyone (server/lib/visibility.ts)
   const q = whereMeasurementNotHidden(db('measurements'), db);
   if (hasRole(user, ['curator'])) return q;
-  if (user.role === 'observer') return q.where((w) => w.where('measurements.state', 'approved').orWhereIn('measurements.batch_id', db('batches').where('uploaded_by', user.id).select('id')));
-  return q.where('measurements.state', 'approved');
+  // approved rows of a batch being approved or returned right now wait for its flip (whereApprovedSettled)
+  if (user.role === 'observer') return q.where((w) => w.where((a) => whereApprovedSettled(a, db)).orWhereIn('measurements.batch_id', db('batches').where('uploaded_by', user.id).select('id')));
+  return whereApprovedSettled(q, db);
 }
 
 /**
@@ -44,7 +45,7 @@ export function visibleMeasurements(db: Knex, user: SessionUser) {
 export function whereStarVisible<T extends Knex.QueryBuilder>(q: T, db: Knex, user: SessionUser, table = 'stars'): T {
   q = whereStarNotHidden(q, db, table);
   if (hasRole(user, ['curator'])) return q;
-  const approved = () => db('measurements').select(db.raw('1')).whereRaw('measurements.star_id = ??.id', [table]).where('measurements.state', 'approved');
+  const approved = () => whereApprovedSettled(db('measurements').select(db.raw('1')).whereRaw('measurements.star_id = ??.id', [table]), db);
   if (user.role !== 'observer') return q.whereExists(approved()) as T;
   const own = db('measurements').select(db.raw('1')).whereRaw('measurements.star_id = ??.id', [table]).whereIn('measurements.batch_id', db('batches').where('uploaded_by', user.id).select('id'));
   const otherObservers = db('users').where('role', 'observer').whereNot('id', user.id).select('id');
@@ -117,9 +118,10 @@ export function catalogService(db: Knex) {
       // stored flags plus the read-time plausibility flags (p ceiling, χ²-inconsistent repeats)
       const flagged = await plausibility.annotate(measurements.map((m) => ({ p: m.p, star_id: m.star_id, flags: m.flags_json ? (JSON.parse(m.flags_json) as string[]) : [] })));
       // combined value per band and instrument from approved measurements (METHODS.md: inverse-variance weighted q, u)
+      const settling = new Set((await settlingBatchIds(db)).map((b: { id: number }) => b.id));
       const groups = new Map<string, typeof measurements>();
       for (const m of measurements) {
-        if (m.state !== 'approved') continue;
+        if (m.state !== 'approved' || settling.has(m.batch_id)) continue;
         const k = `${m.band}|${m.instrument}`;
         groups.set(k, [...(groups.get(k) ?? []), m]);
       }

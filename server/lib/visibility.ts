@@ -30,3 +30,17 @@ export function whereStarVisible<T extends Knex.QueryBuilder>(q: T, db: Knex | K
 export function whereMeasurementVisible<T extends Knex.QueryBuilder>(q: T, db: Knex | Knex.Transaction, table = 'measurements'): T {
   return q.whereNotIn(`${table}.batch_id`, hiddenBatchIds(db)) as T;
 }
+
+/** Subquery: ids of batches being approved or returned in short transactions right now (`batches.settling`, migration 041). */
+export function settlingBatchIds(db: Knex | Knex.Transaction) {
+  return db('batches').whereNotNull('settling').select('id');
+}
+
+/**
+ * Restrict a query over `measurements` (or an alias) to approved measurements that readers of
+ * approved data may use: a batch being approved or returned in short transactions shows none of
+ * its rows as approved until its final flip, so nobody reads it half-decided.
+ */
+export function whereApprovedSettled<T extends Knex.QueryBuilder>(q: T, db: Knex | Knex.Transaction, table = 'measurements'): T {
+  return q.where(`${table}.state`, 'approved').whereNotIn(`${table}.batch_id`, settlingBatchIds(db)) as T;
+}

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { AppError, conflict, notFound } from '../errors.js';
+import { whereApprovedSettled } from '../lib/visibility.js';
 
 const M_COLS = ['measurement_id', 'version', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'q_gal', 'u_gal', 'q_gal_err', 'u_gal_err', 'p_debiased', 'theta_deg', 'theta_gal_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc'];
 const S_COLS = ['star_id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'hpx15', 'parallax_mas', 'parallax_err_mas'];
@@ -20,7 +21,7 @@ export function releaseService(db: Knex, readDb: Knex = db) {
         const [id] = await trx('releases').insert({ tag: input.tag, notes: input.notes ?? null, run_id: run.id, counts_json: '{}', fingerprint: run.fingerprint, frozen_by: actorId, frozen_at: new Date().toISOString() });
         // copies, so later edits and approvals leave the release as it was
         await trx.into(trx.raw('?? (??)', ['release_measurements', ['release_id', ...M_COLS]]))
-          .insert(trx('measurements').where({ state: 'approved' }).whereNotNull('star_id').select(trx.raw('? as release_id', [id]), 'id', 'version', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'q_gal', 'u_gal', 'q_gal_err', 'u_gal_err', 'p_debiased', 'theta_deg', 'theta_gal_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc'));
+          .insert(whereApprovedSettled(trx('measurements'), trx).whereNotNull('star_id').select(trx.raw('? as release_id', [id]), 'id', 'version', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'q_gal', 'u_gal', 'q_gal_err', 'u_gal_err', 'p_debiased', 'theta_deg', 'theta_gal_deg', 'distance_pc', 'distance_lo_pc', 'distance_hi_pc'));
         await trx.into(trx.raw('?? (??)', ['release_stars', ['release_id', ...S_COLS]]))
           .insert(trx('stars').whereIn('id', trx('release_measurements').where({ release_id: id }).distinct('star_id')).select(trx.raw('? as release_id', [id]), 'id', 'name', 'source_id', 'ra_deg', 'dec_deg', 'glon_deg', 'glat_deg', 'hpx15', 'parallax_mas', 'parallax_err_mas'));
         const [{ n: nm }] = await trx('release_measurements').where({ release_id: id }).count({ n: '*' });

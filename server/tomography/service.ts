@@ -4,6 +4,7 @@ import { recordAudit } from '../audit/service.js';
 import { bulkInsert } from '../dialect.js';
 import { AppError, notFound } from '../errors.js';
 import { whereInCone, withinCone } from '../lib/cone.js';
+import { whereApprovedSettled } from '../lib/visibility.js';
 import { npixForNside } from '../science/healpix.js';
 import { combineMeasurements } from '../science/combine.js';
 import { bandNormalisation, normalisationParams } from '../science/calibration.js';
@@ -71,7 +72,7 @@ export async function gatherStars(db: Knex, p: RunParams, from: { releaseId?: nu
       'm.q_gal', 'm.u_gal', 'm.q_gal_err', 'm.u_gal_err', 'm.distance_pc', 'm.distance_lo_pc', 'm.distance_hi_pc',
       's.ra_deg', 's.dec_deg', 's.glon_deg', 's.glat_deg', 's.parallax_mas', 's.parallax_err_mas',
     );
-  q = from.releaseId ? q.where('m.release_id', from.releaseId) : q.where('m.state', 'approved');
+  q = from.releaseId ? q.where('m.release_id', from.releaseId) : whereApprovedSettled(q, db, 'm');
   if (!p.referenceBand) q = q.where('m.band', p.band);
   if (p.region) q = whereInCone(q, 's.hpx15', p.region.ra, p.region.dec, p.region.radius);
   let rows = await q;
@@ -207,7 +208,7 @@ export function tomographyService(db: Knex, readDb: Knex = db, opts: { threads?:
     if (Number(open) >= maxOpenRuns) {
       throw new AppError(429, 'too_many_runs', `You have ${Number(open)} tomography runs queued or running; the limit is ${maxOpenRuns} per person. Wait for one to finish or cancel one.`, { fields: [{ field: 'run', message: `at most ${maxOpenRuns} open runs per person` }] });
     }
-    let q = readDb('measurements as m').join('stars as s', 's.id', 'm.star_id').where('m.state', 'approved');
+    let q = whereApprovedSettled(readDb('measurements as m').join('stars as s', 's.id', 'm.star_id'), readDb, 'm');
     if (!params.referenceBand) q = q.where('m.band', params.band);
     if (params.region) q = whereInCone(q, 's.hpx15', params.region.ra, params.region.dec, params.region.radius);
     const [{ n: stars }] = await q.countDistinct({ n: 'm.star_id' });
