@@ -3,6 +3,7 @@ import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { deleteInShortTransactions, maxId, reserveIds, setForeignKeyChecks, writeStats, selectRowsWhereIn, syncIdSequences, writeInShortTransactions } from '../dialect.js';
 import { AppError } from '../errors.js';
+import { icrsToGalactic } from '../science/frames.js';
 import { deriveMeasurement, MEAS_COLS, ROW_COLS, STAR_COLS, type ColumnMapping } from '../measurements/service.js';
 import { CrossMatcher, PRELOAD_STARS_PER_ROW, type MatchQuery, type MatchResult, type StarRef } from './crossmatch.js';
 import { measurementValues, NUM, NUM_SLOTS, warningsJsonOf, writeDerived, type PrepareContext } from './prepare.js';
@@ -157,6 +158,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   }
   const starVisible = (bid: number | null) => bid === null || approvedOrOwn.has(bid);
   const now = new Date().toISOString();
+  const starRow = (s: StarRef, glon: number, glat: number) => [s.id, s.name, s.source_id, s.ra_deg, s.dec_deg, glon, glat, s.parallax_mas, s.parallax_err_mas, s.hpx15, now, me, batchId];
   const matcher = new CrossMatcher(db, opts.crossmatchArcsec, starVisible);
   // a batch large beside the catalog reads every star once, in storage order, instead of
   // looking positions up chunk by chunk
@@ -164,7 +166,8 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   // SQLite: new stars are written last, sorted on the sky (their hpx15 and position index pages
   // are then written once each, not once per short transaction); elsewhere chunk by chunk
   const deferStars = await setForeignKeyChecks(db, false);
-  const deferred: unknown[][] = [];
+  // grid slots of the batch's new stars (their rows are built again from the grid at the end)
+  const deferred: number[] = [];
   const starIds = new IdBlock(db, 'stars');
   const rowIds = new IdBlock(db, 'batch_rows');
   const measIds = new IdBlock(db, 'measurements');
@@ -258,8 +261,9 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
           hpx15: num[o + NUM.star_hpx15], batch_id: batchId,
         };
         starMatch = 'new';
-        (deferStars ? deferred : newStars).push([star.id, star.name, star.source_id, star.ra_deg, star.dec_deg, num[o + NUM.star_glon], num[o + NUM.star_glat], star.parallax_mas, star.parallax_err_mas, star.hpx15, now, me, batchId]);
-        matcher.remember(star);
+        const slot = matcher.remember(star);
+        if (deferStars) deferred.push(slot);
+        else newStars.push(starRow(star, num[o + NUM.star_glon], num[o + NUM.star_glat]));
         newInChunk = true;
         counts.newStars++;
       }
@@ -330,8 +334,17 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     }
   }
   if (deferred.length) {
-    deferred.sort((a, b) => (a[9] as number) - (b[9] as number));
-    await writeInShortTransactions(db, [{ table: 'stars', cols: STAR_COLS, rows: deferred }], WRITE_BUDGET_MS);
+    const hpx = new Float64Array(deferred.length);
+    for (let i = 0; i < deferred.length; i++) hpx[i] = matcher.starAt(deferred[i]).hpx15;
+    const order = Array.from(deferred.keys()).sort((a, b) => hpx[a] - hpx[b]);
+    for (let i = 0; i < order.length; i += 20_000) {
+      const rows = order.slice(i, i + 20_000).map((k) => {
+        const s = matcher.starAt(deferred[k]);
+        const g = icrsToGalactic(s.ra_deg, s.dec_deg);
+        return starRow(s, g.lDeg, g.bDeg);
+      });
+      await writeInShortTransactions(db, [{ table: 'stars', cols: STAR_COLS, rows }], WRITE_BUDGET_MS);
+    }
     deferred.length = 0;
   }
   lap('stars');

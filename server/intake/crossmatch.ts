@@ -73,8 +73,13 @@ export class CrossMatcher {
     return n;
   }
 
-  remember(star: StarRef): void {
-    this.grid.add(star);
+  /** Keep a star created by this batch; returns its slot (see starAt). */
+  remember(star: StarRef): number {
+    return this.grid.add(star);
+  }
+
+  starAt(slot: number): StarRef {
+    return this.grid.star(slot);
   }
 
   /** Load every catalog star a chunk of queries could match (nothing once preloaded). */
