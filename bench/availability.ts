@@ -136,6 +136,59 @@ try {
   console.log(`curator edits: ${edits.map((e) => `${e.status} in ${e.ms.toFixed(0)} ms`).join(', ')}; slowest ${Math.max(...edits.map((e) => e.ms)).toFixed(0)} ms   (target < 1000 ms)`);
   console.log(`lost edits: ${lost}   (target 0)`);
   console.log(`progress: ${progressSteps.length} distinct values of rowsDone seen; longest gap between changes ${gaps.length ? (Math.max(...gaps) / 1000).toFixed(1) : '—'} s`);
+
+  // the curator approves the big batch: answered at once (202), applied in short transactions on
+  // a worker thread; the same reads and one more edit go on until it flips
+  const tAp = performance.now();
+  const ap = await curator(`/batches/${batch.id}/approve`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ note: 'availability benchmark' }) });
+  const apMs = performance.now() - tAp;
+  const apBody = await ap.json();
+  if (ap.status !== 202 && ap.status !== 200) throw new Error(`approve: ${ap.status} ${JSON.stringify(apBody)}`);
+  const settleReads: number[] = [];
+  const settleFailures: string[] = [];
+  let settling = apBody.state !== 'approved';
+  const settleLoop = async (kind: string, f: () => Promise<Response>) => {
+    while (settling) {
+      const t0 = performance.now();
+      try {
+        const res = await f();
+        await res.text();
+        if (!res.ok) settleFailures.push(`${kind} → ${res.status}`);
+      } catch (e) {
+        settleFailures.push(`${kind} → ${(e as Error).message}`);
+      }
+      settleReads.push(performance.now() - t0);
+      await new Promise((r) => setTimeout(r, 25));
+    }
+  };
+  const watch = (async () => {
+    while (settling) {
+      const b = await (await observer(`/batches/${batch.id}`, { signal: signal() })).json();
+      if (b.state === 'approved') settling = false;
+      else await new Promise((r) => setTimeout(r, 200));
+    }
+  })();
+  let settleEdit = '';
+  const editDuring = (async () => {
+    await new Promise((r) => setTimeout(r, 1000));
+    if (!settling) return;
+    const m = edits[0];
+    const t0 = performance.now();
+    const res = await curator(`/measurements/${m.id}`, { method: 'PATCH', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ changes: { q: Number((m.q + 0.0001).toFixed(6)) }, version: m.version, reason: 'availability benchmark edit during an approve' }), signal: AbortSignal.timeout(30_000) });
+    settleEdit = `${res.status} in ${(performance.now() - t0).toFixed(0)} ms`;
+  })();
+  await Promise.all([
+    settleLoop('health', () => fetch(`${server.base}/api/v1/health`, { signal: signal() })),
+    settleLoop('me', () => curator('/me', { signal: signal() })),
+    settleLoop('cone', () => modeler('/stars?ra=83.6&dec=22.0&radius=2&limit=20', { signal: signal() })),
+    watch,
+    editDuring,
+  ]);
+  const settleS = (performance.now() - tAp) / 1000;
+  settleReads.sort((a, b) => a - b);
+  console.log('');
+  console.log(`approve of the ${N.toLocaleString('en')}-row batch: answered ${ap.status} in ${apMs.toFixed(0)} ms; approved after ${settleS.toFixed(1)} s`);
+  if (settleReads.length) console.log(`reads while it was applied: ${settleReads.length}, p50 ${quantile(settleReads, 0.5).toFixed(1)} ms, p99 ${quantile(settleReads, 0.99).toFixed(1)} ms, max ${settleReads[settleReads.length - 1].toFixed(1)} ms; failures ${settleFailures.length}${settleEdit ? `; a curator edit meanwhile: ${settleEdit}` : ''}`);
   console.log(`server peak RSS: ${server.peakRssMb().toFixed(0)} MB`);
 } finally {
   await server.stop();
