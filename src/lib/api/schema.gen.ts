@@ -1486,6 +1486,20 @@ export interface components {
             };
             /** @description why checking failed (state failed); nothing of the batch was stored */
             failure: string | null;
+            /** @description a large approve or return being applied in short transactions (more than 20,000 measurements to change); its state flips when done. null otherwise */
+            settling?: null | {
+                /**
+                 * @description the decision being applied
+                 * @enum {unknown}
+                 */
+                decision: "approved" | "returned";
+                /** @description count of measurements changed so far */
+                done: number;
+                /** @description count of measurements to change */
+                total: number;
+                /** @description ISO 8601, UTC */
+                startedAt: string;
+            };
         };
         /** A batch approved or returned */
         "responses.batch-decision": {
@@ -3701,7 +3715,7 @@ export interface operations {
         parameters: {
             query?: {
                 /** @description batches in this state (default awaiting_review) */
-                state?: "awaiting_review" | "approved" | "returned" | "needs_mapping" | "checking" | "failed";
+                state?: "received" | "needs_mapping" | "checking" | "awaiting_review" | "failed" | "approved" | "returned";
                 /** @description age, rows or uploader (default age; any other value also sorts by age) */
                 sort?: string;
                 /** @description sort direction: asc, or desc (the default; any value other than asc counts as desc) */
