@@ -8,7 +8,7 @@ import { AppError, badRequest } from '../errors.js';
 import { reply, route } from '../lib/route.js';
 import { idPath, pageQuery, query } from '../lib/query.js';
 import { BATCH_STATES } from '../lib/visibility.js';
-import { COLUMNS } from '../measurements/columns.js';
+import { COLUMNS } from '../measurements/service.js';
 import type { IntakeService } from './service.js';
 
 const ROW_STATES = ['accepted', 'rejected', 'duplicate', 'conflict', 'ambiguous'];
