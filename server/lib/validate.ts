@@ -4,7 +4,6 @@ import { fileURLToPath } from 'node:url';
 import { Ajv2020 } from 'ajv/dist/2020.js';
 import type { ErrorObject, ValidateFunction } from 'ajv';
 import addFormatsModule from 'ajv-formats';
-import type { RequestHandler } from 'express';
 import { badRequest } from '../errors.js';
 
 const schemasDir = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../schemas');
@@ -58,20 +57,8 @@ export function describeErrors(errors: ErrorObject[] | null | undefined): { fiel
   });
 }
 
-/** The 400 for a body that does not match its schema: every problem in the message, each field in details.fields. */
+/** The 400 for a body that does not match its schema (server/lib/route.ts): every problem in the message, each field in details.fields. */
 export function bodyProblem(errors: ErrorObject[] | null | undefined) {
   const problems = describeErrors(errors);
   return badRequest(problems.map((p) => p.message).join('; '), { fields: problems });
-}
-
-/** Express middleware: 400 naming each bad field unless req.body matches the schema (server/lib/route.ts uses it for declared bodies). */
-export function validateBody(id: string): RequestHandler {
-  const validate = schema(id);
-  return (req, _res, next) => {
-    if (!validate(req.body ?? {})) {
-      next(bodyProblem(validate.errors));
-      return;
-    }
-    next();
-  };
 }
