@@ -12,14 +12,22 @@ const BATCH: Record<BatchState, { label: string; tone: string }> = {
 
 export const batchStateLabel = (s: BatchState) => BATCH[s]?.label ?? s;
 
-export function BatchStateBadge({ state }: { state: BatchState }) {
-  const b = BATCH[state] ?? { label: state, tone: 'bg-line text-ink' };
+/**
+ * A rounded state label with its tone; `working` adds a pulsing dot (the server is busy with it).
+ * `testId` names what it is the state of (batch-state, run-state), for tests and styles alike.
+ */
+export function StatePill({ testId, state, label, tone, working }: { testId: string; state: string; label: string; tone: string; working: boolean }) {
   return (
-    <span data-testid="batch-state" data-state={state} className={`inline-flex items-center gap-1.5 whitespace-nowrap rounded-full px-2.5 py-0.5 text-xs font-medium ${b.tone}`}>
-      {(state === 'checking' || state === 'received') && <span className="h-1.5 w-1.5 animate-pulse rounded-full bg-veil" aria-hidden />}
-      {b.label}
+    <span data-testid={testId} data-state={state} className={`inline-flex items-center gap-1.5 whitespace-nowrap rounded-full px-2.5 py-0.5 text-xs font-medium ${tone}`}>
+      {working && <span className="h-1.5 w-1.5 animate-pulse rounded-full bg-veil" aria-hidden />}
+      {label}
     </span>
   );
+}
+
+export function BatchStateBadge({ state }: { state: BatchState }) {
+  const b = BATCH[state] ?? { label: state, tone: 'bg-line text-ink' };
+  return <StatePill testId="batch-state" state={state} label={b.label} tone={b.tone} working={state === 'checking' || state === 'received'} />;
 }
 
 const ROW: Record<RowState, { label: string; tone: string }> = {

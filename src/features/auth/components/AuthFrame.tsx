@@ -1,8 +1,12 @@
 import type { ReactNode } from 'react';
+import { Link } from 'react-router-dom';
 import { Logo } from '../../../components/ui/Logo';
 
-/** The night-sky frame around the signed-out pages: logo above a single card. */
-export function AuthFrame({ children }: { children: ReactNode }) {
+/** The card's look, for a page whose card is itself a form (`bare`). */
+export const AUTH_CARD = 'space-y-4 rounded-xl bg-card p-6 shadow-xl';
+
+/** The night-sky frame around the signed-out pages: logo above a single card (or, `bare`, the page's own card). */
+export function AuthFrame({ children, bare = false }: { children: ReactNode; bare?: boolean }) {
   return (
     <div className="grid min-h-screen place-items-center bg-night px-4">
       <div className="w-full max-w-sm">
@@ -13,10 +17,17 @@ export function AuthFrame({ children }: { children: ReactNode }) {
             <div className="text-xs text-veil-soft/80">Starlight polarization, layer by layer</div>
           </div>
         </div>
-        <div className="space-y-4 rounded-xl bg-card p-6 shadow-xl">
-          {children}
-        </div>
+        {bare ? children : <div className={AUTH_CARD}>{children}</div>}
       </div>
     </div>
+  );
+}
+
+/** The way back from the password-reset pages. */
+export function BackToSignIn() {
+  return (
+    <p className="text-center text-sm">
+      <Link className="text-veil underline underline-offset-2" to="/sign-in">Back to sign-in</Link>
+    </p>
   );
 }

@@ -3,7 +3,7 @@ import { Link, useSearchParams } from 'react-router-dom';
 import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
 import { useConfirmPasswordReset } from '../api/confirmPasswordReset';
-import { AuthFrame } from '../components/AuthFrame';
+import { AuthFrame, BackToSignIn } from '../components/AuthFrame';
 
 export function ResetConfirmPage() {
   const [params] = useSearchParams();
@@ -61,9 +61,7 @@ export function ResetConfirmPage() {
           </Button>
         </form>
       )}
-      <p className="text-center text-sm">
-        <Link className="text-veil underline underline-offset-2" to="/sign-in">Back to sign-in</Link>
-      </p>
+      <BackToSignIn />
     </AuthFrame>
   );
 }

@@ -1,9 +1,8 @@
 import { useState, type FormEvent } from 'react';
-import { Link } from 'react-router-dom';
 import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
 import { useRequestPasswordReset } from '../api/requestPasswordReset';
-import { AuthFrame } from '../components/AuthFrame';
+import { AuthFrame, BackToSignIn } from '../components/AuthFrame';
 
 const fieldError = (e: unknown, field: string) =>
   e instanceof ApiError ? ((e.details as { fields?: { field: string; message: string }[] } | undefined)?.fields?.find((f) => f.field === field)?.message ?? null) : null;
@@ -35,9 +34,7 @@ export function ResetRequestPage() {
           </Button>
         </form>
       )}
-      <p className="text-center text-sm">
-        <Link className="text-veil underline underline-offset-2" to="/sign-in">Back to sign-in</Link>
-      </p>
+      <BackToSignIn />
     </AuthFrame>
   );
 }

@@ -1,8 +1,8 @@
 import { useState, type FormEvent } from 'react';
 import { Link, Navigate, useLocation, useNavigate } from 'react-router-dom';
-import { Logo } from '../../../components/ui/Logo';
 import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
 import { useLogin } from '../api/login';
+import { AUTH_CARD, AuthFrame } from '../components/AuthFrame';
 import { useMe } from '../../../lib/api/me';
 
 export function SignInPage() {
@@ -22,32 +22,23 @@ export function SignInPage() {
   };
 
   return (
-    <div className="grid min-h-screen place-items-center bg-night px-4">
-      <div className="w-full max-w-sm">
-        <div className="mb-6 flex items-center gap-3 text-white">
-          <Logo size={44} />
-          <div>
-            <div className="text-xl font-semibold tracking-tight">Starveil</div>
-            <div className="text-xs text-veil-soft/80">Starlight polarization, layer by layer</div>
-          </div>
-        </div>
-        <form onSubmit={submit} className="space-y-4 rounded-xl bg-card p-6 shadow-xl" aria-label="Sign in">
-          <h1 className="text-lg font-semibold text-night">Sign in</h1>
-          {login.error && <Notice tone="bad">{login.error.message}</Notice>}
-          <Field label="E-mail">
-            <TextInput name="email" type="email" autoComplete="username" required value={email} onChange={(e) => setEmail(e.target.value)} />
-          </Field>
-          <Field label="Password">
-            <TextInput name="password" type="password" autoComplete="current-password" required value={password} onChange={(e) => setPassword(e.target.value)} />
-          </Field>
-          <Button type="submit" className="w-full justify-center" disabled={login.isPending}>
-            {login.isPending ? 'Signing in…' : 'Sign in'}
-          </Button>
-          <p className="text-center text-sm">
-            <Link className="text-veil underline underline-offset-2" to="/forgot-password">Forgot your password?</Link>
-          </p>
-        </form>
-      </div>
-    </div>
+    <AuthFrame bare>
+      <form onSubmit={submit} className={AUTH_CARD} aria-label="Sign in">
+        <h1 className="text-lg font-semibold text-night">Sign in</h1>
+        {login.error && <Notice tone="bad">{login.error.message}</Notice>}
+        <Field label="E-mail">
+          <TextInput name="email" type="email" autoComplete="username" required value={email} onChange={(e) => setEmail(e.target.value)} />
+        </Field>
+        <Field label="Password">
+          <TextInput name="password" type="password" autoComplete="current-password" required value={password} onChange={(e) => setPassword(e.target.value)} />
+        </Field>
+        <Button type="submit" className="w-full justify-center" disabled={login.isPending}>
+          {login.isPending ? 'Signing in…' : 'Sign in'}
+        </Button>
+        <p className="text-center text-sm">
+          <Link className="text-veil underline underline-offset-2" to="/forgot-password">Forgot your password?</Link>
+        </p>
+      </form>
+    </AuthFrame>
   );
 }

@@ -33,6 +33,12 @@ export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }
   const start = useStartRun();
   const problems = problemsByField(start.error);
   const set = (k: keyof Form) => (e: { target: { value: string } }) => setF({ ...f, [k]: e.target.value });
+  /** A typed number of the form, with the server's complaint about it under the box (a plain function, not a component: the input must keep its identity while typed in). */
+  const numberField = (label: string, hint: string, name: keyof Form, mode: 'numeric' | 'decimal') => (
+    <Field label={label} hint={hint} error={problems[name]}>
+      <TextInput inputMode={mode} value={f[name] as string} onChange={set(name)} />
+    </Field>
+  );
 
   const submit = (e: FormEvent) => {
     e.preventDefault();
@@ -87,18 +93,10 @@ export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }
             <span className="block text-xs text-muted">Serkowski law, λmax 0.55 µm, K = 0.01 + 1.66 λmax (Whittet et al. 1992); recorded with the run</span>
           </span>
         </label>
-        <Field label="Min stars per cell" hint="4 to 1000; fewer: skipped" error={problems.minStars}>
-          <TextInput inputMode="numeric" value={f.minStars} onChange={set('minStars')} />
-        </Field>
-        <Field label="Distance draws" hint="0 to 500 Monte Carlo draws per cell" error={problems.draws}>
-          <TextInput inputMode="numeric" value={f.draws} onChange={set('draws')} />
-        </Field>
-        <Field label="Jump threshold [deg]" hint="|Δθ| that makes a sightline complex" error={problems.jumpThresholdDeg}>
-          <TextInput inputMode="decimal" value={f.jumpThresholdDeg} onChange={set('jumpThresholdDeg')} />
-        </Field>
-        <Field label="Min stars per segment" hint="2 to 50" error={problems.minSegmentLength}>
-          <TextInput inputMode="numeric" value={f.minSegmentLength} onChange={set('minSegmentLength')} />
-        </Field>
+        {numberField('Min stars per cell', '4 to 1000; fewer: skipped', 'minStars', 'numeric')}
+        {numberField('Distance draws', '0 to 500 Monte Carlo draws per cell', 'draws', 'numeric')}
+        {numberField('Jump threshold [deg]', '|Δθ| that makes a sightline complex', 'jumpThresholdDeg', 'decimal')}
+        {numberField('Min stars per segment', '2 to 50', 'minSegmentLength', 'numeric')}
       </div>
       <fieldset className="rounded-lg border border-line p-3">
         <legend className="px-1 text-sm">
@@ -109,15 +107,9 @@ export function StartRunForm({ onStarted }: { onStarted?: (id: number) => void }
         </legend>
         {cone ? (
           <div className="grid gap-4 sm:grid-cols-3">
-            <Field label="Cone RA [deg]" hint="ICRS, 0 ≤ RA < 360" error={problems.ra}>
-              <TextInput inputMode="decimal" value={f.ra} onChange={set('ra')} />
-            </Field>
-            <Field label="Cone Dec [deg]" hint="ICRS, −90 to 90" error={problems.dec}>
-              <TextInput inputMode="decimal" value={f.dec} onChange={set('dec')} />
-            </Field>
-            <Field label="Cone radius [deg]" hint="above 0, at most 180" error={problems.radius}>
-              <TextInput inputMode="decimal" value={f.radius} onChange={set('radius')} />
-            </Field>
+            {numberField('Cone RA [deg]', 'ICRS, 0 ≤ RA < 360', 'ra', 'decimal')}
+            {numberField('Cone Dec [deg]', 'ICRS, −90 to 90', 'dec', 'decimal')}
+            {numberField('Cone radius [deg]', 'above 0, at most 180', 'radius', 'decimal')}
           </div>
         ) : (
           <p className="text-xs text-muted">Off: the run covers every approved star of the band.</p>
