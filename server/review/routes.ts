@@ -1,5 +1,5 @@
 import type { Knex } from 'knex';
-import { route } from '../lib/route.js';
+import { reply, route } from '../lib/route.js';
 import { idPath, orderQuery, pageQuery, query } from '../lib/query.js';
 import { BATCH_STATES } from '../lib/visibility.js';
 import type { MeasurementService } from '../measurements/service.js';
@@ -16,6 +16,17 @@ const CUR = ['curator'] as const;
 const OBS_CUR = ['observer', 'curator'] as const;
 const OWN_BATCHES = 'observers see their own batches only (another observer’s batch answers 404)';
 const FLAGS = ['above_efficiency_envelope', 'above_p_ceiling', 'low_p_snr', 'inconsistent_repeats', 'low_parallax_snr', 'no_distance'];
+
+const LARGE_DECISION =
+  'A batch with more than 20,000 measurements to change is applied in short transactions on a worker thread: the answer is 202 with `settling` (progress), GET /batches/{id} shows `settling` until the state flips, and a second decision meanwhile is a 409 `decision_in_progress`.';
+
+const DECISION_RESPONSES = {
+  200: { description: 'the decision, applied', schema: 'responses/batch-decision' },
+  202: { description: 'a large batch: the decision is being applied in short transactions', schema: 'responses/batch-decision-started' },
+};
+
+/** 202 while a large decision is being applied (the answer carries `settling`), else the applied decision (200). */
+const decisionReply = (answer: object) => ('settling' in answer && answer.settling ? reply(202, answer) : answer);
 
 /** `filter.<column>=` or `filter[<column>]=` query parameters → {column: value} (empty values dropped). */
 function filtersOf(q: Record<string, unknown>): Record<string, string> {
@@ -149,23 +160,23 @@ export const reviewRoutes = [
   route<ReviewDeps, { id: number }>({
     method: 'post', path: '/batches/:id/approve', tag: 'Review', who: CUR,
     summary: 'Approve every pending measurement of a batch',
-    description: 'Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409), and not while its calibration is being applied or reverted (409 `calibration_in_progress`). The uploader is told by e-mail.',
+    description: `Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409), and not while its calibration is being applied or reverted (409 \`calibration_in_progress\`). ${LARGE_DECISION} The uploader is told by e-mail (for a large batch, when it flips).`,
     params: idPath('batch'),
     body: { schema: 'api/batch-decision', required: false },
-    responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
+    responses: DECISION_RESPONSES,
     errors: [400, 404, 409],
-    handler: ({ user, params, body }, { review }) => review.decide(user.id, params.id, 'approved', body?.note ?? null),
+    handler: async ({ user, params, body }, { review }) => decisionReply(await review.decide(user.id, params.id, 'approved', body?.note ?? null)),
   }),
 
   route<ReviewDeps, { id: number }>({
     method: 'post', path: '/batches/:id/reject', tag: 'Review', who: CUR,
     summary: 'Return a batch: every pending measurement is rejected',
-    description: 'Approved measurements of the batch are withdrawn from the approved catalog (state withdrawn, counts.withdrawn; audited) until the batch is approved again, which restores them (counts.restored).',
+    description: `Approved measurements of the batch are withdrawn from the approved catalog (state withdrawn, counts.withdrawn; audited) until the batch is approved again, which restores them (counts.restored). Refused like an approve (409). ${LARGE_DECISION}`,
     params: idPath('batch'),
     body: { schema: 'api/batch-decision', required: false },
-    responses: { 200: { description: 'the decision', schema: 'responses/batch-decision' } },
+    responses: DECISION_RESPONSES,
     errors: [400, 404, 409],
-    handler: ({ user, params, body }, { review }) => review.decide(user.id, params.id, 'returned', body?.note ?? null),
+    handler: async ({ user, params, body }, { review }) => decisionReply(await review.decide(user.id, params.id, 'returned', body?.note ?? null)),
   }),
 
   route<ReviewDeps, { id: number }>({

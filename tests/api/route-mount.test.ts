@@ -6,6 +6,8 @@ import { expectedText, mountRoutes, reply, route } from '../../server/lib/route.
 import { pageQuery } from '../../server/lib/query.js';
 import { buildDocument, buildOpenApiDocument, namingMix, openApiPath } from '../../server/openapi/document.js';
 import { allRoutes } from '../../server/openapi/registry.js';
+import { reviewRoutes } from '../../server/review/routes.js';
+import { schema } from '../../server/lib/validate.js';
 import { makeTestApp, signedIn, type TestApp } from '../helpers/app.js';
 import { listRoutes } from '../helpers/routes.js';
 
@@ -146,6 +148,33 @@ describe('mountRoutes', () => {
     expect(expectedText({ type: 'number', exclusiveMinimum: 0, maximum: 30 })).toBe('a number, greater than 0 and at most 30');
     expect(expectedText({ type: 'string', enum: ['iau', 'cosmo'] })).toBe('one of iau, cosmo');
     expect(expectedText({ type: 'string', pattern: '^[0-9]{1,16}$' })).toBe('text matching ^[0-9]{1,16}$');
+  });
+});
+
+describe('a declaration with two success statuses', () => {
+  it('a large batch decision answers 202 with its progress, a small one 200; both as the schemas say', async () => {
+    const answers: Json[] = [
+      { id: 4, state: 'awaiting_review', note: null, counts: null, settling: { decision: 'approved', done: 0, total: 30000 } },
+      { id: 4, state: 'approved', note: null, counts: { changed: 12, conflicts: 0, ambiguous: 0 } },
+    ];
+    const app = express();
+    app.use(express.json());
+    app.use((req, _res, next) => {
+      req.user = curator;
+      next();
+    });
+    const r = express.Router();
+    // a stand-in review service: only decide() is reached by this route
+    mountRoutes(r, reviewRoutes, { db: undefined as never, measurements: undefined as never, review: { decide: async () => answers.shift() } as never });
+    app.use(r);
+    app.use(errorMiddleware);
+    const started = await request(app).post('/batches/4/approve').send({});
+    expect(started.status).toBe(202);
+    expect(schema('responses/batch-decision-started')(started.body)).toBe(true);
+    const done = await request(app).post('/batches/4/approve').send({});
+    expect(done.status).toBe(200);
+    expect(schema('responses/batch-decision')(done.body)).toBe(true);
+    expect(schema('responses/batch-decision-started')(done.body)).toBe(false);
   });
 });
 
