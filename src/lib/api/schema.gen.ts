@@ -646,7 +646,7 @@ export interface paths {
          * Approve every pending measurement of a batch
          * @description **Who may call:** curator, admin (admin passes every guard).
          *
-         *     Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409), and not while its calibration is being applied or reverted (409 `calibration_in_progress`). The uploader is told by e-mail.
+         *     Held rows (conflicts, ambiguous matches) stay held and are counted. Only a checked batch (awaiting_review, approved or returned) can be decided (else 409), and not while its calibration is being applied or reverted (409 `calibration_in_progress`). A batch with more than 20,000 measurements to change is applied in short transactions on a worker thread: the answer is 202 with `settling` (progress), GET /batches/{id} shows `settling` until the state flips, and a second decision meanwhile is a 409 `decision_in_progress`. The uploader is told by e-mail (for a large batch, when it flips).
          */
         post: operations["postBatchesByIdApprove"];
         delete?: never;
@@ -668,7 +668,7 @@ export interface paths {
          * Return a batch: every pending measurement is rejected
          * @description **Who may call:** curator, admin (admin passes every guard).
          *
-         *     Approved measurements of the batch are withdrawn from the approved catalog (state withdrawn, counts.withdrawn; audited) until the batch is approved again, which restores them (counts.restored).
+         *     Approved measurements of the batch are withdrawn from the approved catalog (state withdrawn, counts.withdrawn; audited) until the batch is approved again, which restores them (counts.restored). Refused like an approve (409). A batch with more than 20,000 measurements to change is applied in short transactions on a worker thread: the answer is 202 with `settling` (progress), GET /batches/{id} shows `settling` until the state flips, and a second decision meanwhile is a 409 `decision_in_progress`.
          */
         post: operations["postBatchesByIdReject"];
         delete?: never;
@@ -1519,6 +1519,31 @@ export interface components {
                 withdrawn?: number;
                 /** @description approving again: count of withdrawn measurements approved again */
                 restored?: number;
+            };
+        };
+        /** A large batch decision started: applied in short transactions on a worker thread */
+        "responses.batch-decision-started": {
+            /** @description batch id */
+            id: number;
+            /**
+             * @description the batch's state now, before the decision flips it
+             * @enum {unknown}
+             */
+            state: "awaiting_review" | "approved" | "returned";
+            /** @description the curator's note for the uploader */
+            note: string | null;
+            /** @description null until the decision has been applied (GET /batches/{id} then shows the counts) */
+            counts: null;
+            settling: {
+                /**
+                 * @description the decision being applied
+                 * @enum {unknown}
+                 */
+                decision: "approved" | "returned";
+                /** @description count of measurements changed so far */
+                done: number;
+                /** @description count of measurements to change */
+                total: number;
             };
         };
         /** A batch's measurements: the review table (one page) */
@@ -3990,13 +4015,22 @@ export interface operations {
             };
         };
         responses: {
-            /** @description the decision */
+            /** @description the decision, applied */
             200: {
                 headers: {
                     [name: string]: unknown;
                 };
                 content: {
                     "application/json": components["schemas"]["responses.batch-decision"];
+                };
+            };
+            /** @description a large batch: the decision is being applied in short transactions */
+            202: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.batch-decision-started"];
                 };
             };
             400: components["responses"]["BadRequest"];
@@ -4022,13 +4056,22 @@ export interface operations {
             };
         };
         responses: {
-            /** @description the decision */
+            /** @description the decision, applied */
             200: {
                 headers: {
                     [name: string]: unknown;
                 };
                 content: {
                     "application/json": components["schemas"]["responses.batch-decision"];
+                };
+            };
+            /** @description a large batch: the decision is being applied in short transactions */
+            202: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["responses.batch-decision-started"];
                 };
             };
             400: components["responses"]["BadRequest"];
