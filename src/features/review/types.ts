@@ -3,6 +3,7 @@ import type { BatchState, DistanceMethod, MeasurementHistory, MeasurementSort, M
 
 export type {
   BatchDecision,
+  BatchDecisionAnswer,
   Candidate,
   Competing,
   DistanceMethod,

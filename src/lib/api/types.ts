@@ -69,6 +69,9 @@ export type MeasurementListQuery = Query<'/batches/{id}/measurements', 'get'>;
 export type MeasurementSort = NonNullable<MeasurementListQuery['sort']>;
 export type SortOrder = NonNullable<MeasurementListQuery['order']>;
 export type BatchDecision = S['responses.batch-decision'];
+/** 202 from approve/return: a large decision being applied on the worker (counts null, settling progress). */
+export type BatchDecisionStarted = S['responses.batch-decision-started'];
+export type BatchDecisionAnswer = BatchDecision | BatchDecisionStarted;
 export type MeasurementHistory = S['responses.measurement-history'];
 export type MeasurementEditAnswer = S['responses.measurement-edit'];
 /** The body of PATCH /measurements/:id. */

@@ -1,11 +1,11 @@
 import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/apiClient';
 import { batchQueryOptions } from '../../../lib/api/batch';
-import type { BatchDecision } from '../types';
+import type { BatchDecisionAnswer } from '../types';
 import { batchMeasurementsKey } from './measurements';
 
 /** Return a whole batch to its uploader: every pending measurement becomes rejected; held ones stay held. */
-export const returnBatch = ({ batchId, note }: { batchId: number; note?: string }) => api.post<BatchDecision>(`/batches/${batchId}/reject`, note ? { note } : {});
+export const returnBatch = ({ batchId, note }: { batchId: number; note?: string }) => api.post<BatchDecisionAnswer>(`/batches/${batchId}/reject`, note ? { note } : {});
 
 export function invalidateAfterDecision(qc: QueryClient, batchId: number) {
   void qc.invalidateQueries({ queryKey: batchQueryOptions(batchId).queryKey });

@@ -1,4 +1,5 @@
-import { useState } from 'react';
+import { useQueryClient } from '@tanstack/react-query';
+import { useEffect, useRef, useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Button, Card, Notice } from '../../../components/ui/primitives';
 import { can } from '../../../lib/roles';
@@ -6,8 +7,9 @@ import { useMe } from '../../../lib/api/me';
 import { useBatch } from '../../../lib/api/batch';
 import { BatchHeader } from '../../../components/ui/BatchHeader';
 import { formatAge, formatCount } from '../../../lib/format';
+import { invalidateAfterDecision } from '../api/returnBatch';
 import { useStateTotals } from '../api/stateTotals';
-import { MEASUREMENT_STATES, type BatchDecision } from '../types';
+import { MEASUREMENT_STATES, type BatchDecisionAnswer } from '../types';
 import { DecisionDialog, type Decision } from './DecisionDialog';
 import { MeasurementsGrid } from './MeasurementsGrid';
 import { MeasurementStateBadge } from '../../../components/ui/MeasurementStateBadge';
@@ -20,8 +22,20 @@ export function BatchReview({ batchId }: { batchId: number }) {
   const batch = useBatch(batchId);
   const totals = useStateTotals(batchId);
   const [decision, setDecision] = useState<Decision | null>(null);
-  const [decided, setDecided] = useState<BatchDecision | null>(null);
+  const [decided, setDecided] = useState<BatchDecisionAnswer | null>(null);
   const curator = can(me, ['curator']);
+  // a large decision settles on the server (202, batch.settling): refresh everything once it is done
+  const qc = useQueryClient();
+  const settling = batch.data?.settling ?? null;
+  const wasSettling = useRef(false);
+  useEffect(() => {
+    if (settling) wasSettling.current = true;
+    else if (wasSettling.current) {
+      wasSettling.current = false;
+      invalidateAfterDecision(qc, batchId);
+      setDecided((d) => (d && d.counts === null ? null : d)); // the header's state badge now shows the outcome
+    }
+  }, [settling, qc, batchId]);
 
   if (batch.isPending) return <p className="text-sm text-muted">Loading…</p>;
   if (batch.error) return <Notice tone="bad">{batch.error.message}</Notice>;
@@ -55,7 +69,15 @@ export function BatchReview({ batchId }: { batchId: number }) {
       </div>
 
       {!reviewable && <Notice>This batch is {b.state.replace(/_/g, ' ')}; it can be reviewed once its rows have been checked.</Notice>}
-      {decided && (
+      {decided && decided.counts === null && (
+        <Notice>
+          <span data-testid="decision-settling">
+            {decided.settling.decision === 'approved' ? 'Approving' : 'Returning'} this batch: the server applies the decision in the background
+            {settling ? ` (${formatCount(settling.done)} of ${formatCount(settling.total)} measurements so far)` : ''}; this page updates when it is done.
+          </span>
+        </Notice>
+      )}
+      {decided && decided.counts !== null && (
         <Notice tone="ok">
           <span data-testid="decision-result">
             Batch {decided.state === 'approved' ? 'approved' : 'returned to its uploader'}: {formatCount(decided.counts.changed)} measurement{decided.counts.changed === 1 ? '' : 's'} {decided.state === 'approved' ? 'approved' : 'rejected'}

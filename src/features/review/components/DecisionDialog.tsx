@@ -4,12 +4,12 @@ import { Button, Notice } from '../../../components/ui/primitives';
 import { formatCount } from '../../../lib/format';
 import { useApproveBatch } from '../api/approveBatch';
 import { useReturnBatch } from '../api/returnBatch';
-import type { BatchDecision, MeasurementState } from '../types';
+import type { BatchDecisionAnswer, MeasurementState } from '../types';
 
 export type Decision = 'approve' | 'return';
 
 /** Decide a whole batch, with a note to its uploader. */
-export function DecisionDialog({ batchId, uploader, decision, totals, onClose, onDecided }: { batchId: number; uploader: string; decision: Decision | null; totals?: Record<MeasurementState, number>; onClose: () => void; onDecided: (d: BatchDecision) => void }) {
+export function DecisionDialog({ batchId, uploader, decision, totals, onClose, onDecided }: { batchId: number; uploader: string; decision: Decision | null; totals?: Record<MeasurementState, number>; onClose: () => void; onDecided: (d: BatchDecisionAnswer) => void }) {
   const [note, setNote] = useState('');
   const approve = useApproveBatch();
   const ret = useReturnBatch();
