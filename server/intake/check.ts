@@ -163,8 +163,10 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   // a batch large beside the catalog reads every star once, in storage order, instead of
   // looking positions up chunk by chunk
   if ((await maxId(db, 'stars')) <= rowsTotal * PRELOAD_STARS_PER_ROW) await matcher.preloadAll();
-  // SQLite: new stars are written last, sorted on the sky (their hpx15 and position index pages
-  // are then written once each, not once per short transaction); elsewhere chunk by chunk
+  // SQLite: new stars are written last, in transactions of star rows only (each COMMIT rewrites
+  // the pages of the random-order indexes on hpx15 and position it touched: fewer, fuller
+  // transactions touch fewer pages per star than a few stars in every chunk's transaction);
+  // elsewhere chunk by chunk
   const deferStars = await setForeignKeyChecks(db, false);
   // grid slots of the batch's new stars (their rows are built again from the grid at the end)
   const deferred: number[] = [];
@@ -334,12 +336,10 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     }
   }
   if (deferred.length) {
-    const hpx = new Float64Array(deferred.length);
-    for (let i = 0; i < deferred.length; i++) hpx[i] = matcher.starAt(deferred[i]).hpx15;
-    const order = Array.from(deferred.keys()).sort((a, b) => hpx[a] - hpx[b]);
-    for (let i = 0; i < order.length; i += 20_000) {
-      const rows = order.slice(i, i + 20_000).map((k) => {
-        const s = matcher.starAt(deferred[k]);
+    // in id order: the table (clustered on id) and its batch_id index grow at their end
+    for (let i = 0; i < deferred.length; i += 20_000) {
+      const rows = deferred.slice(i, i + 20_000).map((slot) => {
+        const s = matcher.starAt(slot);
         const g = icrsToGalactic(s.ra_deg, s.dec_deg);
         return starRow(s, g.lDeg, g.bDeg);
       });

@@ -64,7 +64,6 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
   const errors: RowIssue[] = [];
   const warnings: RowIssue[] = [];
   const out: Record<string, unknown> = {};
-  const issue = (canon: string, value: string | undefined, message: string): RowIssue => ({ column: headerOf(canon), field: canon, ...(value !== undefined ? { value: quoted(value) } : {}), message });
 
   for (const spec of COLUMNS) {
     const raw = text[spec.name];
@@ -78,44 +77,44 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
         break;
       case 'digits': {
         const id = unsignedId(v);
-        if (id === null) errors.push(issue(spec.name, v, `expected an unsigned 64-bit integer identifier: digits only, at most ${MAX_SOURCE_ID} (2^64 − 1)`));
+        if (id === null) errors.push(issueOf(headerOf, spec.name, v, `expected an unsigned 64-bit integer identifier: digits only, at most ${MAX_SOURCE_ID} (2^64 − 1)`));
         else out[target] = id;
         break;
       }
       case 'ra': {
         const r = v.length > MAX_NUMBER_CHARS ? { ok: false as const, message: `expected decimal degrees or hours:minutes:seconds of at most ${MAX_NUMBER_CHARS} characters; this cell has ${v.length}` } : parseRaDeg(v);
         if (r.ok) out[target] = r.value;
-        else errors.push(issue(spec.name, v, r.message));
+        else errors.push(issueOf(headerOf, spec.name, v, r.message));
         break;
       }
       case 'dec': {
         const r = v.length > MAX_NUMBER_CHARS ? { ok: false as const, message: `expected decimal degrees or ±degrees:arcminutes:arcseconds of at most ${MAX_NUMBER_CHARS} characters; this cell has ${v.length}` } : parseDecDeg(v);
         if (r.ok) out[target] = r.value;
-        else errors.push(issue(spec.name, v, r.message));
+        else errors.push(issueOf(headerOf, spec.name, v, r.message));
         break;
       }
       case 'band': {
         const b = BANDS[v.toLowerCase().replace(/[_\s]/g, '')];
         if (b) out[target] = b;
-        else errors.push(issue(spec.name, v, 'expected a band: U, B, V, R (or Rc) or I (or Ic)'));
+        else errors.push(issueOf(headerOf, spec.name, v, 'expected a band: U, B, V, R (or Rc) or I (or Ic)'));
         break;
       }
       case 'frame': {
         const f = v.toLowerCase();
         if (f === 'equatorial' || f === 'icrs' || f === 'eq' || f === 'fk5') out[target] = 'equatorial';
         else if (f === 'galactic' || f === 'gal') out[target] = 'galactic';
-        else errors.push(issue(spec.name, v, 'expected equatorial or galactic'));
+        else errors.push(issueOf(headerOf, spec.name, v, 'expected equatorial or galactic'));
         break;
       }
       case 'number': {
         if (!isDecimalNumber(v)) {
           const tooLong = v.length > MAX_NUMBER_CHARS ? ` (at most ${MAX_NUMBER_CHARS} characters; this cell has ${v.length})` : '';
-          errors.push(issue(spec.name, v, `expected a number${spec.unit ? ` in ${spec.unit}` : ''}${tooLong}`));
+          errors.push(issueOf(headerOf, spec.name, v, `expected a number${spec.unit ? ` in ${spec.unit}` : ''}${tooLong}`));
           break;
         }
         let n = Number(v);
         if (!Number.isFinite(n)) {
-          errors.push(issue(spec.name, v, `expected a finite number${spec.unit ? ` in ${spec.unit}` : ''}`));
+          errors.push(issueOf(headerOf, spec.name, v, `expected a finite number${spec.unit ? ` in ${spec.unit}` : ''}`));
           break;
         }
         if (spec.percentOf) n /= 100;
@@ -129,7 +128,7 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
   // angles outside [0, 180) are the same axis: wrap, and say so
   if (typeof out.theta_deg === 'number' && Number.isFinite(out.theta_deg) && (out.theta_deg < 0 || out.theta_deg >= 180)) {
     const w = wrapAngle180(out.theta_deg);
-    warnings.push(issue('theta_deg', text.theta_deg, `angle ${out.theta_deg}° wrapped to ${Number(w.toFixed(6))}° (axial, 180° periodic)`));
+    warnings.push(issueOf(headerOf, 'theta_deg', text.theta_deg, `angle ${out.theta_deg}° wrapped to ${Number(w.toFixed(6))}° (axial, 180° periodic)`));
     out.theta_deg = w;
   }
   if (errors.length) return { row: null, errors, warnings };
@@ -144,6 +143,10 @@ export function normaliseRow(text: Record<string, string | undefined>, headerOf:
   return { row: out as unknown as CanonicalRow, errors, warnings };
 }
 
+function issueOf(headerOf: (canon: string) => string, canon: string, value: string | undefined, message: string): RowIssue {
+  return { column: headerOf(canon), field: canon, ...(value !== undefined ? { value: quoted(value) } : {}), message };
+}
+
 /** A cell quoted back in a message: long cells are cut (the stored upload keeps them whole). */
 function quoted(v: string): string {
   return v.length > MAX_QUOTED_CHARS ? `${v.slice(0, MAX_QUOTED_CHARS)}… (${v.length} characters)` : v;
@@ -155,23 +158,24 @@ function quoted(v: string): string {
  * One pass, no backtracking: time is linear in the length, and long cells stop at the cap.
  * (A regular expression with nested digit runs, /^\d+\.?\d*…$/, backtracks quadratically.)
  */
+function isDigitAt(s: string, k: number): boolean {
+  const c = s.charCodeAt(k);
+  return c >= 48 && c <= 57;
+}
+
 export function isDecimalNumber(s: string): boolean {
   const n = s.length;
   if (n === 0 || n > MAX_NUMBER_CHARS) return false;
   let i = 0;
-  const digit = (k: number) => {
-    const c = s.charCodeAt(k);
-    return c >= 48 && c <= 57;
-  };
   if (s[i] === '+' || s[i] === '-') i++;
   let mantissaDigits = 0;
-  while (i < n && digit(i)) {
+  while (i < n && isDigitAt(s, i)) {
     i++;
     mantissaDigits++;
   }
   if (i < n && s[i] === '.') {
     i++;
-    while (i < n && digit(i)) {
+    while (i < n && isDigitAt(s, i)) {
       i++;
       mantissaDigits++;
     }
@@ -181,7 +185,7 @@ export function isDecimalNumber(s: string): boolean {
     i++;
     if (i < n && (s[i] === '+' || s[i] === '-')) i++;
     let expDigits = 0;
-    while (i < n && digit(i)) {
+    while (i < n && isDigitAt(s, i)) {
       i++;
       expDigits++;
     }
