@@ -38,7 +38,7 @@ export function MasksPage() {
     if (formQuery === query) return;
     const timer = setTimeout(() => apply(latest.current), APPLY_AFTER_MS);
     return () => clearTimeout(timer);
-    // only a change of the form or of the applied query restarts the timer; it applies the form as it is then
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- only a change of the form or of the applied query restarts the timer; it applies the form as it is then
   }, [formQuery, query]);
   // the address changed from outside (back/forward, a shared link): the form follows it
   const lastQuery = useRef(query);

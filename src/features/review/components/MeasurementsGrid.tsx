@@ -90,7 +90,7 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
         onCheck,
         selectAll: () => selectAllRef.current,
       }).map((c) => ({ ...c, enableSorting: !!COLUMN_INFO[c.id!]?.sort })),
-    [readOnly, resolve.isPending, onResolve, onCheck],
+    [readOnly, resolve.isPending, onResolve, onCheck, selectAllRef], // selectAllRef: the same ref object on every render
   );
   const count = Math.max(total, data.length);
   // stable between renders: the virtualiser recomputes every row's offset when these change
@@ -134,7 +134,7 @@ export function MeasurementsGrid({ batchId, readOnly, totals }: { batchId: numbe
   const template = visibleColumns.map((c) => `${c.getSize()}px`).join(' ');
   const width = table.getTotalSize();
   // line, state and star stay in place while scrolling sideways (sticky cells with an opaque ground)
-  const frozen = useMemo(() => frozenOffsets(visibleColumns.map((c) => ({ id: c.id, size: c.getSize() }))), [visibleColumns, template]); // template: a column's size changed
+  const frozen = useMemo(() => frozenOffsets(visibleColumns.map((c) => ({ id: c.id, size: c.getSize() }))), [visibleColumns, template]); // eslint-disable-line react-hooks/exhaustive-deps -- template: a column was resized (visibleColumns keeps its identity)
 
   // Ask for the next page as the rows in view reach the end of what is loaded.
   const lastIndex = items.length ? items[items.length - 1].index : -1;
