@@ -80,7 +80,7 @@ export function createApp(deps: AppDeps): Express & { services: AppServices } {
   // e-mail is sent after the change has committed and never holds up the request
   const intake = intakeService(db, config, config.intake, deps.readDb ?? db, (batch) => notifyCuratorsOfNewBatch(mailer, db, batch));
   const measurements = measurementService(db, { crossmatchArcsec: config.intake.crossmatchArcsec });
-  const review = reviewService(db, deps.readDb ?? db, notifyUploaderOfDecision(mailer, db));
+  const review = reviewService(db, deps.readDb ?? db, notifyUploaderOfDecision(mailer, db), { dbFile: config.dbFile });
   const tomography = tomographyService(db, deps.readDb ?? db);
   const releases = releaseService(db, deps.readDb ?? db);
   const tokens = tokenService(db, deps.readDb ?? db);

@@ -18,6 +18,9 @@ const seeded = config.seedDemo ? await seedDemoIfEmpty(db, config) : false;
 const readDb = openDb(config.dbFile);
 const app = createApp({ db, readDb, config });
 const resumed = await app.services.intake.resumeInterrupted();
+// large approves or returns a restart interrupted go on from where they stopped
+const settling = await app.services.review.resumeSettling();
+if (settling) console.log(`applying ${settling} batch decision(s) again that a restart interrupted`);
 // The request thread's connections never checkpoint inside a COMMIT (server/dialect.ts); the
 // small WAL left by ordinary work is copied into the database file here while no check runs.
 setInterval(() => {

@@ -1,6 +1,9 @@
 import type { Knex } from 'knex';
-import { recordAudit, auditFor } from '../audit/service.js';
-import { AppError, badRequest, notFound } from '../errors.js';
+import { auditFor } from '../audit/service.js';
+import { beginDecision, type Decision } from './approve.js';
+import { settleInBackground } from './settle.js';
+import { settlingOf } from '../lib/settling.js';
+import { badRequest, notFound } from '../errors.js';
 import { hasRole, type SessionUser } from '../auth/roles.js';
 import { visibleMeasurements, whereStarVisible } from '../catalog/service.js';
 import { hiddenBatchIds } from '../lib/visibility.js';
@@ -15,8 +18,14 @@ export interface BatchDecisionHook {
 }
 
 /** Curator work on batches: the queue, the table of a batch's measurements, whole-batch decisions. */
-export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDecisionHook) {
+export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDecisionHook, opts: { dbFile?: string } = {}) {
   const plausibility = plausibilityService(db, readDb); // read-time flags: p ceiling, χ²-inconsistent repeats
+  /** Apply a settling batch off the request thread; tell the uploader once it has flipped. */
+  const settleAndTell = (batch: { id: number; filename: string; uploaded_by: number }, decision: Decision, note: string | null) => {
+    void settleInBackground(db, opts.dbFile, batch.id)
+      .then((counts) => (counts ? onDecision?.(batch, decision, note, counts as unknown as Record<string, number>) : undefined))
+      .catch((e) => console.error(`review: batch ${batch.id} could not be settled`, e));
+  };
   return {
     async queue(q: { state: string; sort: 'age' | 'rows' | 'uploader'; order: 'asc' | 'desc' }) {
       const rows = await readDb('batches').leftJoin('users', 'users.id', 'batches.uploaded_by').where('batches.state', q.state).select('batches.id', 'batches.filename', 'batches.state', 'batches.instrument', 'batches.counts_json', 'batches.created_at', 'batches.reviewed_at', 'batches.review_note', 'users.name as uploader_name', 'users.email as uploader_email');
@@ -104,51 +113,30 @@ export function reviewService(db: Knex, readDb: Knex = db, onDecision?: BatchDec
     },
 
     /**
-     * Approve (or return) a whole batch; held rows (conflict, ambiguous) stay held.
-     * Approving: every pending measurement, and every one a return withdrew, becomes approved.
-     * Returning: every pending measurement becomes rejected, and every approved one is withdrawn
-     * (state `withdrawn`): out of the approved catalog, so catalog reads, new tomography runs,
-     * masks and new releases stop using it. Approving the batch again restores exactly those.
+     * Approve (or return) a whole batch (server/review/approve.ts says what each decision does to
+     * the rows). A batch with up to SYNC_DECISION_ROWS measurements to change is decided here in one
+     * transaction; a larger one is marked settling and applied in short transactions on a worker
+     * thread (settle.ts), and the answer says so (`settling`); the uploader is told when it flips.
      * Allowed: awaiting_review → approved | returned; approved → returned; returned → approved.
      */
     async decide(actorId: number, batchId: number, decision: 'approved' | 'returned', note: string | null) {
-      const result = await db.transaction(async (trx) => {
-        const b = await trx('batches').where({ id: batchId }).first();
-        if (!b) throw notFound(`Batch ${batchId}`);
-        if (!['awaiting_review', 'approved', 'returned'].includes(b.state)) throw new AppError(409, 'not_reviewable', `Batch ${batchId} is ${b.state}; only a checked batch can be approved or returned.`);
-        if (b.state === decision) throw new AppError(409, 'already_decided', `Batch ${batchId} is already ${decision}.`);
-        // a calibration being written (or rolled back) in short transactions finishes first
-        const moving = await trx('calibrations').where({ batch_id: batchId }).whereIn('state', ['applying', 'reverting']).first('id', 'state');
-        if (moving) throw new AppError(409, 'calibration_in_progress', `Batch ${batchId} has calibration ${moving.id} ${moving.state === 'applying' ? 'being applied' : 'being reverted'} now; decide once it has finished.`);
-        const target = decision === 'approved' ? 'approved' : 'rejected';
-        const pending = await trx('measurements').where({ batch_id: batchId, state: 'pending' }).pluck('id');
-        const now = new Date().toISOString();
-        const setState = async (ids: number[], state: string) => {
-          for (let i = 0; i < ids.length; i += 900) await trx('measurements').whereIn('id', ids.slice(i, i + 900)).update({ state, version: trx.raw('version + 1'), updated_at: now, updated_by: actorId });
-        };
-        await setState(pending, target);
-        // approving restores what a return withdrew; returning withdraws what is approved
-        const moved = await trx('measurements').where({ batch_id: batchId, state: decision === 'approved' ? 'withdrawn' : 'approved' }).pluck('id');
-        await setState(moved, decision === 'approved' ? 'approved' : 'withdrawn');
-        const held = await trx('measurements').where({ batch_id: batchId }).whereIn('state', ['conflict', 'ambiguous']).select('state').count({ n: '*' }).groupBy('state');
-        const counts = { changed: pending.length, conflicts: 0, ambiguous: 0, [decision === 'approved' ? 'restored' : 'withdrawn']: moved.length } as Record<string, number>;
-        for (const h of held as { state: string; n: number }[]) counts[h.state === 'conflict' ? 'conflicts' : 'ambiguous'] = Number(h.n);
-        await trx('batches').where({ id: batchId }).update({ state: decision, reviewed_by: actorId, reviewed_at: now, review_note: note, updated_at: now });
-        await recordAudit(trx, { actorId, action: `batch.${decision === 'approved' ? 'approve' : 'return'}`, entityType: 'batch', entityId: batchId, before: { state: b.state }, after: { state: decision, ...counts }, reason: note });
-        // one entry per measurement, built and written a slice at a time (a million-row batch
-        // never holds a million audit objects at once)
-        for (let i = 0; i < pending.length; i += 5000) {
-          await recordAudit(trx, pending.slice(i, i + 5000).map((id: number) => ({ actorId, action: `measurement.${decision === 'approved' ? 'approve' : 'reject'}`, entityType: 'measurement', entityId: id, before: { state: 'pending' }, after: { state: target }, reason: `batch ${batchId} ${decision}` })));
-        }
-        for (let i = 0; i < moved.length; i += 5000) {
-          await recordAudit(trx, moved.slice(i, i + 5000).map((id: number) => decision === 'approved'
-            ? { actorId, action: 'measurement.restore', entityType: 'measurement', entityId: id, before: { state: 'withdrawn' }, after: { state: 'approved' }, reason: `batch ${batchId} approved again` }
-            : { actorId, action: 'measurement.withdraw', entityType: 'measurement', entityId: id, before: { state: 'approved' }, after: { state: 'withdrawn' }, reason: `batch ${batchId} returned` }));
-        }
-        return { batch: b, counts };
-      });
-      await onDecision?.(result.batch, decision, note, result.counts);
-      return { id: batchId, state: decision, note, counts: result.counts };
+      const r = await beginDecision(db, actorId, batchId, decision, note);
+      if (r.done) {
+        await onDecision?.(r.batch, decision, note, r.counts as unknown as Record<string, number>);
+        return { id: batchId, state: decision, note, counts: r.counts };
+      }
+      settleAndTell(r.batch, decision, note);
+      return { id: batchId, state: r.batch.state, note, counts: null, settling: { decision, done: 0, total: r.total } };
+    },
+
+    /** After a restart: batches left settling are applied on from where they stopped. */
+    async resumeSettling(): Promise<number> {
+      const open = await db('batches').whereNotNull('settling').select('id', 'filename', 'uploaded_by', 'settling', 'settle_json');
+      for (const b of open) {
+        const s = settlingOf(b);
+        if (s) settleAndTell(b, s.decision, JSON.parse(b.settle_json).note ?? null);
+      }
+      return open.length;
     },
 
     /**
