@@ -323,8 +323,9 @@ export function calibrationService(db: Knex, readDb: Knex = db, opts: { firstChu
 
   /** The approved catalog changes only all at once: an approved batch is returned (withdrawn) before it is calibrated. */
   async function refuseApproved(batchId: number, what: string) {
-    const b = await db('batches').where({ id: batchId }).first('id', 'state');
+    const b = await db('batches').where({ id: batchId }).first('id', 'state', 'settling');
     if (!b) throw notFound(`Batch ${batchId}`);
+    if (b.settling) throw new AppError(409, 'decision_in_progress', `Batch ${batchId} is being ${b.settling === 'approved' ? 'approved' : 'returned'} right now; ${what} once that has finished.`);
     if (b.state === 'approved') throw new AppError(409, 'batch_approved', `Batch ${batchId} is approved; return it first (its rows leave the approved catalog), ${what}, then approve it again, so that modelers and runs never read a night half-calibrated.`);
   }
 
