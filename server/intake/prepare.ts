@@ -27,6 +27,8 @@ export const NUM = {
   pos_ra: 26, pos_dec: 27, star_glon: 28, star_glat: 29, star_hpx15: 30, star_plx: 31, star_plx_err: 32,
 } as const;
 export const NUM_SLOTS = 33;
+/** slot of each numeric stored column (MEAS_NUM), in its order */
+const MEAS_SLOTS = MEAS_NUM.map((k) => NUM[k]);
 
 export interface PreparedChunk {
   n: number;
@@ -50,36 +52,12 @@ export interface PreparedChunk {
 
 const nn = (v: number | null) => (v === null ? NaN : v);
 
-/** Write the derived values of row i (also used when the main thread derives a row again). */
+/** Write the derived values of row i (also used when the main thread derives a row again): the numeric stored columns (MEAS_NUM, NaN for null) and the text ones. */
 export function writeDerived(c: PreparedChunk, i: number, d: Derived): void {
   const o = i * NUM_SLOTS;
   const a = c.num;
-  a[o + NUM.ra_deg] = d.ra_deg;
-  a[o + NUM.dec_deg] = d.dec_deg;
-  a[o + NUM.glon_deg] = d.glon_deg;
-  a[o + NUM.glat_deg] = d.glat_deg;
-  a[o + NUM.hpx15] = d.hpx15;
-  a[o + NUM.mjd] = nn(d.mjd);
-  a[o + NUM.q] = d.q;
-  a[o + NUM.u] = d.u;
-  a[o + NUM.q_err] = d.q_err;
-  a[o + NUM.u_err] = d.u_err;
-  a[o + NUM.p] = d.p;
-  a[o + NUM.p_err] = d.p_err;
-  a[o + NUM.p_debiased] = d.p_debiased;
-  a[o + NUM.theta_deg] = d.theta_deg;
-  a[o + NUM.theta_err_deg] = d.theta_err_deg;
-  a[o + NUM.q_gal] = d.q_gal;
-  a[o + NUM.u_gal] = d.u_gal;
-  a[o + NUM.q_gal_err] = d.q_gal_err;
-  a[o + NUM.u_gal_err] = d.u_gal_err;
-  a[o + NUM.theta_gal_deg] = d.theta_gal_deg;
-  a[o + NUM.parallax_mas] = nn(d.parallax_mas);
-  a[o + NUM.parallax_err_mas] = nn(d.parallax_err_mas);
-  a[o + NUM.distance_pc] = nn(d.distance_pc);
-  a[o + NUM.distance_lo_pc] = nn(d.distance_lo_pc);
-  a[o + NUM.distance_hi_pc] = nn(d.distance_hi_pc);
-  a[o + NUM.ebv] = nn(d.ebv);
+  const v = d as unknown as Record<string, number | null | undefined>;
+  for (let k = 0; k < MEAS_NUM.length; k++) a[o + MEAS_SLOTS[k]] = nn(v[MEAS_NUM[k]] ?? null);
   c.band[i] = d.band;
   c.instrument[i] = d.instrument;
   c.distanceMethod[i] = d.distance_method;
@@ -157,7 +135,6 @@ export function chunkPreparer(ctx: PrepareContext) {
   };
 }
 
-const MEAS_SLOTS = MEAS_NUM.map((k) => NUM[k]);
 
 /** Values of MEAS_COLS (measurements/stored.ts) for row i of a prepared chunk. */
 export function measurementValues(c: PreparedChunk, i: number, id: number, starId: number | null, batchId: number, rowId: number, state: string, now: string, conflictsWith: number | null): unknown[] {
