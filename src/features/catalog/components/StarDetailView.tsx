@@ -1,11 +1,16 @@
 import { Link } from 'react-router-dom';
 import { Card } from '../../../components/ui/primitives';
+import { cols, DataTable } from '../../../components/ui/Table';
 import { can, type Me } from '../../../lib/roles';
 import { fixed, formatCount } from '../../../lib/format';
 import { MeasurementStateBadge } from '../../../components/ui/MeasurementStateBadge';
 import { INCONSISTENT_TAIL_PROBABILITY } from '@science/combine';
 import type { CombinedValue, StarDetail } from '../types';
 import { BAND_COLOURS, EpochPlots, QuPlanePlot } from './StarPlots';
+
+const TABLE_CLASS = 'w-full whitespace-nowrap text-left text-sm';
+const BODY_CLASS = 'num font-mono text-[13px]';
+const RIGHT = 'pr-3 text-right font-medium';
 
 const pm = (v: number, e: number, d: number) => `${fixed(v, d)} ± ${fixed(e, d)}`;
 
@@ -67,49 +72,42 @@ export function StarDetailView({ data, me }: { data: StarDetail; me: Me | null |
         {combined.length === 0 ? (
           <p className="text-sm text-muted">No approved measurement yet: a combined value is made from approved measurements only.</p>
         ) : (
-          <div className="overflow-x-auto">
-            <table className="w-full whitespace-nowrap text-left text-sm" aria-label="Combined values">
-              <thead className="border-b border-line text-xs text-muted">
-                <tr>
-                  <th className="py-2 pr-3 font-medium">band</th>
-                  <th className="pr-3 font-medium">instrument</th>
-                  <th className="pr-3 text-right font-medium">n</th>
-                  <th className="pr-3 text-right font-medium">q [fraction]</th>
-                  <th className="pr-3 text-right font-medium">u [fraction]</th>
-                  <th className="pr-3 text-right font-medium">p [fraction]</th>
-                  <th className="pr-3 text-right font-medium">p debiased [fraction]</th>
-                  <th className="pr-3 text-right font-medium">θ [deg]</th>
-                  <th className="pr-3 text-right font-medium" title="χ² = Σ (q−q̄)²/σq² + (u−ū)²/σu², with 2(n−1) degrees of freedom">χ² / dof</th>
-                  <th className="pr-3 text-right font-medium" title="probability of a χ² at least this large if the repeats agree">P(≥ χ²)</th>
-                  <th className="font-medium">repeats</th>
-                </tr>
-              </thead>
-              <tbody className="num font-mono text-[13px]">
-                {combined.map((c) => (
-                  <tr key={`${c.band}|${c.instrument}`} className="border-b border-line/60" data-testid="combined-row" data-band={c.band} data-instrument={c.instrument}>
-                    <td className="py-2 pr-3 font-sans font-semibold" style={{ color: BAND_COLOURS[c.band] }}>
-                      {c.band}
-                    </td>
-                    <td className="pr-3 font-sans">{c.instrument}</td>
-                    <td className="pr-3 text-right" data-testid="combined-n">{c.n}</td>
-                    <td className="pr-3 text-right" data-testid="combined-q">{pm(c.q, c.qErr, 6)}</td>
-                    <td className="pr-3 text-right" data-testid="combined-u">{pm(c.u, c.uErr, 6)}</td>
-                    <td className="pr-3 text-right">{pm(c.p, c.pErr, 5)}</td>
-                    <td className="pr-3 text-right">{fixed(c.pDebiased, 5)}</td>
-                    <td className="pr-3 text-right">{pm(c.thetaDeg, c.thetaErrDeg, 2)}</td>
-                    <td className="pr-3 text-right" data-testid="combined-chi2">
-                      {c.n < 2 ? '—' : `${c.chi2.toFixed(2)} / ${c.dof}`}
-                    </td>
-                    <td className="pr-3 text-right" data-testid="combined-p-tail">{c.n < 2 ? '—' : formatProbability(c.tailProbability)}</td>
-                    <td className="font-sans">
-                      <Verdict c={c} />
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-            <p className="mt-2 text-xs text-muted">Inverse-variance weighted means of q and u, from the approved measurements only; repeats are flagged inconsistent when the χ² tail probability is below {INCONSISTENT_TAIL_PROBABILITY}.</p>
-          </div>
+          <DataTable
+            label="Combined values"
+            className={TABLE_CLASS}
+            bodyClassName={BODY_CLASS}
+            columns={[
+              { label: 'band', className: 'py-2 pr-3 font-medium' },
+              { label: 'instrument', className: 'pr-3 font-medium' },
+              ...cols(RIGHT, 'n', 'q [fraction]', 'u [fraction]', 'p [fraction]', 'p debiased [fraction]', 'θ [deg]'),
+              { label: 'χ² / dof', className: RIGHT, title: 'χ² = Σ (q−q̄)²/σq² + (u−ū)²/σu², with 2(n−1) degrees of freedom' },
+              { label: 'P(≥ χ²)', className: RIGHT, title: 'probability of a χ² at least this large if the repeats agree' },
+              { label: 'repeats', className: 'font-medium' },
+            ]}
+            after={<p className="mt-2 text-xs text-muted">Inverse-variance weighted means of q and u, from the approved measurements only; repeats are flagged inconsistent when the χ² tail probability is below {INCONSISTENT_TAIL_PROBABILITY}.</p>}
+          >
+            {combined.map((c) => (
+              <tr key={`${c.band}|${c.instrument}`} className="border-b border-line/60" data-testid="combined-row" data-band={c.band} data-instrument={c.instrument}>
+                <td className="py-2 pr-3 font-sans font-semibold" style={{ color: BAND_COLOURS[c.band] }}>
+                  {c.band}
+                </td>
+                <td className="pr-3 font-sans">{c.instrument}</td>
+                <td className="pr-3 text-right" data-testid="combined-n">{c.n}</td>
+                <td className="pr-3 text-right" data-testid="combined-q">{pm(c.q, c.qErr, 6)}</td>
+                <td className="pr-3 text-right" data-testid="combined-u">{pm(c.u, c.uErr, 6)}</td>
+                <td className="pr-3 text-right">{pm(c.p, c.pErr, 5)}</td>
+                <td className="pr-3 text-right">{fixed(c.pDebiased, 5)}</td>
+                <td className="pr-3 text-right">{pm(c.thetaDeg, c.thetaErrDeg, 2)}</td>
+                <td className="pr-3 text-right" data-testid="combined-chi2">
+                  {c.n < 2 ? '—' : `${c.chi2.toFixed(2)} / ${c.dof}`}
+                </td>
+                <td className="pr-3 text-right" data-testid="combined-p-tail">{c.n < 2 ? '—' : formatProbability(c.tailProbability)}</td>
+                <td className="font-sans">
+                  <Verdict c={c} />
+                </td>
+              </tr>
+            ))}
+          </DataTable>
         )}
       </Card>
 
@@ -125,58 +123,50 @@ export function StarDetailView({ data, me }: { data: StarDetail; me: Me | null |
       </div>
 
       <Card title="Every measurement">
-        <div className="overflow-x-auto">
-          <table className="w-full whitespace-nowrap text-left text-sm" aria-label="Measurements of this star">
-            <thead className="border-b border-line text-xs text-muted">
-              <tr>
-                <th className="py-2 pl-1 pr-3 font-medium">state</th>
-                <th className="pr-3 text-right font-medium">epoch, MJD [d]</th>
-                <th className="pr-3 font-medium">band</th>
-                <th className="pr-3 font-medium">instrument</th>
-                <th className="pr-3 text-right font-medium">q [fraction]</th>
-                <th className="pr-3 text-right font-medium">u [fraction]</th>
-                <th className="pr-3 text-right font-medium">p [fraction]</th>
-                <th className="pr-3 text-right font-medium">θ [deg]</th>
-                <th className="pr-3 text-right font-medium">θ Galactic [deg]</th>
-                <th className="pr-3 text-right font-medium">distance [pc]</th>
-                <th className="pr-3 font-medium">flags</th>
-                <th className="font-medium">batch</th>
-              </tr>
-            </thead>
-            <tbody className="num font-mono text-[13px]">
-              {measurements.map((m) => (
-                <tr key={m.id} className="border-b border-line/60" data-testid="star-measurement" data-id={m.id}>
-                  <td className="py-1.5 pl-1 pr-3 font-sans">
-                    <MeasurementStateBadge state={m.state} />
-                  </td>
-                  <td className="pr-3 text-right">{m.mjd == null ? '—' : fixed(m.mjd, 5)}</td>
-                  <td className="pr-3 font-sans font-semibold" style={{ color: BAND_COLOURS[m.band] }}>
-                    {m.band}
-                  </td>
-                  <td className="pr-3 font-sans">{m.instrument}</td>
-                  <td className="pr-3 text-right">{pm(m.q, m.q_err, 6)}</td>
-                  <td className="pr-3 text-right">{pm(m.u, m.u_err, 6)}</td>
-                  <td className="pr-3 text-right">{pm(m.p, m.p_err, 5)}</td>
-                  <td className="pr-3 text-right">{pm(m.theta_deg, m.theta_err_deg, 2)}</td>
-                  <td className="pr-3 text-right">{fixed(m.theta_gal_deg, 2)}</td>
-                  <td className="pr-3 text-right" title={m.distance_method ? `${m.distance_method.replace(/_/g, ' ')}; 16th–84th percentile ${fixed(m.distance_lo_pc, 0)}–${fixed(m.distance_hi_pc, 0)} pc` : undefined}>
-                    {fixed(m.distance_pc, 0)}
-                  </td>
-                  <td className="pr-3 font-sans text-xs text-amber-deep">{m.flags.map((f) => f.replace(/_/g, ' ')).join(', ') || <span className="text-muted">—</span>}</td>
-                  <td className="font-sans text-xs">
-                    {canOpenBatch ? (
-                      <Link className="text-veil underline-offset-2 hover:underline" to={`/review/batches/${m.batchId}`}>
-                        #{m.batchId}
-                      </Link>
-                    ) : (
-                      `#${m.batchId}`
-                    )}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Measurements of this star"
+          className={TABLE_CLASS}
+          bodyClassName={BODY_CLASS}
+          columns={[
+            { label: 'state', className: 'py-2 pl-1 pr-3 font-medium' },
+            { label: 'epoch, MJD [d]', className: RIGHT },
+            ...cols('pr-3 font-medium', 'band', 'instrument'),
+            ...cols(RIGHT, 'q [fraction]', 'u [fraction]', 'p [fraction]', 'θ [deg]', 'θ Galactic [deg]', 'distance [pc]'),
+            { label: 'flags', className: 'pr-3 font-medium' },
+            { label: 'batch', className: 'font-medium' },
+          ]}
+        >
+          {measurements.map((m) => (
+            <tr key={m.id} className="border-b border-line/60" data-testid="star-measurement" data-id={m.id}>
+              <td className="py-1.5 pl-1 pr-3 font-sans">
+                <MeasurementStateBadge state={m.state} />
+              </td>
+              <td className="pr-3 text-right">{m.mjd == null ? '—' : fixed(m.mjd, 5)}</td>
+              <td className="pr-3 font-sans font-semibold" style={{ color: BAND_COLOURS[m.band] }}>
+                {m.band}
+              </td>
+              <td className="pr-3 font-sans">{m.instrument}</td>
+              <td className="pr-3 text-right">{pm(m.q, m.q_err, 6)}</td>
+              <td className="pr-3 text-right">{pm(m.u, m.u_err, 6)}</td>
+              <td className="pr-3 text-right">{pm(m.p, m.p_err, 5)}</td>
+              <td className="pr-3 text-right">{pm(m.theta_deg, m.theta_err_deg, 2)}</td>
+              <td className="pr-3 text-right">{fixed(m.theta_gal_deg, 2)}</td>
+              <td className="pr-3 text-right" title={m.distance_method ? `${m.distance_method.replace(/_/g, ' ')}; 16th–84th percentile ${fixed(m.distance_lo_pc, 0)}–${fixed(m.distance_hi_pc, 0)} pc` : undefined}>
+                {fixed(m.distance_pc, 0)}
+              </td>
+              <td className="pr-3 font-sans text-xs text-amber-deep">{m.flags.map((f) => f.replace(/_/g, ' ')).join(', ') || <span className="text-muted">—</span>}</td>
+              <td className="font-sans text-xs">
+                {canOpenBatch ? (
+                  <Link className="text-veil underline-offset-2 hover:underline" to={`/review/batches/${m.batchId}`}>
+                    #{m.batchId}
+                  </Link>
+                ) : (
+                  `#${m.batchId}`
+                )}
+              </td>
+            </tr>
+          ))}
+        </DataTable>
       </Card>
     </div>
   );

@@ -5,6 +5,7 @@ import { useBatches } from '../api/batches';
 import { formatAge, formatBytes, formatCount } from '../../../lib/format';
 import type { BatchState } from '../types';
 import { BatchStateBadge, batchStateLabel } from '../../../components/ui/StateBadge';
+import { cols, DataTable, TABLE_HEAD_CAPS } from '../../../components/ui/Table';
 
 const PAGE = 25;
 const FILTERS: BatchState[] = ['needs_mapping', 'checking', 'awaiting_review', 'failed', 'received'];
@@ -48,51 +49,45 @@ export function BatchList({ showUploader }: { showUploader: boolean }) {
         </p>
       )}
       {q.data && q.data.batches.length > 0 && (
-        <div className="overflow-x-auto">
-          <table className="w-full text-left text-sm" aria-label="Batches">
-            <thead className="border-b border-line text-xs uppercase tracking-wide text-muted">
-              <tr>
-                <th className="py-2 pr-4">File</th>
-                <th className="pr-4">State</th>
-                <th className="pr-3 text-right">rows</th>
-                <th className="pr-3 text-right">accepted</th>
-                <th className="pr-3 text-right">rejected</th>
-                <th className="pr-3 text-right">dup.</th>
-                <th className="pr-3 text-right">confl.</th>
-                <th className="pr-4 text-right">ambig.</th>
-                {showUploader && <th className="pr-4">Sent by</th>}
-                <th>Sent</th>
-              </tr>
-            </thead>
-            <tbody className="num">
-              {q.data.batches.map((b) => (
-                <tr key={b.id} className="border-b border-line/60 hover:bg-veil-soft/40">
-                  <td className="py-2 pr-4">
-                    <Link to={`/batches/${b.id}`} className="font-medium text-night underline-offset-2 hover:underline">
-                      {b.filename}
-                    </Link>
-                    <div className="text-xs text-muted">
-                      {b.instrument ?? 'instrument per row'} · {formatBytes(b.sizeBytes)}
-                    </div>
-                  </td>
-                  <td className="pr-4">
-                    <BatchStateBadge state={b.state} />
-                  </td>
-                  <td className="pr-3 text-right">{formatCount(b.counts.rows)}</td>
-                  <td className="pr-3 text-right text-ok">{formatCount(b.counts.accepted)}</td>
-                  <td className={`pr-3 text-right ${b.counts.rejected ? 'font-semibold text-bad' : ''}`}>{formatCount(b.counts.rejected)}</td>
-                  <td className="pr-3 text-right">{formatCount(b.counts.duplicates)}</td>
-                  <td className={`pr-3 text-right ${b.counts.conflicts ? 'text-warn' : ''}`}>{formatCount(b.counts.conflicts)}</td>
-                  <td className="pr-4 text-right">{formatCount(b.counts.ambiguous)}</td>
-                  {showUploader && <td className="pr-4">{b.uploadedBy.name}</td>}
-                  <td className="whitespace-nowrap text-muted" title={new Date(b.createdAt).toLocaleString()}>
-                    {formatAge(b.createdAt)}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Batches"
+          headClassName={TABLE_HEAD_CAPS}
+          bodyClassName="num"
+          columns={[
+            { label: 'File', className: 'py-2 pr-4' },
+            { label: 'State', className: 'pr-4' },
+            ...cols('pr-3 text-right', 'rows', 'accepted', 'rejected', 'dup.', 'confl.'),
+            { label: 'ambig.', className: 'pr-4 text-right' },
+            showUploader && { label: 'Sent by', className: 'pr-4' },
+            { label: 'Sent' },
+          ]}
+        >
+          {q.data.batches.map((b) => (
+            <tr key={b.id} className="border-b border-line/60 hover:bg-veil-soft/40">
+              <td className="py-2 pr-4">
+                <Link to={`/batches/${b.id}`} className="font-medium text-night underline-offset-2 hover:underline">
+                  {b.filename}
+                </Link>
+                <div className="text-xs text-muted">
+                  {b.instrument ?? 'instrument per row'} · {formatBytes(b.sizeBytes)}
+                </div>
+              </td>
+              <td className="pr-4">
+                <BatchStateBadge state={b.state} />
+              </td>
+              <td className="pr-3 text-right">{formatCount(b.counts.rows)}</td>
+              <td className="pr-3 text-right text-ok">{formatCount(b.counts.accepted)}</td>
+              <td className={`pr-3 text-right ${b.counts.rejected ? 'font-semibold text-bad' : ''}`}>{formatCount(b.counts.rejected)}</td>
+              <td className="pr-3 text-right">{formatCount(b.counts.duplicates)}</td>
+              <td className={`pr-3 text-right ${b.counts.conflicts ? 'text-warn' : ''}`}>{formatCount(b.counts.conflicts)}</td>
+              <td className="pr-4 text-right">{formatCount(b.counts.ambiguous)}</td>
+              {showUploader && <td className="pr-4">{b.uploadedBy.name}</td>}
+              <td className="whitespace-nowrap text-muted" title={new Date(b.createdAt).toLocaleString()}>
+                {formatAge(b.createdAt)}
+              </td>
+            </tr>
+          ))}
+        </DataTable>
       )}
       {total > PAGE && (
         <div className="flex items-center gap-3 text-sm">

@@ -1,45 +1,37 @@
+import { cols, DataTable, TABLE_HEAD_CAPS } from '../../../components/ui/Table';
 import type { IntakeColumn } from '../types';
 
 /** The columns Starveil reads: name, unit, rule, meaning and the other spellings it recognises. */
 export function ColumnGuideTable({ columns }: { columns: IntakeColumn[] }) {
   return (
-    <div className="overflow-x-auto">
-      <table className="w-full text-left text-sm" aria-label="Columns Starveil reads">
-        <thead className="border-b border-line text-xs uppercase tracking-wide text-muted">
-          <tr>
-            <th className="py-2 pr-4">Column</th>
-            <th className="pr-4">Unit</th>
-            <th className="pr-4">Needed</th>
-            <th className="pr-4">Meaning</th>
-            <th>Also recognised as</th>
-          </tr>
-        </thead>
-        <tbody>
-          {columns.map((c) => (
-            <tr key={c.name} className="border-b border-line/60 align-top">
-              <td className="py-2 pr-4">
-                <code className="font-semibold text-night">{c.name}</code>
-              </td>
-              <td className="whitespace-nowrap py-2 pr-4 text-ink">{c.unit || '—'}</td>
-              <td className="max-w-[22rem] py-2 pr-4 text-ink">
-                <RequiredRule rule={c.required} />
-              </td>
-              <td className="py-2 pr-4 text-ink">{c.description}</td>
-              <td className="py-2">
-                <div className="flex flex-wrap gap-1">
-                  {c.synonyms.length === 0 && <span className="text-muted">—</span>}
-                  {c.synonyms.map((s) => (
-                    <code key={s} className="rounded bg-veil-soft px-1.5 py-0.5 text-xs text-night">
-                      {s}
-                    </code>
-                  ))}
-                </div>
-              </td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <DataTable
+      label="Columns Starveil reads"
+      headClassName={TABLE_HEAD_CAPS}
+      columns={[{ label: 'Column', className: 'py-2 pr-4' }, ...cols('pr-4', 'Unit', 'Needed', 'Meaning'), { label: 'Also recognised as' }]}
+    >
+      {columns.map((c) => (
+        <tr key={c.name} className="border-b border-line/60 align-top">
+          <td className="py-2 pr-4">
+            <code className="font-semibold text-night">{c.name}</code>
+          </td>
+          <td className="whitespace-nowrap py-2 pr-4 text-ink">{c.unit || '—'}</td>
+          <td className="max-w-[22rem] py-2 pr-4 text-ink">
+            <RequiredRule rule={c.required} />
+          </td>
+          <td className="py-2 pr-4 text-ink">{c.description}</td>
+          <td className="py-2">
+            <div className="flex flex-wrap gap-1">
+              {c.synonyms.length === 0 && <span className="text-muted">—</span>}
+              {c.synonyms.map((s) => (
+                <code key={s} className="rounded bg-veil-soft px-1.5 py-0.5 text-xs text-night">
+                  {s}
+                </code>
+              ))}
+            </div>
+          </td>
+        </tr>
+      ))}
+    </DataTable>
   );
 }
 

@@ -6,6 +6,7 @@ import { BatchStateBadge } from '../../../components/ui/StateBadge';
 import { useReviewQueue } from '../api/queue';
 import type { QueueBatch, QueueSort, QueueState, SortOrder } from '../types';
 import { ariaSort, SortHeader } from '../../../components/ui/SortHeader';
+import { cols, DataTable, type TableColumn } from '../../../components/ui/Table';
 
 const TABS: { state: QueueState; label: string; empty: string }[] = [
   { state: 'awaiting_review', label: 'Waiting for review', empty: 'Nothing is waiting: every checked batch has been decided.' },
@@ -15,6 +16,9 @@ const TABS: { state: QueueState; label: string; empty: string }[] = [
 
 /** First click on a column: the order most useful for it (oldest waiting first; most rows first; A→Z). */
 const FIRST_ORDER: Record<QueueSort, SortOrder> = { age: 'asc', rows: 'desc', uploader: 'asc' };
+
+/** Header classes of the plain count columns. */
+const COUNT = 'pr-3 text-right font-medium uppercase tracking-wide';
 
 const waited = (hours: number) => (hours < 1 ? `${Math.round(hours * 60)} min` : hours < 48 ? `${hours.toFixed(1)} h` : `${(hours / 24).toFixed(1)} days`);
 
@@ -34,9 +38,11 @@ export function ReviewQueue() {
       setOrder(FIRST_ORDER[s]);
     }
   };
-  const header = (s: QueueSort, label: string, title: string, align: 'left' | 'right' = 'left') => (
-    <SortHeader label={label} title={title} active={sort === s} order={order} onSort={() => sortBy(s)} align={align} />
-  );
+  const header = (s: QueueSort, label: string, title: string, className: string, align: 'left' | 'right' = 'left'): TableColumn => ({
+    label: <SortHeader label={label} title={title} active={sort === s} order={order} onSort={() => sortBy(s)} align={align} />,
+    className,
+    ariaSort: ariaSort(sort === s, order),
+  });
 
   return (
     <div className="space-y-4">
@@ -65,35 +71,25 @@ export function ReviewQueue() {
       {q.isPending && <p className="text-sm text-muted">Loading…</p>}
       {q.data && q.data.batches.length === 0 && <p className="rounded-lg border border-dashed border-line px-4 py-10 text-center text-sm text-muted">{tab.empty}</p>}
       {q.data && q.data.batches.length > 0 && (
-        <div className="overflow-x-auto">
-          <table className="w-full text-left text-sm" aria-label="Review queue">
-            <thead className="border-b border-line text-xs text-muted">
-              <tr>
-                <th className="py-2 pr-4 font-medium uppercase tracking-wide">Batch</th>
-                <th className="pr-3 text-right font-medium" aria-sort={ariaSort(sort === 'rows', order)}>
-                  {header('rows', 'rows', 'Sort by the number of rows', 'right')}
-                </th>
-                <th className="pr-3 text-right font-medium uppercase tracking-wide">accepted</th>
-                <th className="pr-3 text-right font-medium uppercase tracking-wide">rejected</th>
-                <th className="pr-3 text-right font-medium uppercase tracking-wide" title="rows that disagree with an earlier measurement">conflicts</th>
-                <th className="pr-3 text-right font-medium uppercase tracking-wide" title="rows that could belong to more than one star">ambiguous</th>
-                <th className="pr-4 text-right font-medium uppercase tracking-wide" title="rows with at least one warning">warnings</th>
-                <th className="pr-4 font-medium" aria-sort={ariaSort(sort === 'uploader', order)}>
-                  {header('uploader', 'sent by', 'Sort by uploader')}
-                </th>
-                <th className="pr-4 font-medium" aria-sort={ariaSort(sort === 'age', order)}>
-                  {header('age', decided ? 'sent' : 'waiting', 'Sort by when the batch was sent')}
-                </th>
-                {decided && <th className="font-medium uppercase tracking-wide">decision</th>}
-              </tr>
-            </thead>
-            <tbody className="num">
-              {q.data.batches.map((b) => (
-                <QueueRow key={b.id} b={b} decided={decided} />
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Review queue"
+          bodyClassName="num"
+          columns={[
+            { label: 'Batch', className: 'py-2 pr-4 font-medium uppercase tracking-wide' },
+            header('rows', 'rows', 'Sort by the number of rows', 'pr-3 text-right font-medium', 'right'),
+            ...cols(COUNT, 'accepted', 'rejected'),
+            { label: 'conflicts', className: COUNT, title: 'rows that disagree with an earlier measurement' },
+            { label: 'ambiguous', className: COUNT, title: 'rows that could belong to more than one star' },
+            { label: 'warnings', className: 'pr-4 text-right font-medium uppercase tracking-wide', title: 'rows with at least one warning' },
+            header('uploader', 'sent by', 'Sort by uploader', 'pr-4 font-medium'),
+            header('age', decided ? 'sent' : 'waiting', 'Sort by when the batch was sent', 'pr-4 font-medium'),
+            decided && { label: 'decision', className: 'font-medium uppercase tracking-wide' },
+          ]}
+        >
+          {q.data.batches.map((b) => (
+            <QueueRow key={b.id} b={b} decided={decided} />
+          ))}
+        </DataTable>
       )}
     </div>
   );

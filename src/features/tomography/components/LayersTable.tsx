@@ -1,3 +1,4 @@
+import { cols, DataTable } from '../../../components/ui/Table';
 import { deg, num, pct } from '../sky/format';
 import { layerNumber } from '../sightline/steps';
 import type { TomographyJump, TomographyLayer } from '../types';
@@ -29,71 +30,65 @@ const td = 'py-1.5 pr-4 text-right';
 /** One row per layer: distance with its range, own Stokes contribution, p (debiased), θ and S/N. */
 export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
   return (
-    <div className="overflow-x-auto">
-      <table className="w-full text-sm" aria-label="Layers">
-        <thead className="border-b border-line text-xs text-muted">
-          <tr>
-            <th className="py-2 pr-4 text-left font-medium">Layer</th>
-            <th className={th}>Distance [pc]</th>
-            <th className={th}>16–84 % [pc]</th>
-            <th className={th}>Stars behind</th>
-            <th className={th}>Δq [%]</th>
-            <th className={th}>Δu [%]</th>
-            <th className={th}>p debiased [%]</th>
-            <th className={th}>θ [deg]</th>
-            <th className={th}>σθ [deg]</th>
-            <th className={th}>Scatter [%]</th>
-            <th className="py-2 text-right font-medium">S/N</th>
-          </tr>
-        </thead>
-        <tbody className="num">
-          {layers.map((l) => (
-            <tr key={l.index} className="border-b border-line/60" data-testid="layer-row">
-              <td className="py-1.5 pr-4 text-left">
-                <span className="font-medium text-night">{layerNumber(l.index)}</span>
-                {l.kind === 'foreground' && <span className="ml-2 rounded bg-line/70 px-1.5 py-0.5 text-xs text-muted">foreground</span>}
-              </td>
-              <td className={td} data-testid="layer-distance">{distanceText(l)}</td>
-              <td className={td} data-testid="layer-range" title={l.distanceNote ?? undefined}>{rangeText(l)}</td>
-              <td className={td}>{l.nStars}</td>
-              <td className={td}>
-                {pct(l.deltaQ, 3)} <span className="text-muted">± {pct(l.deltaQErr, 3)}</span>
-              </td>
-              <td className={td}>
-                {pct(l.deltaU, 3)} <span className="text-muted">± {pct(l.deltaUErr, 3)}</span>
-              </td>
-              <td className={td}>
-                {pct(l.pDebiased, 3)} <span className="text-muted">± {pct(l.pErr, 3)}</span>
-              </td>
-              <td className={td}>{num(l.thetaDeg, 1)}</td>
-              <td className={td}>
-                {num(l.thetaErrDeg, 1)}
-                {l.angleNonGaussian && (
-                  <span className="ml-1 text-warn" title="p/σp below 5: the angle distribution is not Gaussian">
-                    *
-                  </span>
-                )}
-              </td>
-              <td className={td}>{pct(l.scatter, 3)}</td>
-              <td className="py-1.5 text-right">{num(l.snr, 1)}</td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-      {layers.some((l) => l.angleNonGaussian) && <p className="mt-2 text-xs text-warn">* p/σp below 5: the angle’s distribution is not Gaussian and σθ understates it.</p>}
-      {layers.some((l) => l.kind === 'foreground') && (
-        <p className="mt-2 text-xs text-muted">A foreground layer already polarizes the nearest stars with usable distances: it lies nearer than them, so its distance is only an upper limit.</p>
-      )}
-      {layers.some((l) => l.distanceNote) && (
-        <ul className="mt-2 space-y-1 text-xs text-muted" aria-label="Distance notes" data-testid="distance-notes">
-          {layers.filter((l) => l.distanceNote).map((l) => (
-            <li key={l.index}>
-              <span className="font-medium text-night">{layerNumber(l.index)}</span>: {l.distanceNote}
-            </li>
-          ))}
-        </ul>
-      )}
-    </div>
+    <DataTable
+      label="Layers"
+      className="w-full text-sm"
+      bodyClassName="num"
+      columns={[
+        { label: 'Layer', className: 'py-2 pr-4 text-left font-medium' },
+        ...cols(th, 'Distance [pc]', '16–84 % [pc]', 'Stars behind', 'Δq [%]', 'Δu [%]', 'p debiased [%]', 'θ [deg]', 'σθ [deg]', 'Scatter [%]'),
+        { label: 'S/N', className: 'py-2 text-right font-medium' },
+      ]}
+      after={
+        <>
+          {layers.some((l) => l.angleNonGaussian) && <p className="mt-2 text-xs text-warn">* p/σp below 5: the angle’s distribution is not Gaussian and σθ understates it.</p>}
+          {layers.some((l) => l.kind === 'foreground') && (
+            <p className="mt-2 text-xs text-muted">A foreground layer already polarizes the nearest stars with usable distances: it lies nearer than them, so its distance is only an upper limit.</p>
+          )}
+          {layers.some((l) => l.distanceNote) && (
+            <ul className="mt-2 space-y-1 text-xs text-muted" aria-label="Distance notes" data-testid="distance-notes">
+              {layers.filter((l) => l.distanceNote).map((l) => (
+                <li key={l.index}>
+                  <span className="font-medium text-night">{layerNumber(l.index)}</span>: {l.distanceNote}
+                </li>
+              ))}
+            </ul>
+          )}
+        </>
+      }
+    >
+      {layers.map((l) => (
+        <tr key={l.index} className="border-b border-line/60" data-testid="layer-row">
+          <td className="py-1.5 pr-4 text-left">
+            <span className="font-medium text-night">{layerNumber(l.index)}</span>
+            {l.kind === 'foreground' && <span className="ml-2 rounded bg-line/70 px-1.5 py-0.5 text-xs text-muted">foreground</span>}
+          </td>
+          <td className={td} data-testid="layer-distance">{distanceText(l)}</td>
+          <td className={td} data-testid="layer-range" title={l.distanceNote ?? undefined}>{rangeText(l)}</td>
+          <td className={td}>{l.nStars}</td>
+          <td className={td}>
+            {pct(l.deltaQ, 3)} <span className="text-muted">± {pct(l.deltaQErr, 3)}</span>
+          </td>
+          <td className={td}>
+            {pct(l.deltaU, 3)} <span className="text-muted">± {pct(l.deltaUErr, 3)}</span>
+          </td>
+          <td className={td}>
+            {pct(l.pDebiased, 3)} <span className="text-muted">± {pct(l.pErr, 3)}</span>
+          </td>
+          <td className={td}>{num(l.thetaDeg, 1)}</td>
+          <td className={td}>
+            {num(l.thetaErrDeg, 1)}
+            {l.angleNonGaussian && (
+              <span className="ml-1 text-warn" title="p/σp below 5: the angle distribution is not Gaussian">
+                *
+              </span>
+            )}
+          </td>
+          <td className={td}>{pct(l.scatter, 3)}</td>
+          <td className="py-1.5 text-right">{num(l.snr, 1)}</td>
+        </tr>
+      ))}
+    </DataTable>
   );
 }
 
@@ -101,34 +96,30 @@ export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
 export function JumpsTable({ jumps, thresholdDeg }: { jumps: TomographyJump[]; thresholdDeg: number }) {
   if (jumps.length === 0) return <p className="text-sm text-muted">One layer only: no angle jump along this sightline.</p>;
   return (
-    <div className="overflow-x-auto">
-      <table className="w-full text-sm" aria-label="Angle jumps">
-        <thead className="border-b border-line text-xs text-muted">
-          <tr>
-            <th className="py-2 pr-4 text-left font-medium">Between layers</th>
-            <th className={th}>Δθ [deg]</th>
-            <th className={th}>σ [deg]</th>
-            <th className={th}>Significance [σ]</th>
-            <th className="py-2 text-left font-medium">Above the {thresholdDeg}° threshold</th>
-          </tr>
-        </thead>
-        <tbody className="num">
-          {jumps.map((j) => (
-            <tr key={`${j.fromLayer}-${j.toLayer}`} className="border-b border-line/60" data-testid="jump-row">
-              <td className="py-1.5 pr-4 text-left">
-                {layerNumber(j.fromLayer)} → {layerNumber(j.toLayer)}
-              </td>
-              <td className={td} data-testid="jump-delta">
-                {deg(j.deltaThetaDeg, 1, true).replace('°', '')}
-              </td>
-              <td className={td}>{num(j.sigmaDeg, 1)}</td>
-              <td className={td}>{num(j.significance, 1)}</td>
-              <td className="py-1.5 text-left">{Math.abs(j.deltaThetaDeg) > thresholdDeg ? 'yes' : 'no'}</td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-      <p className="mt-2 text-xs text-muted">Δθ = θ of the farther layer − θ of the nearer, wrapped to (−90°, 90°]; σ = √(σθ₁² + σθ₂²); significance = |Δθ| / σ.</p>
-    </div>
+    <DataTable
+      label="Angle jumps"
+      className="w-full text-sm"
+      bodyClassName="num"
+      columns={[
+        { label: 'Between layers', className: 'py-2 pr-4 text-left font-medium' },
+        ...cols(th, 'Δθ [deg]', 'σ [deg]', 'Significance [σ]'),
+        { label: `Above the ${thresholdDeg}° threshold`, className: 'py-2 text-left font-medium' },
+      ]}
+      after={<p className="mt-2 text-xs text-muted">Δθ = θ of the farther layer − θ of the nearer, wrapped to (−90°, 90°]; σ = √(σθ₁² + σθ₂²); significance = |Δθ| / σ.</p>}
+    >
+      {jumps.map((j) => (
+        <tr key={`${j.fromLayer}-${j.toLayer}`} className="border-b border-line/60" data-testid="jump-row">
+          <td className="py-1.5 pr-4 text-left">
+            {layerNumber(j.fromLayer)} → {layerNumber(j.toLayer)}
+          </td>
+          <td className={td} data-testid="jump-delta">
+            {deg(j.deltaThetaDeg, 1, true).replace('°', '')}
+          </td>
+          <td className={td}>{num(j.sigmaDeg, 1)}</td>
+          <td className={td}>{num(j.significance, 1)}</td>
+          <td className="py-1.5 text-left">{Math.abs(j.deltaThetaDeg) > thresholdDeg ? 'yes' : 'no'}</td>
+        </tr>
+      ))}
+    </DataTable>
   );
 }

@@ -1,5 +1,6 @@
 import { Link } from 'react-router-dom';
 import { Button, Notice } from '../../../components/ui/primitives';
+import { cols, DataTable } from '../../../components/ui/Table';
 import { formatAge, formatCount } from '../../../lib/format';
 import { useCancelRun } from '../api/cancelRun';
 import { useRun } from '../api/run';
@@ -91,25 +92,18 @@ function RunRow({ listed, mayControl }: { listed: Run; mayControl: boolean }) {
 export function RunsTable({ runs, mayControl }: { runs: Run[]; mayControl: boolean }) {
   if (runs.length === 0) return <p className="rounded-lg border border-dashed border-line px-4 py-8 text-center text-sm text-muted">No tomography run yet.</p>;
   return (
-    <div className="overflow-x-auto">
-      <table className="w-full text-left text-sm" aria-label="Tomography runs">
-        <thead className="border-b border-line text-xs text-muted">
-          <tr>
-            <th className="py-2 pr-4 font-medium">Run</th>
-            <th className="pr-4 font-medium">State</th>
-            <th className="pr-4 font-medium">Parameters</th>
-            <th className="pr-4 font-medium">Fingerprint</th>
-            <th className="pr-4 text-right font-medium">Stars used</th>
-            <th className="pr-4 text-right font-medium">Cells</th>
-            <th />
-          </tr>
-        </thead>
-        <tbody>
-          {runs.map((r) => (
-            <RunRow key={r.id} listed={r} mayControl={mayControl} />
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <DataTable
+      label="Tomography runs"
+      columns={[
+        { label: 'Run', className: 'py-2 pr-4 font-medium' },
+        ...cols('pr-4 font-medium', 'State', 'Parameters', 'Fingerprint'),
+        ...cols('pr-4 text-right font-medium', 'Stars used', 'Cells'),
+        {},
+      ]}
+    >
+      {runs.map((r) => (
+        <RunRow key={r.id} listed={r} mayControl={mayControl} />
+      ))}
+    </DataTable>
   );
 }
