@@ -163,9 +163,13 @@ try {
   };
   const watch = (async () => {
     while (settling) {
-      const b = await (await observer(`/batches/${batch.id}`, { signal: signal() })).json();
-      if (b.state === 'approved') settling = false;
-      else await new Promise((r) => setTimeout(r, 200));
+      try {
+        const b = await (await observer(`/batches/${batch.id}`, { signal: signal() })).json();
+        if (b.state === 'approved') settling = false;
+      } catch (e) {
+        settleFailures.push(`batch → ${(e as Error).message}`); // counted; a reused keep-alive socket the server closed shows as ECONNRESET
+      }
+      if (settling) await new Promise((r) => setTimeout(r, 200));
     }
   })();
   let settleEdit = '';
