@@ -1,9 +1,9 @@
 import { useState, type FormEvent } from 'react';
 import { Link, useSearchParams } from 'react-router-dom';
-import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
+import { Notice } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
 import { useConfirmPasswordReset } from '../api/confirmPasswordReset';
-import { AuthFrame, BackToSignIn } from '../components/AuthFrame';
+import { AuthField, AuthFrame, AuthSubmit, BackToSignIn } from '../components/AuthFrame';
 
 export function ResetConfirmPage() {
   const [params] = useSearchParams();
@@ -50,15 +50,11 @@ export function ResetConfirmPage() {
               )}
             </Notice>
           )}
-          <Field label="New password" hint="At least 10 characters, not the demo password" error={localError}>
-            <TextInput name="newPassword" type="password" autoComplete="new-password" required minLength={10} value={password} onChange={(e) => setPassword(e.target.value)} />
-          </Field>
-          <Field label="The same again">
-            <TextInput name="repeatPassword" type="password" autoComplete="new-password" required value={repeat} onChange={(e) => setRepeat(e.target.value)} />
-          </Field>
-          <Button type="submit" className="w-full justify-center" disabled={reset.isPending}>
-            {reset.isPending ? 'Saving…' : 'Set the new password'}
-          </Button>
+          <AuthField label="New password" hint="At least 10 characters, not the demo password" error={localError} name="newPassword" type="password" autoComplete="new-password" required minLength={10} value={password} onValue={setPassword} />
+          <AuthField label="The same again" name="repeatPassword" type="password" autoComplete="new-password" required value={repeat} onValue={setRepeat} />
+          <AuthSubmit pending={reset.isPending} busy="Saving…">
+            Set the new password
+          </AuthSubmit>
         </form>
       )}
       <BackToSignIn />

@@ -1,8 +1,8 @@
 import { useState, type FormEvent } from 'react';
-import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
+import { Notice } from '../../../components/ui/primitives';
 import { ApiError } from '../../../lib/apiClient';
 import { useRequestPasswordReset } from '../api/requestPasswordReset';
-import { AuthFrame, BackToSignIn } from '../components/AuthFrame';
+import { AuthField, AuthFrame, AuthSubmit, BackToSignIn } from '../components/AuthFrame';
 
 const fieldError = (e: unknown, field: string) =>
   e instanceof ApiError ? ((e.details as { fields?: { field: string; message: string }[] } | undefined)?.fields?.find((f) => f.field === field)?.message ?? null) : null;
@@ -26,12 +26,10 @@ export function ResetRequestPage() {
         <form onSubmit={submit} className="space-y-4">
           <p className="text-sm text-muted">Give the e-mail address of your account and Starveil will send a link to choose a new password.</p>
           {ask.error && !fieldError(ask.error, 'email') && <Notice tone="bad">{ask.error.message}</Notice>}
-          <Field label="E-mail" error={fieldError(ask.error, 'email')}>
-            <TextInput name="email" type="email" autoComplete="username" required value={email} onChange={(e) => setEmail(e.target.value)} />
-          </Field>
-          <Button type="submit" className="w-full justify-center" disabled={ask.isPending}>
-            {ask.isPending ? 'Sending…' : 'Send the link'}
-          </Button>
+          <AuthField label="E-mail" error={fieldError(ask.error, 'email')} name="email" type="email" autoComplete="username" required value={email} onValue={setEmail} />
+          <AuthSubmit pending={ask.isPending} busy="Sending…">
+            Send the link
+          </AuthSubmit>
         </form>
       )}
       <BackToSignIn />

@@ -1,8 +1,8 @@
 import { useState, type FormEvent } from 'react';
 import { Link, Navigate, useLocation, useNavigate } from 'react-router-dom';
-import { Button, Field, Notice, TextInput } from '../../../components/ui/primitives';
+import { Notice } from '../../../components/ui/primitives';
 import { useLogin } from '../api/login';
-import { AUTH_CARD, AuthFrame } from '../components/AuthFrame';
+import { AUTH_CARD, AuthField, AuthFrame, AuthSubmit } from '../components/AuthFrame';
 import { useMe } from '../../../lib/api/me';
 
 export function SignInPage() {
@@ -26,15 +26,11 @@ export function SignInPage() {
       <form onSubmit={submit} className={AUTH_CARD} aria-label="Sign in">
         <h1 className="text-lg font-semibold text-night">Sign in</h1>
         {login.error && <Notice tone="bad">{login.error.message}</Notice>}
-        <Field label="E-mail">
-          <TextInput name="email" type="email" autoComplete="username" required value={email} onChange={(e) => setEmail(e.target.value)} />
-        </Field>
-        <Field label="Password">
-          <TextInput name="password" type="password" autoComplete="current-password" required value={password} onChange={(e) => setPassword(e.target.value)} />
-        </Field>
-        <Button type="submit" className="w-full justify-center" disabled={login.isPending}>
-          {login.isPending ? 'Signing in…' : 'Sign in'}
-        </Button>
+        <AuthField label="E-mail" name="email" type="email" autoComplete="username" required value={email} onValue={setEmail} />
+        <AuthField label="Password" name="password" type="password" autoComplete="current-password" required value={password} onValue={setPassword} />
+        <AuthSubmit pending={login.isPending} busy="Signing in…">
+          Sign in
+        </AuthSubmit>
         <p className="text-center text-sm">
           <Link className="text-veil underline underline-offset-2" to="/forgot-password">Forgot your password?</Link>
         </p>

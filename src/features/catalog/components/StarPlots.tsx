@@ -1,6 +1,7 @@
 import * as Plot from '@observablehq/plot';
 import { useCallback, useMemo } from 'react';
 import { PlotFigure } from '../../../components/ui/PlotFigure';
+import { PLOT_FONT_FAMILY, squarePlot } from '../../../lib/plot';
 import type { CombinedValue, StarMeasurement } from '../types';
 
 /** Band colours: Starveil's own, ordered blue to red like the bands. */
@@ -9,7 +10,7 @@ const BANDS = Object.keys(BAND_COLOURS);
 const NIGHT = '#13183a';
 const AMBER = '#f2b544';
 
-const STYLE = { fontFamily: 'Inter, ui-sans-serif, system-ui, sans-serif', fontSize: '12px', background: 'transparent', color: '#1b1f33' };
+const STYLE = { fontFamily: PLOT_FONT_FAMILY, fontSize: '12px', background: 'transparent', color: '#1b1f33' };
 
 function bandScale(bands: string[]) {
   const domain = BANDS.filter((b) => bands.includes(b)).concat(bands.filter((b) => !BANDS.includes(b)));
@@ -49,10 +50,7 @@ export function QuPlanePlot({ measurements, combined }: { measurements: StarMeas
       const [qDomain, uDomain] = quDomains(measurements, combined);
       const bands = [...new Set([...measurements.map((m) => m.band), ...combined.map((c) => c.band)])];
       const colour = bandScale(bands);
-      const w = Math.min(width, 460);
-      return Plot.plot({
-        width: w,
-        height: w,
+      return squarePlot(width, {
         marginLeft: 78,
         marginBottom: 44,
         style: STYLE,

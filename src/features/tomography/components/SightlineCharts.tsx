@@ -1,4 +1,4 @@
-import { useCallback, useMemo } from 'react';
+import { useCallback, useMemo, type ComponentProps, type ReactNode } from 'react';
 import { Card } from '../../../components/ui/primitives';
 import { chartData, CHART_COLOURS, fractionAngleChart, quPlaneChart, stokesChart } from '../sightline/charts';
 import { distanceDomain } from '../sightline/steps';
@@ -26,6 +26,21 @@ function Key({ showMeans }: { showMeans?: boolean }) {
   );
 }
 
+type Chart = ComponentProps<typeof PlotFigure>;
+
+/** A card with two charts stacked on the same distance axis, and what explains them below. */
+function ChartPairCard({ title, upper, lower, children }: { title: string; upper: Chart; lower: Chart; children: ReactNode }) {
+  return (
+    <Card title={title}>
+      <div className="space-y-2">
+        <PlotFigure {...upper} />
+        <PlotFigure {...lower} />
+      </div>
+      {children}
+    </Card>
+  );
+}
+
 /** Stokes q and u, p and θ against distance, and the q–u plane of one sightline. */
 export function SightlineCharts({ sightline, frame }: { sightline: Sightline; frame: CoordSys }) {
   const data = useMemo(() => chartData(sightline, distanceDomain(sightline), frame), [sightline, frame]);
@@ -37,21 +52,21 @@ export function SightlineCharts({ sightline, frame }: { sightline: Sightline; fr
   const foreground = sightline.layers.some((l) => l.kind === 'foreground');
   return (
     <div className="space-y-6">
-      <Card title="Stokes q and u against distance">
-        <div className="space-y-2">
-          <PlotFigure make={q} testId="chart-q" label="Stokes q against distance" />
-          <PlotFigure make={u} testId="chart-u" label="Stokes u against distance" />
-        </div>
+      <ChartPairCard
+        title="Stokes q and u against distance"
+        upper={{ make: q, testId: 'chart-q', label: 'Stokes q against distance' }}
+        lower={{ make: u, testId: 'chart-u', label: 'Stokes u against distance' }}
+      >
         <Key showMeans={foreground} />
-      </Card>
+      </ChartPairCard>
       <div className="grid gap-6 lg:grid-cols-[3fr_2fr]">
-        <Card title="Polarization fraction and angle against distance">
-          <div className="space-y-2">
-            <PlotFigure make={p} testId="chart-p" label="Polarization fraction against distance" />
-            <PlotFigure make={theta} testId="chart-theta" label="Polarization angle against distance" />
-          </div>
+        <ChartPairCard
+          title="Polarization fraction and angle against distance"
+          upper={{ make: p, testId: 'chart-p', label: 'Polarization fraction against distance' }}
+          lower={{ make: theta, testId: 'chart-theta', label: 'Polarization angle against distance' }}
+        >
           <p className="mt-2 text-xs text-muted">Bars: p ± σp and θ ± σθ by linear propagation (unreliable below p/σp ≈ 5). Orange: p and θ of each segment’s mean (q̄, ū); an unpolarized foreground has no angle to draw.</p>
-        </Card>
+        </ChartPairCard>
         <Card title="q–u plane">
           <PlotFigure make={qu} testId="chart-qu" label="q–u plane" />
           <p className="mt-2 text-xs text-muted">Stars coloured by distance. Diamonds: each segment’s mean, numbered by the layer that starts it (fg: unpolarized foreground); arrows: each layer’s own contribution (Δq, Δu).</p>

@@ -3,6 +3,7 @@
  * degrees (IAU, the run's frame), distances in parsec on a logarithmic axis.
  */
 import * as Plot from '@observablehq/plot';
+import { PLOT_FONT_FAMILY, squarePlot } from '../../../lib/plot';
 import type { Sightline } from '../types';
 import { layerBands, layerNumber, segmentSteps, starPoints, stepLine, type DistanceBand, type Step, type StarPoint } from './steps';
 
@@ -15,7 +16,7 @@ export const CHART_COLOURS = {
   zero: '#8c8fa3',
 };
 
-const FONT = { fontFamily: 'Inter, ui-sans-serif, system-ui, sans-serif', fontSize: '11px', overflow: 'visible' } as const;
+const FONT = { fontFamily: PLOT_FONT_FAMILY, fontSize: '11px', overflow: 'visible' } as const;
 
 export interface SightlineChartData {
   stars: StarPoint[];
@@ -114,10 +115,7 @@ export function quPlaneChart(d: SightlineChartData, width: number): SVGSVGElemen
   const extent = Math.max(0.1, ...d.stars.flatMap((s) => [Math.abs(s.q) + s.qErr, Math.abs(s.u) + s.uErr]), ...d.steps.flatMap((s) => [Math.abs(s.q), Math.abs(s.u)])) * 1.08;
   // each layer's own contribution: from the mean in front of it (the origin for a foreground layer) to the mean behind it
   const pairs = d.steps.flatMap((s, i) => (s.layer === null ? [] : [{ x1: i === 0 ? 0 : d.steps[i - 1].q, y1: i === 0 ? 0 : d.steps[i - 1].u, x2: s.q, y2: s.u }]));
-  const side = Math.min(width, 460);
-  return Plot.plot({
-    width: side,
-    height: side,
+  return squarePlot(width, {
     marginLeft: 56,
     marginBottom: 40,
     marginTop: 14,

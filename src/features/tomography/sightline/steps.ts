@@ -8,22 +8,18 @@
  * segment than layers; otherwise segment k belongs to layer k, the first being a 'foreground'
  * layer nearer than every star.
  */
-import { propagateStokesErrors } from '@science/polarization';
+import { propagateStokesErrors, type FractionAngle, type StokesWithErrors } from '@science/polarization';
 import type { Sightline, TomographyStar } from '../types';
 
-export interface Step {
+/** q, u, σq, σu, p and σp in per cent; θ and σθ in degrees (linear propagation, @science/polarization). */
+export type PercentStokes = StokesWithErrors & FractionAngle;
+
+export interface Step extends PercentStokes {
   segment: number;
   /** the layer whose near edge starts this step; null for the unpolarized foreground */
   layer: number | null;
   fromPc: number;
   toPc: number;
-  /** per cent */
-  q: number;
-  u: number;
-  qErr: number;
-  uErr: number;
-  p: number;
-  thetaDeg: number;
 }
 
 export interface DistanceBand {
@@ -35,47 +31,34 @@ export interface DistanceBand {
   hiPc: number;
 }
 
-export interface StarPoint {
+export interface StarPoint extends PercentStokes {
   id: string;
   distancePc: number;
   distanceLoPc: number;
   distanceHiPc: number;
-  /** per cent */
-  q: number;
-  u: number;
-  qErr: number;
-  uErr: number;
-  p: number;
-  pErr: number;
-  thetaDeg: number;
-  thetaErrDeg: number;
   /** false: parallax too poor to place a break (drawn faint; it did not decide where a layer is) */
   placed: boolean;
 }
 
 const PCT = 100;
 
+/** Stokes fractions with their errors as per cent, with p, σp, θ, σθ propagated from them. */
+function percentStokes(q: number, u: number, qErr: number, uErr: number): PercentStokes {
+  const f = propagateStokesErrors(q, u, qErr, uErr);
+  return { q: PCT * q, u: PCT * u, qErr: PCT * qErr, uErr: PCT * uErr, p: PCT * f.p, pErr: PCT * f.pErr, thetaDeg: f.thetaDeg, thetaErrDeg: f.thetaErrDeg };
+}
+
 /** Stars with q, u (and p, σp) in per cent and θ, σθ in degrees by linear propagation. */
 export function starPoints(stars: TomographyStar[], notPlaced: string[] = []): StarPoint[] {
   const skip = new Set(notPlaced);
-  return stars.map((s) => {
-    const f = propagateStokesErrors(s.q, s.u, s.qErr, s.uErr);
-    return {
-      id: s.id,
-      distancePc: s.distancePc,
-      distanceLoPc: s.distanceLoPc,
-      distanceHiPc: s.distanceHiPc,
-      q: PCT * s.q,
-      u: PCT * s.u,
-      qErr: PCT * s.qErr,
-      uErr: PCT * s.uErr,
-      p: PCT * f.p,
-      pErr: PCT * f.pErr,
-      thetaDeg: f.thetaDeg,
-      thetaErrDeg: f.thetaErrDeg,
-      placed: !skip.has(s.id),
-    };
-  });
+  return stars.map((s) => ({
+    id: s.id,
+    distancePc: s.distancePc,
+    distanceLoPc: s.distanceLoPc,
+    distanceHiPc: s.distanceHiPc,
+    ...percentStokes(s.q, s.u, s.qErr, s.uErr),
+    placed: !skip.has(s.id),
+  }));
 }
 
 /** Distance range of the plots [pc]: every star's 16–84 % range and every layer's, with a margin (log axis, so > 0). */
@@ -96,19 +79,13 @@ export function segmentSteps(s: Sightline, domain: [number, number]): Step[] {
     return layer ? Math.max(domain[0], layer.distancePc) : domain[0];
   };
   return s.segments.map((g, i) => {
-    const f = propagateStokesErrors(g.meanQ, g.meanU, g.meanQErr, g.meanUErr);
     const layer = i - offset;
     return {
       segment: i,
       layer: layer >= 0 ? layer : null,
       fromPc: startOf(i),
       toPc: i + 1 < s.segments.length ? startOf(i + 1) : domain[1],
-      q: PCT * g.meanQ,
-      u: PCT * g.meanU,
-      qErr: PCT * g.meanQErr,
-      uErr: PCT * g.meanUErr,
-      p: PCT * f.p,
-      thetaDeg: f.thetaDeg,
+      ...percentStokes(g.meanQ, g.meanU, g.meanQErr, g.meanUErr),
     };
   });
 }
