@@ -1,15 +1,25 @@
 /** The one small API client: every server call goes through here (and through TanStack Query above it). */
 import type { ErrorBody } from './api/types';
 
-/** An error answer ({"error": {code, message, details?}}, the document's responses/error) with its HTTP status. */
+type Problem = { code: string; message: string; details?: unknown };
+
+/** An error answer ({"error": {code, message, details?}}, the document's responses/error) with its HTTP status (0: no answer). */
 export class ApiError extends Error {
+  readonly code: string;
+  readonly details?: unknown;
   constructor(
     readonly status: number,
-    readonly code: string,
-    message: string,
-    readonly details?: unknown,
+    problem: Problem,
   ) {
-    super(message);
+    super(problem.message);
+    this.code = problem.code;
+    this.details = problem.details;
+  }
+
+  /** From a failed answer's parsed body; `fallback` is the message when the body names no problem. */
+  static fromAnswer(status: number, body: unknown, fallback: string): ApiError {
+    const e: Partial<ErrorBody['error']> = (body as Partial<ErrorBody> | undefined)?.error ?? {};
+    return new ApiError(status, { code: e.code ?? 'error', message: e.message ?? fallback, details: e.details });
   }
 }
 
@@ -27,10 +37,7 @@ async function request<T>(method: string, path: string, body?: Body, init: Reque
   if (res.status === 204) return undefined as T;
   const text = await res.text();
   const data = text ? JSON.parse(text) : undefined;
-  if (!res.ok) {
-    const e: Partial<ErrorBody['error']> = (data as Partial<ErrorBody> | undefined)?.error ?? {};
-    throw new ApiError(res.status, e.code ?? 'error', e.message ?? `${res.status} ${res.statusText}`, e.details);
-  }
+  if (!res.ok) throw ApiError.fromAnswer(res.status, data, `${res.status} ${res.statusText}`);
   return data as T;
 }
 

@@ -41,21 +41,20 @@ export function sendMultipart<T>(path: string, form: FormData, opts: UploadOptio
     xhr.upload.onprogress = (e) => opts.onProgress?.({ sentBytes: e.loaded, totalBytes: e.lengthComputable ? e.total : null });
 
     xhr.onload = () => {
-      const data = parseJson(xhr.responseText) as { error?: { code?: string; message?: string; details?: unknown } } | undefined;
+      const data = parseJson(xhr.responseText);
       if (xhr.status >= 200 && xhr.status < 300) {
         resolve({ status: xhr.status, data: data as T });
         return;
       }
-      const e = data?.error ?? {};
-      reject(new ApiError(xhr.status, e.code ?? 'error', e.message ?? `The server answered ${xhr.status} ${xhr.statusText}`.trim(), e.details));
+      reject(ApiError.fromAnswer(xhr.status, data, `The server answered ${xhr.status} ${xhr.statusText}`.trim()));
     };
-    xhr.onerror = () => reject(new ApiError(0, 'network', 'The upload did not reach the server. Check the connection and try again.'));
-    xhr.ontimeout = () => reject(new ApiError(0, 'timeout', 'The upload took too long and was stopped.'));
-    xhr.onabort = () => reject(new ApiError(0, 'aborted', 'The upload was cancelled.'));
+    xhr.onerror = () => reject(new ApiError(0, { code: 'network', message: 'The upload did not reach the server. Check the connection and try again.' }));
+    xhr.ontimeout = () => reject(new ApiError(0, { code: 'timeout', message: 'The upload took too long and was stopped.' }));
+    xhr.onabort = () => reject(new ApiError(0, { code: 'aborted', message: 'The upload was cancelled.' }));
 
     if (opts.signal) {
       if (opts.signal.aborted) {
-        reject(new ApiError(0, 'aborted', 'The upload was cancelled.'));
+        reject(new ApiError(0, { code: 'aborted', message: 'The upload was cancelled.' }));
         return;
       }
       opts.signal.addEventListener('abort', () => xhr.abort(), { once: true });

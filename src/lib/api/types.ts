@@ -133,10 +133,12 @@ export type RunCells = S['responses.tomography-cells'];
 export type SkyCell = RunCells['cells'][number];
 export type SightlineAnswer = S['responses.sightlines'];
 export type Sightline = S['responses.sightline'];
-export type TomographyLayer = S['responses.sightline.layer'];
-export type TomographyJump = S['responses.sightline.jump'];
-export type TomographySegment = S['responses.sightline.segment'];
-export type TomographyStar = S['responses.sightline.star'];
+/** The parts of a sightline answer (the $defs of responses/sightline). */
+type SightlinePart<K extends 'layer' | 'jump' | 'segment' | 'star'> = S[`responses.sightline.${K}`];
+export type TomographyLayer = SightlinePart<'layer'>;
+export type TomographyJump = SightlinePart<'jump'>;
+export type TomographySegment = SightlinePart<'segment'>;
+export type TomographyStar = SightlinePart<'star'>;
 export type MaskSummary = S['responses.mask'];
 export type MaskCell = MaskSummary['cells'][number];
 export type CellCriteria = S['responses.cell-criteria'];
