@@ -1,5 +1,5 @@
-// A Starveil server in a child process of its own (benchmarks measure it from outside), and a
-// small cookie-keeping HTTP client.
+// A Starveil server in a child process of its own (benchmarks measure it from outside; tests kill
+// and restart it), and a small cookie-keeping HTTP client. No test framework here: bench/ runs alone.
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import net from 'node:net';
@@ -12,10 +12,12 @@ export interface ServerProcess {
   rssMb: () => number;
   /** highest RSS sampled every 100 ms since start, MB */
   peakRssMb: () => number;
+  /** the last 20,000 characters the server wrote (stdout and stderr) */
+  log: () => string;
   stop: () => Promise<void>;
 }
 
-async function freePort(): Promise<number> {
+export async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
     const s = net.createServer();
     s.listen(0, () => {
@@ -36,11 +38,20 @@ function rssOf(pid: number): number {
   }
 }
 
-export async function startServer(dataDir: string, env: Record<string, string> = {}): Promise<ServerProcess> {
-  const port = await freePort();
+/** The benchmarks' server: development mode, uploads up to 2 GiB, sign-ins not rate-limited in practice. */
+export function startServer(dataDir: string, env: Record<string, string> = {}): Promise<ServerProcess> {
+  return spawnServer({ dataDir, env: { NODE_ENV: 'development', UPLOAD_MAX_BYTES: String(2 ** 31), LOGIN_RATE_MAX: '1000', ...env } });
+}
+
+/**
+ * `tsx server/index.ts` on `port` (default: a free one) with its data in `dataDir` and no built
+ * client, once /health answers (at most 180 s); `env` is added to this process's environment.
+ */
+export async function spawnServer({ dataDir, env = {}, port }: { dataDir: string; env?: Record<string, string>; port?: number }): Promise<ServerProcess> {
+  port ??= await freePort();
   const base = `http://127.0.0.1:${port}`;
   const child = spawn(process.execPath, ['--import', 'tsx', path.resolve('server/index.ts')], {
-    env: { ...process.env, NODE_ENV: 'development', PORT: String(port), STARVEIL_DATA_DIR: dataDir, STARVEIL_DIST: path.join(dataDir, 'no-dist'), PUBLIC_URL: base, UPLOAD_MAX_BYTES: String(2 ** 31), LOGIN_RATE_MAX: '1000', ...env },
+    env: { ...process.env, PORT: String(port), STARVEIL_DATA_DIR: dataDir, STARVEIL_DIST: path.join(dataDir, 'no-dist'), PUBLIC_URL: base, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let log = '';
@@ -48,6 +59,7 @@ export async function startServer(dataDir: string, env: Record<string, string> =
   child.stderr!.on('data', (d) => (log = (log + d).slice(-20000)));
   let peak = 0;
   const sampler = setInterval(() => (peak = Math.max(peak, rssOf(child.pid!))), 100);
+  sampler.unref();
   const end = Date.now() + 180_000;
   for (;;) {
     if (child.exitCode !== null) throw new Error(`the server exited (${child.exitCode}):\n${log}`);
@@ -64,6 +76,7 @@ export async function startServer(dataDir: string, env: Record<string, string> =
     child,
     rssMb: () => rssOf(child.pid!),
     peakRssMb: () => peak,
+    log: () => log,
     stop: async () => {
       clearInterval(sampler);
       if (child.exitCode === null) {

@@ -1,32 +1,20 @@
 // The server as a separate process: a SIGKILL in the middle of a chunked check, then a restart;
 // and a broken session store that answers 503 instead of ending the process.
-import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
+import { spawnServer, type ServerProcess } from '../../bench/server-process.js';
 
 const HEADER = 'name,source_id,ra_deg,dec_deg,band,q,u,q_err,u_err,parallax_mas,parallax_err_mas,mjd,instrument';
 const ROWS = 60_000;
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-crash-'));
-let port = 0;
+const ENV = { NODE_ENV: 'test', SESSION_SECRET: 'crash-test-secret-0123456789' };
+let port: number | undefined;
 let base = '';
-let child: ChildProcess | null = null;
-let log = '';
-
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const s = net.createServer();
-    s.listen(0, () => {
-      const p = (s.address() as net.AddressInfo).port;
-      s.close(() => resolve(p));
-    });
-    s.on('error', reject);
-  });
-}
+let server: ServerProcess | null = null;
 
 async function waitFor<T>(what: string, probe: () => Promise<T | undefined | false>, timeoutMs = 240_000): Promise<T> {
   const end = Date.now() + timeoutMs;
@@ -40,18 +28,14 @@ async function waitFor<T>(what: string, probe: () => Promise<T | undefined | fal
     }
     await new Promise((r) => setTimeout(r, 100));
   }
-  throw new Error(`timed out waiting for ${what} (${String(last ?? '')})\n${log.slice(-3000)}`);
+  throw new Error(`timed out waiting for ${what} (${String(last ?? '')})\n${(server?.log() ?? '').slice(-3000)}`);
 }
 
+/** The server on the same port each time (the first start picks a free one), once /health answers. */
 async function startServer(): Promise<void> {
-  child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    cwd: process.cwd(),
-    env: { ...process.env, NODE_ENV: 'test', PORT: String(port), STARVEIL_DATA_DIR: dir, STARVEIL_DIST: path.join(dir, 'no-dist'), PUBLIC_URL: base, SESSION_SECRET: 'crash-test-secret-0123456789' },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  child.stdout!.on('data', (d) => (log += d));
-  child.stderr!.on('data', (d) => (log += d));
-  await waitFor('the server to answer', async () => (await fetch(`${base}/api/v1/health`)).ok);
+  server = await spawnServer({ dataDir: dir, env: ENV, port });
+  base = server.base;
+  port = Number(new URL(base).port);
 }
 
 async function signIn(email: string): Promise<string> {
@@ -62,14 +46,11 @@ async function signIn(email: string): Promise<string> {
 
 const api = (cookie: string, p: string, init: RequestInit = {}) => fetch(`${base}/api/v1${p}`, { ...init, headers: { ...(init.headers ?? {}), cookie, origin: base } });
 
-beforeAll(async () => {
-  port = await freePort();
-  base = `http://127.0.0.1:${port}`;
-  await startServer();
-}, 300_000);
+beforeAll(startServer, 300_000);
 
 afterAll(async () => {
-  child?.kill('SIGKILL');
+  server?.child.kill('SIGKILL');
+  await server?.stop();
   fs.rmSync(dir, { recursive: true, force: true });
 });
 
@@ -95,8 +76,9 @@ describe('a SIGKILL in the middle of a chunked check', () => {
       return b.state === 'checking' && b.progress.rowsDone > 0 && b.progress.rowsDone < ROWS ? b : undefined;
     });
     expect(mid.progress.rowsTotal).toBe(ROWS);
-    child!.kill('SIGKILL');
-    await new Promise((r) => child!.once('exit', r));
+    server!.child.kill('SIGKILL');
+    await new Promise((r) => server!.child.once('exit', r));
+    await server!.stop();
 
     // partial rows are on disk, and the batch still says checking
     const raw = new Database(path.join(dir, 'starveil.sqlite'), { readonly: true });
@@ -158,13 +140,13 @@ describe('a broken session store', () => {
         expect(body.error.message).not.toMatch(/SQLITE|no such table/i);
       }
       expect((await fetch(`${base}/api/v1/health`)).status).toBe(200);
-      expect(child!.exitCode).toBeNull();
+      expect(server!.child.exitCode).toBeNull();
     } finally {
       raw.exec('ALTER TABLE sessions_away RENAME TO sessions');
       raw.close();
     }
     // the store is back: the same session works again
     expect((await api(cookie, '/me')).status).toBe(200);
-    expect(child!.exitCode).toBeNull();
+    expect(server!.child.exitCode).toBeNull();
   }, 120_000);
 });
