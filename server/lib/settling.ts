@@ -17,6 +17,9 @@ export interface Settle {
   changed: number;
   /** withdrawn ones restored (approving) or approved ones withdrawn (returning) so far */
   moved: number;
+  /** keyset cursors: the last measurement id changed in each step (each chunk seeks past it instead of scanning the rows done) */
+  afterPending?: number;
+  afterMoved?: number;
   startedAt: string;
 }
 

@@ -46,11 +46,12 @@ const targetOf = (d: Decision) => (d === 'approved' ? 'approved' : 'rejected');
 const movedFrom = (d: Decision) => (d === 'approved' ? 'withdrawn' : 'approved');
 const movedTo = (d: Decision) => (d === 'approved' ? 'approved' : 'withdrawn');
 
-async function changeChunk(trx: Knex.Transaction, batchId: number, d: Decision, actorId: number, from: 'pending' | 'moved', limit: number): Promise<number> {
+/** Change up to `limit` rows with id > afterId; returns how many and the last id changed. */
+async function changeChunk(trx: Knex.Transaction, batchId: number, d: Decision, actorId: number, from: 'pending' | 'moved', limit: number, afterId = 0): Promise<{ n: number; last: number }> {
   const fromState = from === 'pending' ? 'pending' : movedFrom(d);
   const toState = from === 'pending' ? targetOf(d) : movedTo(d);
-  const ids = (await trx('measurements').where({ batch_id: batchId, state: fromState }).orderBy('id').limit(limit).pluck('id')) as number[];
-  if (!ids.length) return 0;
+  const ids = (await trx('measurements').where({ batch_id: batchId, state: fromState }).where('id', '>', afterId).orderBy('id').limit(limit).pluck('id')) as number[];
+  if (!ids.length) return { n: 0, last: afterId };
   const now = new Date().toISOString();
   for (let i = 0; i < ids.length; i += 900) await trx('measurements').whereIn('id', ids.slice(i, i + 900)).update({ state: toState, version: trx.raw('version + 1'), updated_at: now, updated_by: actorId });
   await recordAudit(
@@ -63,7 +64,7 @@ async function changeChunk(trx: Knex.Transaction, batchId: number, d: Decision, 
           : { actorId, action: 'measurement.withdraw', entityType: 'measurement', entityId: id, before: { state: 'approved' }, after: { state: 'withdrawn' }, reason: `batch ${batchId} returned` },
     ),
   );
-  return ids.length;
+  return { n: ids.length, last: ids[ids.length - 1] };
 }
 
 /** The last step, in the caller's transaction: held counts, the batch's new state, its audit entry. */
@@ -97,8 +98,8 @@ export async function beginDecision(db: Knex, actorId: number, batchId: number, 
     const moved = await n(movedFrom(decision));
     const s: Settle = { decision, actorId, note, from: b.state, total: pending + moved, changed: 0, moved: 0, startedAt: new Date().toISOString() };
     if (s.total <= syncRows) {
-      s.changed = await changeChunk(trx, batchId, decision, actorId, 'pending', Number.MAX_SAFE_INTEGER);
-      s.moved = await changeChunk(trx, batchId, decision, actorId, 'moved', Number.MAX_SAFE_INTEGER);
+      s.changed = (await changeChunk(trx, batchId, decision, actorId, 'pending', Number.MAX_SAFE_INTEGER)).n;
+      s.moved = (await changeChunk(trx, batchId, decision, actorId, 'moved', Number.MAX_SAFE_INTEGER)).n;
       return { done: true as const, batch: b, counts: await flip(trx, b, s) };
     }
     await trx('batches').where({ id: batchId }).update({ settling: decision, settle_json: JSON.stringify(s), updated_at: new Date().toISOString() });
@@ -118,11 +119,16 @@ export async function settleChunks(db: Knex, batchId: number, onProgress: (done:
       const b = await trx('batches').where({ id: batchId }).first('id', 'state', 'settling', 'settle_json');
       if (!b?.settling || !b.settle_json) return { end: true as const, counts: null };
       const s = JSON.parse(b.settle_json) as Settle;
-      let n = await changeChunk(trx, batchId, s.decision, s.actorId, 'pending', chunk);
-      if (n) s.changed += n;
-      else {
-        n = await changeChunk(trx, batchId, s.decision, s.actorId, 'moved', chunk);
+      let r = await changeChunk(trx, batchId, s.decision, s.actorId, 'pending', chunk, s.afterPending ?? 0);
+      let n = r.n;
+      if (n) {
+        s.changed += n;
+        s.afterPending = r.last;
+      } else {
+        r = await changeChunk(trx, batchId, s.decision, s.actorId, 'moved', chunk, s.afterMoved ?? 0);
+        n = r.n;
         s.moved += n;
+        s.afterMoved = r.last;
       }
       if (!n) return { end: true as const, counts: await flip(trx, b, s) };
       await trx('batches').where({ id: batchId }).update({ settle_json: JSON.stringify(s) });
