@@ -5,7 +5,7 @@ import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { DIST, launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer, signInPage } from '../helpers/browser.js';
+import { DIST, launchBrowser, mustRunBrowserTests, pageApiGet, SCREENSHOTS, signInPage, useLiveBrowser } from '../helpers/browser.js';
 import { DEMO, makeTestApp } from '../helpers/app.js';
 
 const run = mustRunBrowserTests();
@@ -30,35 +30,20 @@ const signIn = (browser: Browser, url: string, role: keyof typeof DEMO) => signI
 
 const navLinks = (page: Page) => page.getByRole('navigation', { name: 'Main' }).getByRole('link').allTextContents();
 
-/** GET an API path with the page's own session cookie. */
-function apiGet<T>(page: Page, p: string): Promise<T> {
-  return page.evaluate(async (u) => {
-    const res = await fetch(`/api/v1${u}`, { credentials: 'same-origin' });
-    if (!res.ok) throw new Error(`${u}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }, p) as Promise<T>;
-}
-
 const figure = async (page: Page, key: string) => Number(((await page.getByTestId(`count-${key}`).textContent()) ?? '').replace(/,/g, ''));
 
 describe.runIf(run)('CSV intake in a real browser', () => {
-  let live: LiveServer;
-  let browser: Browser;
+  const env = useLiveBrowser();
   let tmp: string;
   beforeAll(async () => {
-    live = await startLiveServer();
-    browser = await launchBrowser();
-    fs.mkdirSync(SCREENSHOTS, { recursive: true });
     tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-intake-e2e-'));
   });
   afterAll(async () => {
-    await browser?.close();
-    await live?.close();
     if (tmp) fs.rmSync(tmp, { recursive: true, force: true });
   });
 
   it('an observer uploads the messy night, settles the ambiguous RA column and reads the report', async () => {
-    const { ctx, page } = await signIn(browser, live.url, 'observer');
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'observer');
     const links = await navLinks(page);
     expect(links).toContain('Upload');
     expect(links).toContain('My batches');
@@ -115,7 +100,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     await expect.poll(() => page.getByTestId('batch-state').getAttribute('data-state'), { timeout: 20_000 }).toBe('awaiting_review');
 
     // Every figure on the page is the server's.
-    const batch = await apiGet<ApiBatch>(page, `/batches/${id}`);
+    const batch = await pageApiGet<ApiBatch>(page, `/batches/${id}`);
     expect(batch.state).toBe('awaiting_review');
     for (const key of ['rows', 'accepted', 'rejected', 'duplicates', 'conflicts', 'ambiguous', 'newStars', 'matchedStars']) {
       expect(await figure(page, key), key).toBe(batch.counts[key]);
@@ -129,7 +114,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     // The rejected row, found in the file independently of the server, with its column named.
     const badLine = fileLines.findIndex((l) => l.startsWith('KRS J999999.9')) + 1;
     expect(badLine).toBeGreaterThan(1);
-    const rejected = await apiGet<{ rows: ApiRow[] }>(page, `/batches/${id}/rows?state=rejected`);
+    const rejected = await pageApiGet<{ rows: ApiRow[] }>(page, `/batches/${id}/rows?state=rejected`);
     const bad = rejected.rows.find((r) => r.line === badLine);
     expect(bad, `line ${badLine} is rejected`).toBeDefined();
     expect(bad!.errors.length).toBeGreaterThan(0);
@@ -155,7 +140,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     await ctx.close();
 
     // A curator's navigation differs: all batches, with the sender's name.
-    const cur = await signIn(browser, live.url, 'curator');
+    const cur = await signIn(env.browser, env.live.url, 'curator');
     const curatorLinks = await navLinks(cur.page);
     expect(curatorLinks).toContain('Batches');
     expect(curatorLinks).not.toContain('My batches');
@@ -168,7 +153,7 @@ describe.runIf(run)('CSV intake in a real browser', () => {
     await cur.ctx.close();
 
     // A modeler sees neither page.
-    const mod = await signIn(browser, live.url, 'modeler');
+    const mod = await signIn(env.browser, env.live.url, 'modeler');
     const modelerLinks = await navLinks(mod.page);
     expect(modelerLinks).not.toContain('Upload');
     expect(modelerLinks).not.toContain('Batches');
@@ -177,8 +162,8 @@ describe.runIf(run)('CSV intake in a real browser', () => {
   });
 
   it('shows the server’s reason when a file is refused', async () => {
-    const { ctx, page } = await signIn(browser, live.url, 'observer');
-    await page.goto(`${live.url}/upload`);
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'observer');
+    await page.goto(`${env.live.url}/upload`);
     const headerOnly = path.join(tmp, 'header-only.csv');
     fs.writeFileSync(headerOnly, 'name,ra_deg,dec_deg,band,q,u,q_err,u_err\n');
     await page.getByLabel('CSV file').setInputFiles(headerOnly);
@@ -195,9 +180,9 @@ describe.runIf(run)('CSV intake in a real browser', () => {
   });
 
   it('the column guide lists the server’s columns and their synonyms', async () => {
-    const { ctx, page } = await signIn(browser, live.url, 'observer');
-    await page.goto(`${live.url}/upload/columns`);
-    const cols = await apiGet<{ columns: { name: string; synonyms: string[] }[] }>(page, '/intake/columns');
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'observer');
+    await page.goto(`${env.live.url}/upload/columns`);
+    const cols = await pageApiGet<{ columns: { name: string; synonyms: string[] }[] }>(page, '/intake/columns');
     const table = page.getByRole('table', { name: 'Columns Starveil reads' });
     await table.waitFor();
     expect(await table.locator('tbody tr').count()).toBe(cols.columns.length);
@@ -262,7 +247,7 @@ describe.runIf(run)('a large batch checked in the background', () => {
     await page.waitForURL(new RegExp(`/batches/${created.id}$`), { timeout: 30_000 });
     expect(polls.length).toBeGreaterThan(0); // the page asked for progress before leaving
     await expect.poll(() => page.getByTestId('batch-state').getAttribute('data-state')).toBe('awaiting_review');
-    const batch = await apiGet<ApiBatch>(page, `/batches/${created.id}`);
+    const batch = await pageApiGet<ApiBatch>(page, `/batches/${created.id}`);
     const lines = fs.readFileSync(large, 'utf8').split(/\r?\n/).filter((l) => l.trim() !== '').length - 1;
     expect(batch.counts.rows).toBe(lines);
     expect(await figure(page, 'rows')).toBe(lines);

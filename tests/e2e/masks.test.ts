@@ -7,9 +7,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { execFileSync, spawnSync } from 'node:child_process';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, signInPage, type LiveServer } from '../helpers/browser.js';
+import { describe, expect, it } from 'vitest';
+import { mustRunBrowserTests, SCREENSHOTS, signInPage, useLiveBrowser } from '../helpers/browser.js';
 
 const PYTHON = '/usr/bin/python3';
 const READER = path.resolve('tests/reference/read_mask.py');
@@ -17,20 +16,11 @@ const HAVE_HEALPY = spawnSync(PYTHON, ['-c', 'import healpy, astropy, numpy'], {
 const run = mustRunBrowserTests() && (HAVE_HEALPY || process.env.CI === 'true');
 
 describe.runIf(run)('masks page', () => {
-  let live: LiveServer;
-  let browser: Browser;
-  beforeAll(async () => {
-    live = await startLiveServer({ tomography: true });
-    browser = await launchBrowser();
-  }, 240_000);
-  afterAll(async () => {
-    await browser?.close();
-    await live?.close();
-  });
+  const env = useLiveBrowser({ tomography: true, startTimeoutMs: 240_000 });
 
   it('criteria apply as they change; the FITS link downloads the mask of the criteria on the form', async () => {
-    const { ctx, page } = await signInPage(browser, live.url, 'modeler', { width: 1400, height: 1000 });
-    await page.goto(`${live.url}/masks`);
+    const { ctx, page } = await signInPage(env.browser, env.live.url, 'modeler', { width: 1400, height: 1000 });
+    await page.goto(`${env.live.url}/masks`);
     const counts = page.getByTestId('mask-counts');
     await expect.poll(() => counts.getAttribute('data-query'), { timeout: 60_000 }).toBe('minLayers=2');
 
@@ -48,7 +38,7 @@ describe.runIf(run)('masks page', () => {
     await page.screenshot({ path: path.join(SCREENSHOTS, 'masks-criteria-applied.png'), fullPage: true });
 
     const [download] = await Promise.all([page.waitForEvent('download', { timeout: 60_000 }), fits.click()]);
-    const file = path.join(live.t.dir, 'mask-from-page.fits');
+    const file = path.join(env.live.t.dir, 'mask-from-page.fits');
     await download.saveAs(file);
     const m = JSON.parse(execFileSync(PYTHON, [READER, 'map', file], { maxBuffer: 256 * 1024 * 1024 }).toString()) as {
       nside: number; header: Record<string, string | number>; values: Record<string, number[]>; unseen: number;

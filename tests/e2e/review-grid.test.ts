@@ -1,46 +1,26 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Locator, Page } from 'playwright-core';
-import { launchBrowser, mustRunBrowserTests, SCREENSHOTS, signInPage, startLiveServer, type LiveServer } from '../helpers/browser.js';
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { Locator, Page } from 'playwright-core';
+import { mustRunBrowserTests, pageApi, SCREENSHOTS, signInPage, useLiveBrowser } from '../helpers/browser.js';
 
 const run = mustRunBrowserTests();
-
-/** Call the API with the page's own session cookie. */
-function api<T>(page: Page, method: string, p: string, body?: unknown): Promise<{ status: number; body: T }> {
-  return page.evaluate(
-    async ([m, u, b]) => {
-      const res = await fetch(`/api/v1${u}`, { method: m as string, credentials: 'same-origin', headers: b === undefined ? undefined : { 'Content-Type': 'application/json' }, body: b === undefined ? undefined : JSON.stringify(b) });
-      const text = await res.text();
-      return { status: res.status, body: text ? JSON.parse(text) : null };
-    },
-    [method, p, body] as const,
-  ) as Promise<{ status: number; body: T }>;
-}
 
 const grid = (page: Page) => page.getByTestId('review-grid');
 const cell = (page: Page, line: number, col: string): Locator => grid(page).locator(`[role="row"][data-line="${line}"] [role="gridcell"][data-col="${col}"]`);
 const box = async (l: Locator) => (await l.boundingBox())!;
 
 describe.runIf(run)('the review table keeps its bearings (real browser)', () => {
-  let live: LiveServer;
-  let browser: Browser;
+  const env = useLiveBrowser();
   let batchId: number;
   beforeAll(async () => {
-    live = await startLiveServer();
-    browser = await launchBrowser();
-    fs.mkdirSync(SCREENSHOTS, { recursive: true });
-    batchId = (await live.t.db('batches').where({ filename: 'kestrel-standards-V.csv' }).first()).id;
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await live?.close();
+    batchId = (await env.live.t.db('batches').where({ filename: 'kestrel-standards-V.csv' }).first()).id;
   });
 
   it('shows the night’s calibration; a curator applies it once and the angles move by the zero-point', async () => {
-    const { ctx, page } = await signInPage(browser, live.url, 'curator', { width: 1400, height: 1000 });
-    const line7 = (await api<{ rows: { line: number; theta_deg: number }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 7)!;
-    await page.goto(`${live.url}/review/batches/${batchId}`);
+    const { ctx, page } = await signInPage(env.browser, env.live.url, 'curator', { width: 1400, height: 1000 });
+    const line7 = (await pageApi<{ rows: { line: number; theta_deg: number }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 7)!;
+    await page.goto(`${env.live.url}/review/batches/${batchId}`);
     const panel = page.getByTestId('calibration-panel');
     await panel.waitFor();
     const zp = (await panel.getByTestId('zero-point').textContent())!;
@@ -55,10 +35,10 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
     expect((await applied).status()).toBe(200);
     await panel.getByText(/Calibrated 16 rows/).waitFor();
     await page.getByTestId('revert-calibration').waitFor(); // applied: the button now reverts
-    const again = await api<{ error: { code: string } }>(page, 'POST', `/batches/${batchId}/calibration/apply`, {});
+    const again = await pageApi<{ error: { code: string } }>(page, 'POST', `/batches/${batchId}/calibration/apply`, {});
     expect(again.status).toBe(409);
-    const after = (await api<{ rows: { line: number; theta_deg: number }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 7)!;
-    const cal = (await api<{ calibrations: { zeroPointDeg: number; instrumentalQ: number }[] }>(page, 'GET', `/batches/${batchId}/calibration`)).body.calibrations[0];
+    const after = (await pageApi<{ rows: { line: number; theta_deg: number }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 7)!;
+    const cal = (await pageApi<{ calibrations: { zeroPointDeg: number; instrumentalQ: number }[] }>(page, 'GET', `/batches/${batchId}/calibration`)).body.calibrations[0];
     // θ moves by about −zero-point (the instrumental (q, u) of 0.2 % shifts a 1.7 % star's angle by a little more)
     const moved = ((after.theta_deg - line7.theta_deg + 270) % 180) - 90;
     expect(Math.abs(moved + cal.zeroPointDeg)).toBeLessThan(3);
@@ -66,8 +46,8 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
   });
 
   it('line, state and star stay in place while the table scrolls sideways', async () => {
-    const { ctx, page } = await signInPage(browser, live.url, 'curator', { width: 1100, height: 900 });
-    await page.goto(`${live.url}/review/batches/${batchId}`);
+    const { ctx, page } = await signInPage(env.browser, env.live.url, 'curator', { width: 1100, height: 900 });
+    await page.goto(`${env.live.url}/review/batches/${batchId}`);
     await cell(page, 7, 'q').waitFor();
     const g = await box(grid(page));
     const lineBefore = await box(cell(page, 7, 'line'));
@@ -90,8 +70,8 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
   });
 
   it('an RA edit re-runs the match: the row leaves its star and is held; a refusal never covers the cell being typed', async () => {
-    const { ctx, page } = await signInPage(browser, live.url, 'curator', { width: 1400, height: 900 });
-    await page.goto(`${live.url}/review/batches/${batchId}`);
+    const { ctx, page } = await signInPage(env.browser, env.live.url, 'curator', { width: 1400, height: 900 });
+    await page.goto(`${env.live.url}/review/batches/${batchId}`);
     await cell(page, 8, 'ra_deg').waitFor();
     // the tied star's separation is shown beside its name
     expect(await cell(page, 8, 'star').getByTestId('star-separation').textContent()).toMatch(/″$/);
@@ -106,7 +86,7 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
     const row = grid(page).locator('[role="row"][data-line="8"]');
     await expect.poll(() => row.getAttribute('data-state')).toBe('ambiguous');
     await cell(page, 8, 'star').getByTestId('held-untied').waitFor(); // no longer shown as tied to its old star
-    const m = (await api<{ rows: { line: number; state: string; star_id: number | null; ra_deg: number; warnings: { message: string }[] }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 8)!;
+    const m = (await pageApi<{ rows: { line: number; state: string; star_id: number | null; ra_deg: number; warnings: { message: string }[] }[] }>(page, 'GET', `/batches/${batchId}/measurements?limit=50`)).body.rows.find((r) => r.line === 8)!;
     expect(m).toMatchObject({ state: 'ambiguous', star_id: null, ra_deg: 2.5 });
     expect(m.warnings.map((w) => w.message).join(' ')).toMatch(/from KRS J.* held for a curator/);
 
@@ -141,8 +121,8 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
   });
 
   it('the Overview shows each role its to-do; the uploader reads the decision note and can send a corrected file', async () => {
-    const obs = await signInPage(browser, live.url, 'observer', { width: 1280, height: 900 });
-    await obs.page.goto(`${live.url}/`);
+    const obs = await signInPage(env.browser, env.live.url, 'observer', { width: 1280, height: 900 });
+    await obs.page.goto(`${env.live.url}/`);
     const todo = obs.page.getByTestId('todo');
     await todo.waitFor();
     const link = todo.locator('a[data-kind="needs_mapping"]');
@@ -152,13 +132,13 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
     await link.click();
     await obs.page.waitForURL(/\/batches\/\d+$/);
 
-    const cur = await signInPage(browser, live.url, 'curator', { width: 1280, height: 900 });
-    await cur.page.goto(`${live.url}/`);
+    const cur = await signInPage(env.browser, env.live.url, 'curator', { width: 1280, height: 900 });
+    await cur.page.goto(`${env.live.url}/`);
     await cur.page.getByTestId('todo').locator('a[data-kind="review"]').waitFor();
-    const returned = await api(cur.page, 'POST', `/batches/${batchId}/reject`, { note: 'Line 8: the RA was typed in degrees of the wrong field; please send the night again.' });
+    const returned = await pageApi(cur.page, 'POST', `/batches/${batchId}/reject`, { note: 'Line 8: the RA was typed in degrees of the wrong field; please send the night again.' });
     expect(returned.status).toBe(200);
 
-    await obs.page.goto(`${live.url}/batches/${batchId}`);
+    await obs.page.goto(`${env.live.url}/batches/${batchId}`);
     const note = obs.page.getByTestId('decision-note');
     await note.waitFor();
     expect(await obs.page.getByTestId('decision-note-text').textContent()).toBe('Line 8: the RA was typed in degrees of the wrong field; please send the night again.');
@@ -175,14 +155,14 @@ describe.runIf(run)('the review table keeps its bearings (real browser)', () => 
   });
 
   it('the standard stars page lists each reference with its source; the catalog cone takes Galactic l, b', async () => {
-    const { ctx, page } = await signInPage(browser, live.url, 'curator', { width: 1280, height: 900 });
-    await page.goto(`${live.url}/calibration/standards`);
+    const { ctx, page } = await signInPage(env.browser, env.live.url, 'curator', { width: 1280, height: 900 });
+    await page.goto(`${env.live.url}/calibration/standards`);
     const table = page.getByTestId('standards-table');
     await table.locator('tr').filter({ hasText: 'BD+59 389' }).first().waitFor();
     expect(await table.locator('tr').filter({ hasText: 'HD 204827' }).first().textContent()).toContain('from memory');
     await page.screenshot({ path: path.join(SCREENSHOTS, 'standard-stars.png'), fullPage: true });
-    const star = await live.t.db('stars').orderBy('id').first();
-    await page.goto(`${live.url}/catalog`);
+    const star = await env.live.t.db('stars').orderBy('id').first();
+    await page.goto(`${env.live.url}/catalog`);
     await page.getByLabel('Centre given in').selectOption('galactic');
     await page.getByLabel('l [deg]').fill(star.glon_deg.toFixed(5));
     await page.getByLabel('b [deg]').fill(star.glat_deg.toFixed(5));

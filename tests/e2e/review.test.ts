@@ -1,8 +1,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer, signInPage } from '../helpers/browser.js';
+import { describe, expect, it } from 'vitest';
+import type { Browser, Locator, Page } from 'playwright-core';
+import { mustRunBrowserTests, pageApi, SCREENSHOTS, signInPage, useLiveBrowser } from '../helpers/browser.js';
 import { DEMO } from '../helpers/app.js';
 
 const run = mustRunBrowserTests();
@@ -39,21 +39,9 @@ interface StarMeasurement {
 
 const signIn = (browser: Browser, url: string, role: keyof typeof DEMO) => signInPage(browser, url, role, { width: 1400, height: 950 });
 
-/** Call the API with the page's own session cookie. */
-function api<T>(page: Page, method: string, p: string, body?: unknown): Promise<{ status: number; body: T }> {
-  return page.evaluate(
-    async ([m, u, b]) => {
-      const res = await fetch(`/api/v1${u}`, { method: m as string, credentials: 'same-origin', headers: b === undefined ? undefined : { 'Content-Type': 'application/json' }, body: b === undefined ? undefined : JSON.stringify(b) });
-      const text = await res.text();
-      return { status: res.status, body: text ? JSON.parse(text) : null };
-    },
-    [method, p, body] as const,
-  ) as Promise<{ status: number; body: T }>;
-}
-
 async function rowAtLine(page: Page, batchId: number, line: number): Promise<Row> {
   // file order: line n is the (n − 2)th row
-  const res = await api<{ rows: Row[] }>(page, 'GET', `/batches/${batchId}/measurements?sort=line&order=asc&offset=${line - 2}&limit=1`);
+  const res = await pageApi<{ rows: Row[] }>(page, 'GET', `/batches/${batchId}/measurements?sort=line&order=asc&offset=${line - 2}&limit=1`);
   expect(res.status).toBe(200);
   expect(res.body.rows[0].line).toBe(line);
   return res.body.rows[0];
@@ -71,32 +59,22 @@ async function activeCell(page: Page): Promise<{ line: number; col: string }> {
 }
 
 describe.runIf(run)('review in a real browser', () => {
-  let live: LiveServer;
-  let browser: Browser;
-  beforeAll(async () => {
-    live = await startLiveServer();
-    browser = await launchBrowser();
-    fs.mkdirSync(SCREENSHOTS, { recursive: true });
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await live?.close();
-  });
+  const env = useLiveBrowser();
 
   it('a curator corrects a night in the table and approves it; the observer and the outbox see the decision', async () => {
     // The observer sends the V-band night (7,200 rows, checked while the request waits).
-    const obs = await signIn(browser, live.url, 'observer');
+    const obs = await signIn(env.browser, env.live.url, 'observer');
     const csv = fs.readFileSync(HAWK_R, 'utf8').replace(/,R,/g, ',V,');
     const fileRows = csv.split(/\r?\n/).filter((l) => l.trim() !== '').length - 1;
-    const sent = await obs.page.request.post(`${live.url}/api/v1/batches`, { headers: { Origin: live.url }, multipart: { instrument: 'KR-HAWK', file: { name: NIGHT_V, mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
+    const sent = await obs.page.request.post(`${env.live.url}/api/v1/batches`, { headers: { Origin: env.live.url }, multipart: { instrument: 'KR-HAWK', file: { name: NIGHT_V, mimeType: 'text/csv', buffer: Buffer.from(csv) } } });
     expect(sent.status()).toBe(201);
     const batchId = ((await sent.json()) as { id: number }).id;
-    await expect.poll(async () => (await api<{ state: string }>(obs.page, 'GET', `/batches/${batchId}`)).body.state, { timeout: 30_000 }).toBe('awaiting_review');
+    await expect.poll(async () => (await pageApi<{ state: string }>(obs.page, 'GET', `/batches/${batchId}`)).body.state, { timeout: 30_000 }).toBe('awaiting_review');
     expect(await navLinks(obs.page)).not.toContain('Review');
     expect(await navLinks(obs.page)).toContain('Catalog');
 
     // The queue, as a curator.
-    const { ctx, page } = await signIn(browser, live.url, 'curator');
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'curator');
     expect(await navLinks(page)).toEqual(expect.arrayContaining(['Review', 'Catalog']));
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Review' }).click();
     await page.waitForURL(/\/review$/);
@@ -132,7 +110,7 @@ describe.runIf(run)('review in a real browser', () => {
 
     // Server-side sort by a header click (q descending on the second click), then back to file order.
     const qHeader = grid(page).getByRole('columnheader', { name: /^q \[fraction\]/ });
-    const topByQ = (await api<{ rows: Row[] }>(page, 'GET', `/batches/${batchId}/measurements?sort=q&order=desc&limit=1`)).body.rows[0];
+    const topByQ = (await pageApi<{ rows: Row[] }>(page, 'GET', `/batches/${batchId}/measurements?sort=q&order=desc&limit=1`)).body.rows[0];
     await qHeader.getByRole('button').click();
     await qHeader.getByRole('button').click();
     expect(await qHeader.getAttribute('aria-sort')).toBe('descending');
@@ -142,7 +120,7 @@ describe.runIf(run)('review in a real browser', () => {
     await expect.poll(() => grid(page).locator('[role="rowgroup"] [role="row"][data-index="0"]').getAttribute('data-line')).toBe('2');
     // A star search on the server: the star of line 5, alone.
     const line5 = await rowAtLine(page, batchId, 5);
-    const starName = (await api<{ star: { name: string } }>(page, 'GET', `/stars/${line5.star_id}`)).body.star.name;
+    const starName = (await pageApi<{ star: { name: string } }>(page, 'GET', `/stars/${line5.star_id}`)).body.star.name;
     await page.getByLabel('Search by star name or source_id').fill(starName);
     await expect.poll(() => grid(page).getAttribute('aria-rowcount')).toBe('2');
     expect(await grid(page).locator('[role="rowgroup"] [role="row"][data-line]').getAttribute('data-line')).toBe('5');
@@ -269,7 +247,7 @@ describe.runIf(run)('review in a real browser', () => {
 
     // Someone else changes line 4 meanwhile: the edit is refused with the current value, which can be loaded.
     const line4 = await rowAtLine(page, batchId, 4);
-    const elsewhere = await api<{ measurement: Row }>(page, 'PATCH', `/measurements/${line4.id}`, { changes: { mjd: 61002.5 }, version: line4.version, reason: 'another curator' });
+    const elsewhere = await pageApi<{ measurement: Row }>(page, 'PATCH', `/measurements/${line4.id}`, { changes: { mjd: 61002.5 }, version: line4.version, reason: 'another curator' });
     expect(elsewhere.status).toBe(200);
     await cell(page, 4, 'mjd').click();
     await page.keyboard.press('Control+A');
@@ -315,13 +293,13 @@ describe.runIf(run)('review in a real browser', () => {
     await expect.poll(() => page.getByTestId('decision-result').textContent()).toContain('7,200 measurements approved');
     await expect.poll(() => page.getByTestId('batch-state').getAttribute('data-state')).toBe('approved');
     await expect.poll(() => page.getByTestId('total-approved').textContent()).toBe('7,200');
-    const batch = await api<{ state: string }>(page, 'GET', `/batches/${batchId}`);
+    const batch = await pageApi<{ state: string }>(page, 'GET', `/batches/${batchId}`);
     expect(batch.body.state).toBe('approved');
     expect((await rowAtLine(page, batchId, 2)).state).toBe('approved');
     await ctx.close();
 
     // The observer sees the decision on their batch page, and may read the table but not edit it.
-    await obs.page.goto(`${live.url}/batches/${batchId}`);
+    await obs.page.goto(`${env.live.url}/batches/${batchId}`);
     await expect.poll(() => obs.page.getByTestId('batch-state').getAttribute('data-state')).toBe('approved');
     await obs.page.getByRole('link', { name: /Open the measurements table/ }).click();
     await obs.page.waitForURL(new RegExp(`/review/batches/${batchId}$`));
@@ -334,9 +312,9 @@ describe.runIf(run)('review in a real browser', () => {
     await obs.ctx.close();
 
     // The admin finds the notice to the observer in the outbox (written just after the decision commits).
-    const adm = await signIn(browser, live.url, 'admin');
+    const adm = await signIn(env.browser, env.live.url, 'admin');
     const subject = `Batch #${batchId} approved: ${NIGHT_V}`;
-    const toObserver = async () => (await api<{ messages: { to: string; subject: string }[] }>(adm.page, 'GET', '/admin/outbox?limit=500')).body.messages.filter((m) => m.to === 'observer@kestrel.example' && m.subject === subject);
+    const toObserver = async () => (await pageApi<{ messages: { to: string; subject: string }[] }>(adm.page, 'GET', '/admin/outbox?limit=500')).body.messages.filter((m) => m.to === 'observer@kestrel.example' && m.subject === subject);
     await expect.poll(async () => (await toObserver()).length, { timeout: 30_000 }).toBe(1);
     await adm.page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Outbox' }).click();
     await adm.page.waitForURL(/\/admin\/outbox$/);
@@ -349,24 +327,24 @@ describe.runIf(run)('review in a real browser', () => {
   });
 
   it('the catalog finds a star by source_id and by cone; its page plots every epoch and the combined value with its χ² flag', async () => {
-    const { ctx, page } = await signIn(browser, live.url, 'curator');
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'curator');
     // The first star of the R night, observed again on two later nights with very different q.
-    const rNight = (await api<{ batches: { id: number; filename: string }[] }>(page, 'GET', '/review/queue?state=approved')).body.batches.find((b) => b.filename === 'kestrel-night-hawk-R.csv')!;
+    const rNight = (await pageApi<{ batches: { id: number; filename: string }[] }>(page, 'GET', '/review/queue?state=approved')).body.batches.find((b) => b.filename === 'kestrel-night-hawk-R.csv')!;
     const seeded = await rowAtLine(page, rNight.id, 2);
-    const star = (await api<{ star: { id: number; name: string; sourceId: string; ra_deg: number; dec_deg: number } }>(page, 'GET', `/stars/${seeded.star_id}`)).body.star;
+    const star = (await pageApi<{ star: { id: number; name: string; sourceId: string; ra_deg: number; dec_deg: number } }>(page, 'GET', `/stars/${seeded.star_id}`)).body.star;
     const header = 'name,source_id,ra_deg,dec_deg,band,q,u,q_err,u_err,mjd,instrument';
     const repeats = [
       { q: 0.0061, u: -0.0162, q_err: 0.0008, u_err: 0.0009, mjd: 61041.3125 },
       { q: -0.0044, u: -0.0191, q_err: 0.0011, u_err: 0.001, mjd: 61077.221 },
     ];
     const lines = repeats.map((r) => [star.name, star.sourceId, star.ra_deg, star.dec_deg, 'R', r.q, r.u, r.q_err, r.u_err, r.mjd, 'KR-HAWK'].join(','));
-    const sent = await page.request.post(`${live.url}/api/v1/batches`, { headers: { Origin: live.url }, multipart: { file: { name: 'kestrel-repeats.csv', mimeType: 'text/csv', buffer: Buffer.from([header, ...lines].join('\n')) } } });
+    const sent = await page.request.post(`${env.live.url}/api/v1/batches`, { headers: { Origin: env.live.url }, multipart: { file: { name: 'kestrel-repeats.csv', mimeType: 'text/csv', buffer: Buffer.from([header, ...lines].join('\n')) } } });
     expect(sent.status()).toBe(201);
     const repeatBatch = ((await sent.json()) as { id: number }).id;
-    expect((await api(page, 'POST', `/batches/${repeatBatch}/approve`, { note: 'repeat nights' })).status).toBe(200);
+    expect((await pageApi(page, 'POST', `/batches/${repeatBatch}/approve`, { note: 'repeat nights' })).status).toBe(200);
 
     // Every measurement the curator may see (this night in R, the V night of the other test if it ran, the repeats).
-    const detail = (await api<{ measurements: StarMeasurement[] }>(page, 'GET', `/stars/${star.id}`)).body;
+    const detail = (await pageApi<{ measurements: StarMeasurement[] }>(page, 'GET', `/stars/${star.id}`)).body;
     const r = detail.measurements.filter((m) => m.band === 'R' && m.instrument === 'KR-HAWK' && m.state === 'approved');
     expect(r).toHaveLength(3);
     expect(r.map((m) => m.mjd).sort()).toEqual([seeded.mjd, ...repeats.map((x) => x.mjd)].sort());
@@ -383,13 +361,13 @@ describe.runIf(run)('review in a real browser', () => {
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Catalog' }).click();
     await page.waitForURL(/\/catalog$/);
     await page.getByRole('table', { name: 'Stars' }).locator('tbody tr').first().waitFor();
-    const totalStars = (await api<{ total: number }>(page, 'GET', '/stars?limit=1')).body.total;
+    const totalStars = (await pageApi<{ total: number }>(page, 'GET', '/stars?limit=1')).body.total;
     expect(await page.getByTestId('stars-range').textContent()).toContain(`of ${totalStars.toLocaleString('en')} stars`);
     // server-side sort: by parallax, descending, matches the API's first star
     await page.getByRole('columnheader', { name: /parallax \[mas\]/ }).getByRole('button').click();
     await page.getByRole('columnheader', { name: /parallax \[mas\]/ }).getByRole('button').click();
     await page.waitForURL(/sort=parallax_mas&order=desc/);
-    const topByParallax = (await api<{ stars: { id: number }[] }>(page, 'GET', '/stars?sort=parallax_mas&order=desc&limit=1')).body.stars[0];
+    const topByParallax = (await pageApi<{ stars: { id: number }[] }>(page, 'GET', '/stars?sort=parallax_mas&order=desc&limit=1')).body.stars[0];
     await expect.poll(() => page.getByRole('table', { name: 'Stars' }).locator('tbody tr').first().getAttribute('data-star-id')).toBe(String(topByParallax.id));
 
     await page.getByLabel('Name or source_id').fill(star.sourceId);
@@ -409,7 +387,7 @@ describe.runIf(run)('review in a real browser', () => {
     await page.getByRole('button', { name: 'Find stars' }).click();
     const coneRows = page.getByRole('table', { name: 'Stars' }).locator('tbody tr');
     await expect.poll(() => coneRows.first().getAttribute('data-star-id')).toBe(String(star.id)); // nearest first
-    const cone = (await api<{ total: number }>(page, 'GET', `/stars?ra=${star.ra_deg}&dec=${star.dec_deg}&radius=0.2&limit=1`)).body.total;
+    const cone = (await pageApi<{ total: number }>(page, 'GET', `/stars?ra=${star.ra_deg}&dec=${star.dec_deg}&radius=0.2&limit=1`)).body.total;
     expect(cone).toBeGreaterThan(1);
     expect(await page.getByTestId('stars-range').textContent()).toContain(`of ${cone.toLocaleString('en')} stars`);
     expect(await page.getByRole('columnheader', { name: 'separation [deg]' }).count()).toBe(1);

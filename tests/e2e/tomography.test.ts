@@ -1,8 +1,7 @@
-import fs from 'node:fs';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, BrowserContext, Locator, Page } from 'playwright-core';
-import { launchBrowser, mustRunBrowserTests, SCREENSHOTS, startLiveServer, type LiveServer, signInPage } from '../helpers/browser.js';
+import { describe, expect, it } from 'vitest';
+import type { Browser, Locator, Page } from 'playwright-core';
+import { mustRunBrowserTests, pageApiGet, SCREENSHOTS, signInPage, useLiveBrowser } from '../helpers/browser.js';
 import { DEMO } from '../helpers/app.js';
 
 const run = mustRunBrowserTests();
@@ -37,15 +36,6 @@ interface ApiSightline {
 
 const signIn = (browser: Browser, url: string, role: keyof typeof DEMO) => signInPage(browser, url, role, { width: 1280, height: 900 });
 
-/** GET an API path with the page's own session cookie. */
-function apiGet<T>(page: Page, p: string): Promise<T> {
-  return page.evaluate(async (u) => {
-    const res = await fetch(`/api/v1${u}`, { credentials: 'same-origin' });
-    if (!res.ok) throw new Error(`${u}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }, p) as Promise<T>;
-}
-
 const nav = (page: Page) => page.getByRole('navigation', { name: 'Main' });
 /** "−66.8" (the page's minus sign) → -66.8 */
 const readNumber = (s: string | null) => Number((s ?? '').replace('−', '-').replace(/[^0-9.+-]/g, ''));
@@ -58,30 +48,20 @@ function pathLevels(d: string): number[] {
 }
 
 describe.runIf(run)('tomography pages in a real browser', () => {
-  let live: LiveServer;
-  let browser: Browser;
-  beforeAll(async () => {
-    live = await startLiveServer({ tomography: true });
-    browser = await launchBrowser();
-    fs.mkdirSync(SCREENSHOTS, { recursive: true });
-  }, 120_000);
-  afterAll(async () => {
-    await browser?.close();
-    await live?.close();
-  });
+  const env = useLiveBrowser({ tomography: true, startTimeoutMs: 120_000 });
 
   it('a modeler reads the sky map, switches frame and colouring, and opens a two-layer sightline', async () => {
-    const { ctx, page } = await signIn(browser, live.url, 'modeler');
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'modeler');
     const links = await nav(page).getByRole('link').allTextContents();
     expect(links).toContain('Sky');
     expect(links).toContain('Runs');
 
     await nav(page).getByRole('link', { name: 'Sky' }).click();
     await page.waitForURL(/\/sky$/);
-    const runs = (await apiGet<{ runs: ApiRun[] }>(page, '/tomography/runs')).runs;
+    const runs = (await pageApiGet<{ runs: ApiRun[] }>(page, '/tomography/runs')).runs;
     const demo = runs.find((r) => r.state === 'done')!;
     expect(demo.params).toMatchObject({ nside: 32, coordsys: 'G' });
-    const { cells } = await apiGet<{ cells: ApiCell[] }>(page, `/tomography/runs/${demo.id}/cells`);
+    const { cells } = await pageApiGet<{ cells: ApiCell[] }>(page, `/tomography/runs/${demo.id}/cells`);
 
     // one polygon per cell of the run, on a Galactic map by default
     const map = page.getByTestId('sky-map');
@@ -113,7 +93,7 @@ describe.runIf(run)('tomography pages in a real browser', () => {
     let target: ApiCell | undefined;
     let sight: ApiSightline | undefined;
     for (const c of cells.filter((x) => x.n_layers === 2 && Math.abs(x.lon_deg - 180) > 30 && Math.abs(x.lat_deg) < 60)) {
-      const s = (await apiGet<{ cells: ApiSightline[] }>(page, `/sightlines?nside=32&ipix=${c.ipix}&run=${demo.id}`)).cells[0];
+      const s = (await pageApiGet<{ cells: ApiSightline[] }>(page, `/sightlines?nside=32&ipix=${c.ipix}&run=${demo.id}`)).cells[0];
       if (s.clearForeground && s.layers.every((l) => l.kind === 'break')) {
         target = c;
         sight = s;
@@ -213,7 +193,7 @@ describe.runIf(run)('tomography pages in a real browser', () => {
   }, 120_000);
 
   it('a curator cancels a big run while it fits, then runs a small cone to the end', async () => {
-    const { ctx, page } = await signIn(browser, live.url, 'curator');
+    const { ctx, page } = await signIn(env.browser, env.live.url, 'curator');
     await nav(page).getByRole('link', { name: 'Runs' }).click();
     const form = page.getByRole('form', { name: 'Start a run' });
     await form.waitFor();
@@ -240,14 +220,14 @@ describe.runIf(run)('tomography pages in a real browser', () => {
     await page.screenshot({ path: path.join(SCREENSHOTS, 'runs-progress.png') });
     await page.getByRole('button', { name: `Cancel run ${big.id}` }).click();
     await expect.poll(() => bigRow.getAttribute('data-state'), { timeout: 30_000 }).toBe('cancelled');
-    const bigEnd = await apiGet<ApiRun>(page, `/tomography/runs/${big.id}`);
+    const bigEnd = await pageApiGet<ApiRun>(page, `/tomography/runs/${big.id}`);
     expect(bigEnd.state).toBe('cancelled');
     expect(bigEnd.progress.cellsDone).toBeLessThan(bigEnd.progress.cellsTotal);
     expect(await page.getByRole('button', { name: `Cancel run ${big.id}` }).count()).toBe(0);
 
     // small: a 6° cone around a demo cell, few draws
-    const demo = (await apiGet<{ runs: ApiRun[] }>(page, '/tomography/runs')).runs.find((r) => r.state === 'done')!;
-    const centre = (await apiGet<{ cells: ApiCell[] }>(page, `/tomography/runs/${demo.id}/cells`)).cells[0];
+    const demo = (await pageApiGet<{ runs: ApiRun[] }>(page, '/tomography/runs')).runs.find((r) => r.state === 'done')!;
+    const centre = (await pageApiGet<{ cells: ApiCell[] }>(page, `/tomography/runs/${demo.id}/cells`)).cells[0];
     await form.getByLabel('NSIDE').selectOption('32');
     await form.getByLabel('Min stars per cell').fill('10');
     await form.getByLabel('Distance draws').fill('5');
@@ -265,7 +245,7 @@ describe.runIf(run)('tomography pages in a real browser', () => {
     expect(small.params.region?.radius).toBe(6);
     const smallRow = page.locator(`[data-testid="run-row"][data-run="${small.id}"]`);
     await expect.poll(() => smallRow.getAttribute('data-state'), { timeout: 30_000 }).toBe('done');
-    const smallEnd = await apiGet<ApiRun>(page, `/tomography/runs/${small.id}`);
+    const smallEnd = await pageApiGet<ApiRun>(page, `/tomography/runs/${small.id}`);
     expect(smallEnd.starsUsed).toBeGreaterThan(0);
     expect(smallEnd.starsUsed).toBeLessThan(demo.starsUsed);
     expect(await smallRow.getByTestId('run-stars').textContent()).toContain(smallEnd.starsUsed.toLocaleString('en'));
@@ -276,7 +256,7 @@ describe.runIf(run)('tomography pages in a real browser', () => {
     // its map holds only the cone's cells
     await smallRow.getByRole('link', { name: 'Open the map' }).click();
     await page.waitForURL(new RegExp(`/sky\\?run=${small.id}$`));
-    const smallCells = (await apiGet<{ cells: ApiCell[] }>(page, `/tomography/runs/${small.id}/cells`)).cells;
+    const smallCells = (await pageApiGet<{ cells: ApiCell[] }>(page, `/tomography/runs/${small.id}/cells`)).cells;
     expect(smallCells.length).toBeGreaterThan(0);
     expect(smallCells.length).toBeLessThan(50);
     await expect.poll(() => page.getByTestId('sky-cell').count()).toBe(smallCells.length);

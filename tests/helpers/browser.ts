@@ -3,7 +3,7 @@ import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
-import { expect, vi } from 'vitest';
+import { afterAll, beforeAll, expect, vi } from 'vitest';
 import { DEMO } from './app.js';
 import { DEMO_PASSWORD } from '../../server/auth/passwords.js';
 import { makeTestApp, type TestApp } from './app.js';
@@ -74,6 +74,53 @@ export async function startLiveServer(opts: { tomography?: boolean } = {}): Prom
 
 export const SCREENSHOTS = path.resolve('tests/e2e/screenshots');
 
+export interface LiveBrowser {
+  readonly live: LiveServer;
+  readonly browser: Browser;
+}
+
+/**
+ * For the describe block it is called in: a live server (startLiveServer options) and a browser,
+ * started before its tests (with the screenshots folder) and closed after them; `beforeClose`
+ * runs between closing the browser and the server. Read `live` and `browser` inside the tests.
+ */
+export function useLiveBrowser(opts: { tomography?: boolean; startTimeoutMs?: number; beforeClose?: (live: LiveServer) => Promise<void> } = {}): LiveBrowser {
+  let live: LiveServer | undefined;
+  let browser: Browser | undefined;
+  beforeAll(async () => {
+    live = await startLiveServer({ tomography: opts.tomography });
+    browser = await launchBrowser();
+    fs.mkdirSync(SCREENSHOTS, { recursive: true });
+  }, opts.startTimeoutMs);
+  afterAll(async () => {
+    await browser?.close();
+    if (live) await opts.beforeClose?.(live);
+    await live?.close();
+  });
+  return {
+    get live() {
+      return live!;
+    },
+    get browser() {
+      return browser!;
+    },
+  };
+}
+
+/** Fills the sign-in form on the page and sends it. */
+export async function fillSignIn(page: Page, email: string, password: string): Promise<void> {
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** Signs in as a demo role on the sign-in form the page shows, and checks the header names the role. */
+export async function signInAs(page: Page, role: keyof typeof DEMO): Promise<void> {
+  await fillSignIn(page, DEMO[role], DEMO_PASSWORD);
+  await page.getByTestId('role-badge').waitFor();
+  expect(await page.getByTestId('role-badge').textContent()).toBe(role);
+}
+
 /** A fresh browser context signed in through the sign-in page as a demo role. */
 export async function signInPage(browser: Browser, url: string, role: keyof typeof DEMO, viewport = { width: 1280, height: 900 }): Promise<{ ctx: BrowserContext; page: Page }> {
   const ctx = await browser.newContext({ viewport });
@@ -81,10 +128,27 @@ export async function signInPage(browser: Browser, url: string, role: keyof type
   ctx.setDefaultNavigationTimeout(E2E_ACTION_TIMEOUT_MS);
   const page = await ctx.newPage();
   await page.goto(`${url}/sign-in`);
-  await page.getByLabel('E-mail').fill(DEMO[role]);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByTestId('role-badge').waitFor();
-  expect(await page.getByTestId('role-badge').textContent()).toBe(role);
+  await signInAs(page, role);
   return { ctx, page };
+}
+
+/** Calls the API with the page's own session cookie: the status and the parsed body (null when empty). */
+export function pageApi<T>(page: Page, method: string, p: string, body?: unknown): Promise<{ status: number; body: T }> {
+  return page.evaluate(
+    async ([m, u, b]) => {
+      const res = await fetch(`/api/v1${u}`, { method: m as string, credentials: 'same-origin', headers: b === undefined ? undefined : { 'Content-Type': 'application/json' }, body: b === undefined ? undefined : JSON.stringify(b) });
+      const text = await res.text();
+      return { status: res.status, body: text ? JSON.parse(text) : null };
+    },
+    [method, p, body] as const,
+  ) as Promise<{ status: number; body: T }>;
+}
+
+/** GETs an API path with the page's own session cookie; throws on an error answer. */
+export function pageApiGet<T>(page: Page, p: string): Promise<T> {
+  return page.evaluate(async (u) => {
+    const res = await fetch(`/api/v1${u}`, { credentials: 'same-origin' });
+    if (!res.ok) throw new Error(`${u}: ${res.status} ${await res.text()}`);
+    return res.json();
+  }, p) as Promise<T>;
 }
