@@ -1,3 +1,4 @@
+import type { ComponentProps } from 'react';
 import { Link } from 'react-router-dom';
 import { Card } from '../../../components/ui/primitives';
 import { cols, DataTable } from '../../../components/ui/Table';
@@ -8,8 +9,8 @@ import { INCONSISTENT_TAIL_PROBABILITY } from '@science/combine';
 import type { CombinedValue, StarDetail } from '../types';
 import { BAND_COLOURS, EpochPlots, QuPlanePlot } from './StarPlots';
 
-const TABLE_CLASS = 'w-full whitespace-nowrap text-left text-sm';
-const BODY_CLASS = 'num font-mono text-[13px]';
+/** This page's tables: one line a row, numbers in the monospaced figures. */
+const StarTable = (props: Omit<ComponentProps<typeof DataTable>, 'className' | 'bodyClassName'>) => <DataTable className="w-full whitespace-nowrap text-left text-sm" bodyClassName="num font-mono text-[13px]" {...props} />;
 const RIGHT = 'pr-3 text-right font-medium';
 
 const pm = (v: number, e: number, d: number) => `${fixed(v, d)} ± ${fixed(e, d)}`;
@@ -72,10 +73,8 @@ export function StarDetailView({ data, me }: { data: StarDetail; me: Me | null |
         {combined.length === 0 ? (
           <p className="text-sm text-muted">No approved measurement yet: a combined value is made from approved measurements only.</p>
         ) : (
-          <DataTable
+          <StarTable
             label="Combined values"
-            className={TABLE_CLASS}
-            bodyClassName={BODY_CLASS}
             columns={[
               { label: 'band', className: 'py-2 pr-3 font-medium' },
               { label: 'instrument', className: 'pr-3 font-medium' },
@@ -107,7 +106,7 @@ export function StarDetailView({ data, me }: { data: StarDetail; me: Me | null |
                 </td>
               </tr>
             ))}
-          </DataTable>
+          </StarTable>
         )}
       </Card>
 
@@ -123,10 +122,8 @@ export function StarDetailView({ data, me }: { data: StarDetail; me: Me | null |
       </div>
 
       <Card title="Every measurement">
-        <DataTable
+        <StarTable
           label="Measurements of this star"
-          className={TABLE_CLASS}
-          bodyClassName={BODY_CLASS}
           columns={[
             { label: 'state', className: 'py-2 pl-1 pr-3 font-medium' },
             { label: 'epoch, MJD [d]', className: RIGHT },
@@ -166,7 +163,7 @@ export function StarDetailView({ data, me }: { data: StarDetail; me: Me | null |
               </td>
             </tr>
           ))}
-        </DataTable>
+        </StarTable>
       </Card>
     </div>
   );

@@ -1,3 +1,4 @@
+import type { ComponentProps } from 'react';
 import { cols, DataTable } from '../../../components/ui/Table';
 import { deg, num, pct } from '../sky/format';
 import { layerNumber } from '../sightline/steps';
@@ -27,13 +28,14 @@ export function rangeText(l: TomographyLayer): string {
 }
 const td = 'py-1.5 pr-4 text-right';
 
+/** The sightline's tables: numbers right-aligned in tabular figures. */
+const SightlineTable = (props: Omit<ComponentProps<typeof DataTable>, 'className' | 'bodyClassName'>) => <DataTable className="w-full text-sm" bodyClassName="num" {...props} />;
+
 /** One row per layer: distance with its range, own Stokes contribution, p (debiased), θ and S/N. */
 export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
   return (
-    <DataTable
+    <SightlineTable
       label="Layers"
-      className="w-full text-sm"
-      bodyClassName="num"
       columns={[
         { label: 'Layer', className: 'py-2 pr-4 text-left font-medium' },
         ...cols(th, 'Distance [pc]', '16–84 % [pc]', 'Stars behind', 'Δq [%]', 'Δu [%]', 'p debiased [%]', 'θ [deg]', 'σθ [deg]', 'Scatter [%]'),
@@ -88,7 +90,7 @@ export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
           <td className="py-1.5 text-right">{num(l.snr, 1)}</td>
         </tr>
       ))}
-    </DataTable>
+    </SightlineTable>
   );
 }
 
@@ -96,10 +98,8 @@ export function LayersTable({ layers }: { layers: TomographyLayer[] }) {
 export function JumpsTable({ jumps, thresholdDeg }: { jumps: TomographyJump[]; thresholdDeg: number }) {
   if (jumps.length === 0) return <p className="text-sm text-muted">One layer only: no angle jump along this sightline.</p>;
   return (
-    <DataTable
+    <SightlineTable
       label="Angle jumps"
-      className="w-full text-sm"
-      bodyClassName="num"
       columns={[
         { label: 'Between layers', className: 'py-2 pr-4 text-left font-medium' },
         ...cols(th, 'Δθ [deg]', 'σ [deg]', 'Significance [σ]'),
@@ -120,6 +120,6 @@ export function JumpsTable({ jumps, thresholdDeg }: { jumps: TomographyJump[]; t
           <td className="py-1.5 text-left">{Math.abs(j.deltaThetaDeg) > thresholdDeg ? 'yes' : 'no'}</td>
         </tr>
       ))}
-    </DataTable>
+    </SightlineTable>
   );
 }
