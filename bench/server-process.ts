@@ -57,12 +57,14 @@ export async function spawnServer({ dataDir, env = {}, port }: { dataDir: string
   let log = '';
   child.stdout!.on('data', (d) => (log = (log + d).slice(-20000)));
   child.stderr!.on('data', (d) => (log = (log + d).slice(-20000)));
+  // a process ended by a signal keeps exitCode null: it has a signalCode instead
+  const ended = () => child.exitCode !== null || child.signalCode !== null;
   let peak = 0;
   const sampler = setInterval(() => (peak = Math.max(peak, rssOf(child.pid!))), 100);
   sampler.unref();
   const end = Date.now() + 180_000;
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`the server exited (${child.exitCode}):\n${log}`);
+    if (ended()) throw new Error(`the server exited (${child.exitCode ?? child.signalCode}):\n${log}`);
     try {
       if ((await fetch(`${base}/api/v1/health`)).ok) break;
     } catch {
@@ -79,7 +81,7 @@ export async function spawnServer({ dataDir, env = {}, port }: { dataDir: string
     log: () => log,
     stop: async () => {
       clearInterval(sampler);
-      if (child.exitCode === null) {
+      if (!ended()) {
         child.kill('SIGTERM');
         await new Promise((r) => child.once('exit', r));
       }
