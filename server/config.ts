@@ -29,7 +29,8 @@ export interface Config {
   trustProxy: boolean | number | string;
   distDir: string;
   seedDemo: boolean;
-  intake: { crossmatchArcsec: number; mjdToleranceDays: number; syncBytes: number };
+  /** timingFile: STARVEIL_INTAKE_TIMING, where the check appends where its time went (profiling; null: off) */
+  intake: { crossmatchArcsec: number; mjdToleranceDays: number; syncBytes: number; timingFile?: string | null };
 }
 
 export class ConfigError extends Error {}
@@ -117,6 +118,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
       crossmatchArcsec: Number(env.CROSSMATCH_ARCSEC ?? 1),
       mjdToleranceDays: Number(env.MJD_TOLERANCE_DAYS ?? 0.001),
       syncBytes: intVar(env, 'INTAKE_SYNC_BYTES', 2 * 1024 * 1024),
+      timingFile: env.STARVEIL_INTAKE_TIMING || null,
     },
     ...overrides,
   };

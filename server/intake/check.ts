@@ -30,6 +30,8 @@ export interface CheckOptions {
   crossmatchArcsec: number;
   /** two epochs closer than this (days) are the same observation */
   mjdToleranceDays: number;
+  /** append where the check's time went to this file (config STARVEIL_INTAKE_TIMING), or null */
+  timingFile?: string | null;
 }
 
 export interface CheckProgress {
@@ -351,7 +353,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   } finally {
     if (deferStars) await setForeignKeyChecks(db, true);
   }
-  if (process.env.STARVEIL_INTAKE_TIMING) fs.appendFileSync(process.env.STARVEIL_INTAKE_TIMING, `batch ${batchId} ${counts.rows} rows: ${Object.entries(T).map(([k, v]) => `${k} ${(v / 1000).toFixed(1)}s`).join(', ')}; ${JSON.stringify(writeStats)}\n`);
+  if (opts.timingFile) fs.appendFileSync(opts.timingFile, `batch ${batchId} ${counts.rows} rows: ${Object.entries(T).map(([k, v]) => `${k} ${(v / 1000).toFixed(1)}s`).join(', ')}; ${JSON.stringify(writeStats)}\n`);
   counts.matchedStars = matched.size;
   await syncIdSequences(db, ['stars', 'batch_rows', 'measurements']);
   return counts;

@@ -23,6 +23,8 @@ export interface IntakeOptions {
   crossmatchArcsec: number;
   /** two epochs closer than this (days) are the same observation */
   mjdToleranceDays: number;
+  /** where the check appends its timers (profiling), or null */
+  timingFile?: string | null;
   /** files up to this size are checked before the upload request returns */
   syncBytes: number;
 }
@@ -89,7 +91,7 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
     return inst.code;
   }
 
-  const runner = new CheckRunner(db, config.dbFile, { crossmatchArcsec: opts.crossmatchArcsec, mjdToleranceDays: opts.mjdToleranceDays }, async (batchId) => {
+  const runner = new CheckRunner(db, config.dbFile, { crossmatchArcsec: opts.crossmatchArcsec, mjdToleranceDays: opts.mjdToleranceDays, timingFile: opts.timingFile ?? null }, async (batchId) => {
     const done = await batchRow(batchId, db);
     if (done.state === 'awaiting_review') await onChecked?.(present(done));
   });

@@ -21,14 +21,9 @@ export function bearerTokenAuth(deps: { tokens: TokenService; config: Config }):
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     keyGenerator: (_req, res) => `api-token:${res.locals.apiTokenId}`,
-    handler: (_req, res, _next, options) => {
-      res.status(options.statusCode).json({
-        error: {
-          code: 'rate_limited',
-          message: `This API token made more than ${max} requests in ${windowMs / 1000} s; wait the seconds in the Retry-After header and try again.`,
-        },
-      });
-    },
+    // the refusal leaves through the one error middleware (RateLimit/Retry-After are already set)
+    handler: (_req, _res, next, options) =>
+      next(new AppError(options.statusCode, 'rate_limited', `This API token made more than ${max} requests in ${windowMs / 1000} s; wait the seconds in the Retry-After header and try again.`)),
   });
 
   return async (req, res, next) => {
