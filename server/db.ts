@@ -10,7 +10,7 @@ export const MIGRATIONS_DIR = path.join(root, 'migrations');
 export type Db = Knex;
 
 /** Open the embedded SQLite database (creating its folder). */
-export function openDb(dbFile: string, opts: { role?: 'request' | 'background' } = {}): Db {
+export function openDb(dbFile: string, opts: { role?: 'request' | 'background'; cacheMb?: number } = {}): Db {
   if (dbFile !== ':memory:') fs.mkdirSync(path.dirname(dbFile), { recursive: true });
   return knexFactory(sqliteConnectionOptions(dbFile, opts));
 }

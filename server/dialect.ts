@@ -16,7 +16,7 @@ import type { Knex } from 'knex';
  * The one place that knows which SQL engine is underneath. Everything else uses portable Knex
  * query building; anything engine-specific (pragmas, upsert quirks, JSON functions) goes here.
  */
-export function sqliteConnectionOptions(filename: string, opts: { role?: 'request' | 'background' } = {}): Knex.Config {
+export function sqliteConnectionOptions(filename: string, opts: { role?: 'request' | 'background'; cacheMb?: number } = {}): Knex.Config {
   // Checkpoints (copying the WAL into the database file) run inside the COMMIT that crosses the
   // threshold. A connection of the request thread never runs them (a session write would copy a
   // background check's pages while a person waits); background connections do, in large steps
@@ -38,7 +38,7 @@ export function sqliteConnectionOptions(filename: string, opts: { role?: 'reques
         conn.pragma('synchronous = NORMAL');
         // the index pages a large batch touches stay cached: 64 MiB, 192 MiB on a background
         // (intake) connection, whose random index inserts otherwise miss the cache on every row
-        conn.pragma(`cache_size = ${opts.role === 'background' ? -196608 : -65536}`);
+        conn.pragma(`cache_size = ${opts.cacheMb ? -opts.cacheMb * 1024 : opts.role === 'background' ? -196608 : -65536}`);
         if (filename !== ':memory:') conn.pragma(`wal_autocheckpoint = ${autoCheckpoint}`);
         done(null, conn);
       },

@@ -43,7 +43,10 @@ export class StarGrid {
   private next = new Int32Array(0);
   private names: (string | null)[] = [];
   private sources: (string | null)[] = [];
-  private readonly head = new Map<number, number>();
+  /** cube key → last star added in it (open addressing, linear probing; -1 = empty): 8 bytes a slot, not a Map entry per cube */
+  private cellKeys = new Int32Array(1 << 12).fill(-1);
+  private cellHeads = new Int32Array(1 << 12);
+  private cells = 0;
   private readonly bySource = new Map<string, number>();
   /** cube edge in unit-vector space */
   private readonly h: number;
@@ -96,10 +99,39 @@ export class StarGrid {
     const dec = s.dec_deg * D2R;
     const c = Math.cos(dec);
     const key = cellKey(Math.floor((c * Math.cos(ra)) / this.h), Math.floor((c * Math.sin(ra)) / this.h), Math.floor(Math.sin(dec) / this.h));
-    const prev = this.head.get(key);
-    this.next[k] = prev === undefined ? -1 : prev;
-    this.head.set(key, k);
+    const at = this.slotOf(key);
+    if (this.cellKeys[at] === -1) {
+      this.cellKeys[at] = key;
+      this.cellHeads[at] = k;
+      this.next[k] = -1;
+      if (++this.cells * 2 > this.cellKeys.length) this.rehash();
+    } else {
+      this.next[k] = this.cellHeads[at];
+      this.cellHeads[at] = k;
+    }
     return k;
+  }
+
+  /** The table slot of a cube key: where it is, or the empty slot where it would go. */
+  private slotOf(key: number): number {
+    const mask = this.cellKeys.length - 1;
+    let i = (Math.imul(key, 0x9e3779b1) >>> 0) & mask;
+    while (this.cellKeys[i] !== -1 && this.cellKeys[i] !== key) i = (i + 1) & mask;
+    return i;
+  }
+
+  /** Double the cube table (load factor ≤ 1/2). */
+  private rehash(): void {
+    const keys = this.cellKeys;
+    const heads = this.cellHeads;
+    this.cellKeys = new Int32Array(keys.length * 2).fill(-1);
+    this.cellHeads = new Int32Array(keys.length * 2);
+    for (let i = 0; i < keys.length; i++) {
+      if (keys[i] === -1) continue;
+      const at = this.slotOf(keys[i]);
+      this.cellKeys[at] = keys[i];
+      this.cellHeads[at] = heads[i];
+    }
   }
 
   star(k: number): GridStar {
@@ -139,7 +171,8 @@ export class StarGrid {
     for (let ix = x0; ix <= x1; ix++)
       for (let iy = y0; iy <= y1; iy++)
         for (let iz = z0; iz <= z1; iz++) {
-          for (let k = this.head.get(cellKey(ix, iy, iz)) ?? -1; k !== -1; k = this.next[k]) {
+          const at = this.slotOf(cellKey(ix, iy, iz));
+          for (let k = this.cellKeys[at] === -1 ? -1 : this.cellHeads[at]; k !== -1; k = this.next[k]) {
             const sep = angularSeparationDeg(raDeg, decDeg, this.ra[k], this.dec[k]) * 3600;
             if (sep <= this.toleranceArcsec) (out ??= []).push({ k, sepArcsec: sep });
           }

@@ -9,7 +9,8 @@ import { settleChunks } from './approve.js';
 if (!parentPort) throw new Error('settle-worker.ts must run as a worker thread');
 const port = parentPort;
 const { dbFile, batchId } = workerData as { dbFile: string; batchId: number };
-const db = openDb(dbFile, { role: 'background' });
+// its writes walk the batch in id order: a small page cache is enough (the process stays under 1 GB beside a check)
+const db = openDb(dbFile, { role: 'background', cacheMb: 32 });
 try {
   const counts = await settleChunks(db, batchId, (done, total) => port.postMessage({ kind: 'progress', done, total }));
   port.postMessage({ kind: 'done', counts });

@@ -39,6 +39,25 @@ describe('StarGrid (fixed-radius neighbours on the sphere)', () => {
     }
   });
 
+  it('agrees with a brute-force search over 30,000 stars spread on the sky (its cube table grows many times)', () => {
+    const rnd = mulberry32(5);
+    const tol = 600; // 10′: several stars within the tolerance of many points
+    const g = new StarGrid(tol);
+    const stars: { ra: number; dec: number }[] = [];
+    for (let i = 0; i < 30_000; i++) {
+      const ra = rnd() * 360;
+      const dec = (Math.asin(2 * rnd() - 1) * 180) / Math.PI;
+      g.add(star(i, ra, dec));
+      stars.push({ ra, dec });
+    }
+    for (let t = 0; t < 300; t++) {
+      const s = stars[Math.floor(rnd() * stars.length)];
+      const ra = (((s.ra + (rnd() - 0.5) * 0.2) % 360) + 360) % 360;
+      const dec = Math.max(-90, Math.min(90, s.dec + (rnd() - 0.5) * 0.2));
+      expect(g.near(ra, dec).map((x) => x.k).sort((a, b) => a - b)).toEqual(bruteForce(stars, ra, dec, tol));
+    }
+  });
+
   it('returns candidates nearest first with their separations', () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: 359.999, noNaN: true }), fc.double({ min: -89.99, max: 89.99, noNaN: true }), (ra, dec) => {
