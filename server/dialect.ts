@@ -36,9 +36,9 @@ export function sqliteConnectionOptions(filename: string, opts: { role?: 'reques
         conn.pragma('foreign_keys = ON');
         conn.pragma('busy_timeout = 10000');
         conn.pragma('synchronous = NORMAL');
-        // the index pages a large batch touches stay cached: 64 MiB, 192 MiB on a background
+        // the index pages a large batch touches stay cached: 64 MiB, 128 MiB on a background
         // (intake) connection, whose random index inserts otherwise miss the cache on every row
-        conn.pragma(`cache_size = ${opts.cacheMb ? -opts.cacheMb * 1024 : opts.role === 'background' ? -196608 : -65536}`);
+        conn.pragma(`cache_size = ${opts.cacheMb ? -opts.cacheMb * 1024 : opts.role === 'background' ? -131072 : -65536}`);
         if (filename !== ':memory:') conn.pragma(`wal_autocheckpoint = ${autoCheckpoint}`);
         done(null, conn);
       },

@@ -97,7 +97,7 @@ export class CheckRunner {
   private spawn(): Worker {
     // the check's memory is bounded by its chunk; a cap keeps V8 from growing its heap lazily
     // on a million-row batch (a worker over it ends and the batch is checked again, then failed)
-    const w = startWorker(new URL('./check-worker.ts', import.meta.url), { dbFile: this.dbFile, opts: this.opts }, { resourceLimits: { maxOldGenerationSizeMb: 512 } });
+    const w = startWorker(new URL('./check-worker.ts', import.meta.url), { dbFile: this.dbFile, opts: this.opts }, { resourceLimits: { maxOldGenerationSizeMb: 384 } });
     this.worker = w;
     w.on('message', (m: ToRunner) => {
       if (m.kind === 'progress') this.live.set(m.batchId, m);
