@@ -212,7 +212,8 @@ export function intakeService(db: Knex, config: Config, opts: IntakeOptions, rea
       if (q.state) base.where('batch_rows.state', q.state);
       const [{ n }] = await base.clone().count({ n: '*' });
       const rows = await base
-        .leftJoin('measurements', 'measurements.batch_row_id', 'batch_rows.id')
+        // through the row's measurement_id (the primary key), not measurements.batch_row_id (no index: a scan per row)
+        .leftJoin('measurements', 'measurements.id', 'batch_rows.measurement_id')
         .leftJoin('stars', 'stars.id', 'batch_rows.star_id')
         .leftJoin('measurements as dm', 'dm.id', 'batch_rows.duplicate_of')
         .leftJoin('batch_rows as dr', 'dr.id', 'dm.batch_row_id')
