@@ -26,7 +26,7 @@ export { settlingOf, type Decision };
 /** Batches with at most this many measurements to change are decided in the request's own transaction. */
 export const SYNC_DECISION_ROWS = 20_000;
 /** Measurements per short transaction of a settling batch (a few tens of milliseconds of writes). */
-export const SETTLE_CHUNK = 2_000;
+export const SETTLE_CHUNK = 1_000;
 
 export interface DecisionCounts {
   changed: number;
@@ -93,15 +93,19 @@ export async function beginDecision(db: Knex, actorId: number, batchId: number, 
     // a calibration being written (or rolled back) in short transactions finishes first
     const moving = await trx('calibrations').where({ batch_id: batchId }).whereIn('state', ['applying', 'reverting']).first('id', 'state');
     if (moving) throw new AppError(409, 'calibration_in_progress', `Batch ${batchId} has calibration ${moving.id} ${moving.state === 'applying' ? 'being applied' : 'being reverted'} now; decide once it has finished.`);
-    const n = async (state: string) => Number(((await trx('measurements').where({ batch_id: batchId, state }).count({ n: '*' })) as { n: number }[])[0].n);
-    const pending = await n('pending');
-    const moved = await n(movedFrom(decision));
+    // counted only up to the threshold here (the request's thread); a large batch is counted by the worker
+    const upTo = async (state: string, limit: number) =>
+      Number(((await trx.from(trx('measurements').where({ batch_id: batchId, state }).select(trx.raw('1')).limit(limit + 1).as('x')).count({ n: '*' })) as { n: number }[])[0].n);
+    const pending = await upTo('pending', syncRows);
+    const moved = pending > syncRows ? 0 : await upTo(movedFrom(decision), syncRows - pending);
     const s: Settle = { decision, actorId, note, from: b.state, total: pending + moved, changed: 0, moved: 0, startedAt: new Date().toISOString() };
     if (s.total <= syncRows) {
       s.changed = (await changeChunk(trx, batchId, decision, actorId, 'pending', Number.MAX_SAFE_INTEGER)).n;
       s.moved = (await changeChunk(trx, batchId, decision, actorId, 'moved', Number.MAX_SAFE_INTEGER)).n;
       return { done: true as const, batch: b, counts: await flip(trx, b, s) };
     }
+    // until the worker has counted: the batch's accepted rows, the usual size of a decision
+    s.total = Math.max(s.total, Number((b.counts_json ? JSON.parse(b.counts_json) : {}).accepted ?? 0));
     await trx('batches').where({ id: batchId }).update({ settling: decision, settle_json: JSON.stringify(s), updated_at: new Date().toISOString() });
     await recordAudit(trx, { actorId, action: `batch.${decision === 'approved' ? 'approve' : 'return'}_started`, entityType: 'batch', entityId: batchId, before: { state: b.state }, after: { settling: decision, measurements: s.total }, reason: note });
     return { done: false as const, batch: b, total: s.total };
@@ -114,7 +118,16 @@ export async function beginDecision(db: Knex, actorId: number, batchId: number, 
  * settling (already done, or never started).
  */
 export async function settleChunks(db: Knex, batchId: number, onProgress: (done: number, total: number) => void = () => {}, chunk = SETTLE_CHUNK): Promise<DecisionCounts | null> {
+  // the exact total, counted once here (a read: no write lock), for the progress
+  const b0 = await db('batches').where({ id: batchId }).first('settling', 'settle_json');
+  if (b0?.settling && b0.settle_json) {
+    const s = JSON.parse(b0.settle_json) as Settle;
+    const n = async (state: string) => Number(((await db('measurements').where({ batch_id: batchId, state }).count({ n: '*' })) as { n: number }[])[0].n);
+    const total = s.changed + s.moved + (await n('pending')) + (await n(movedFrom(s.decision)));
+    if (total !== s.total) await db('batches').where({ id: batchId, settling: s.decision }).update({ settle_json: JSON.stringify({ ...s, total }) });
+  }
   for (;;) {
+    const t0 = performance.now();
     const step = await db.transaction(async (trx) => {
       const b = await trx('batches').where({ id: batchId }).first('id', 'state', 'settling', 'settle_json');
       if (!b?.settling || !b.settle_json) return { end: true as const, counts: null };
@@ -136,5 +149,8 @@ export async function settleChunks(db: Knex, batchId: number, onProgress: (done:
     });
     if (step.end) return step.counts;
     onProgress(step.done, step.total);
+    // a pause as long as the transaction was: a writer waiting on another connection (an edit, a
+    // sign-in) gets the lock instead of finding it taken again at each of its retries
+    await new Promise((r) => setTimeout(r, Math.max(5, performance.now() - t0)));
   }
 }
