@@ -189,167 +189,167 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
     tt = t;
   };
   try {
-  for await (const c of preparedChunks(b.stored_path, proposal.delimiter, ctx, (x) => (bytesDone = x), Number(b.size_bytes) >= PARSE_WORKER_MIN_BYTES)) {
-    const n = c.n;
-    const num = c.num;
-    lap('wait');
-    onLines([c.lines[0], c.lines[n - 1]]);
-    await Promise.all([starIds.ensure(n), rowIds.ensure(n), measIds.ensure(n)]);
-    lap('ids');
-    const queries: (MatchQuery | null)[] = new Array(n);
-    for (let i = 0; i < n; i++) {
-      if (!c.ok[i]) {
-        queries[i] = null;
-        continue;
+    for await (const c of preparedChunks(b.stored_path, proposal.delimiter, ctx, (x) => (bytesDone = x), Number(b.size_bytes) >= PARSE_WORKER_MIN_BYTES)) {
+      const n = c.n;
+      const num = c.num;
+      lap('wait');
+      onLines([c.lines[0], c.lines[n - 1]]);
+      await Promise.all([starIds.ensure(n), rowIds.ensure(n), measIds.ensure(n)]);
+      lap('ids');
+      const queries: (MatchQuery | null)[] = new Array(n);
+      for (let i = 0; i < n; i++) {
+        if (!c.ok[i]) {
+          queries[i] = null;
+          continue;
+        }
+        const o = i * NUM_SLOTS;
+        const q: MatchQuery = { raDeg: num[o + NUM.pos_ra], decDeg: num[o + NUM.pos_dec] };
+        if (c.sourceId[i] !== null) q.sourceId = c.sourceId[i]!;
+        queries[i] = q;
       }
-      const o = i * NUM_SLOTS;
-      const q: MatchQuery = { raDeg: num[o + NUM.pos_ra], decDeg: num[o + NUM.pos_dec] };
-      if (c.sourceId[i] !== null) q.sourceId = c.sourceId[i]!;
-      queries[i] = q;
-    }
-    await matcher.prefetch(queries.filter((q): q is MatchQuery => q !== null));
-    lap('prefetch');
-    const toLoad = new Set<number>();
-    const matches: (MatchResult | null)[] = queries.map((q) => {
-      if (!q) return null;
-      const m = matcher.match(q);
-      if (m.kind === 'source_id' || m.kind === 'position') toLoad.add(m.star.id);
-      return m;
-    });
-    lap('match');
-    // measurements the uploader may see of the matched stars, for de-duplication
-    type Known = { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number; line?: number };
-    const known = new Map<string, Known[]>();
-    for (const r of await selectRowsWhereIn(db, 'measurements', 'star_id', [...toLoad], ['id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'state', 'batch_id'])) {
-      if (r[9] !== 'approved' && !own.has(r[10] as number)) continue;
-      const k = `${r[1]}|${r[2]}|${r[3]}`;
-      const e: Known = { id: r[0] as number, mjd: r[4] as number | null, q: r[5] as number, u: r[6] as number, q_err: r[7] as number, u_err: r[8] as number };
-      const list = known.get(k);
-      if (list) list.push(e);
-      else known.set(k, [e]);
-    }
-
-    lap('known');
-    const newStars: unknown[][] = [];
-    const rowsOut: unknown[][] = [];
-    const measOut: unknown[][] = [];
-    let newInChunk = false;
-    for (let i = 0; i < n; i++) {
-      counts.rows++;
-      const rowId = rowIds.take();
-      const line = c.lines[i];
-      // a star created earlier in this chunk is found only by matching again
-      const m = newInChunk && queries[i] ? matcher.match(queries[i]!) : matches[i];
-      if (!m) {
-        counts.rejected++;
-        rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'rejected', c.errorsJson[i], c.warningsJson[i], null, null, null, null, null, null]);
-        continue;
-      }
-      const o = i * NUM_SLOTS;
-      let star: StarRef | null = null;
-      let starMatch: string | null = null;
-      const notes: string[] = [];
-      if (m.hidden?.length) {
-        for (const h of m.hidden) notes.push(`star ${h.id}${h.name ? ` (${h.name})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
-      }
-      if (m.kind === 'source_id' || m.kind === 'position') {
-        star = m.star;
-        starMatch = m.kind;
-        if (star.batch_id !== batchId) matched.add(star.id);
-      } else if (m.kind === 'none') {
-        const plx = num[o + NUM.star_plx];
-        const plxErr = num[o + NUM.star_plx_err];
-        star = {
-          id: starIds.take(), name: c.starName[i], source_id: c.sourceId[i],
-          ra_deg: num[o + NUM.pos_ra], dec_deg: num[o + NUM.pos_dec], parallax_mas: Number.isNaN(plx) ? null : plx, parallax_err_mas: Number.isNaN(plxErr) ? null : plxErr,
-          hpx15: num[o + NUM.star_hpx15], batch_id: batchId,
-        };
-        starMatch = 'new';
-        const slot = matcher.remember(star);
-        if (deferStars) deferred.push(slot);
-        else newStars.push(starRow(star, num[o + NUM.star_glon], num[o + NUM.star_glat]));
-        newInChunk = true;
-        counts.newStars++;
-      }
-      let warningsJson = c.warningsJson[i];
-      const redo = c.redo[i];
-      if (redo && star && star.parallax_mas !== null && star.parallax_err_mas !== null) {
-        // no parallax or distance in the row: derive again with the star's catalog parallax
-        const { derived, warnings } = deriveMeasurement(redo.row, { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas });
-        writeDerived(c, i, derived);
-        warningsJson = warningsJsonOf(redo.warnings, warnings, headerOf);
-      }
-      const measId = measIds.take();
-      const starId = star ? star.id : null;
-      let state: RowState = 'accepted';
-      let measState = 'pending';
-      let candidatesJson: string | null = null;
-      let duplicateOf: number | null = null;
-      const band = c.band[i]!;
-      const instrument = c.instrument[i]!;
-      const mjdRaw = num[o + NUM.mjd];
-      const mjd = Number.isNaN(mjdRaw) ? null : mjdRaw;
-      const q = num[o + NUM.q], u = num[o + NUM.u], qErr = num[o + NUM.q_err], uErr = num[o + NUM.u_err];
-      if (m.kind === 'ambiguous' || m.kind === 'held') {
-        state = 'ambiguous';
-        measState = 'ambiguous';
-        candidatesJson = JSON.stringify(m.kind === 'held' ? [] : m.candidates.map((x) => ({ id: x.star.id, name: x.star.name, sourceId: x.star.source_id, separationArcsec: Number(x.separationArcsec.toFixed(3)) })));
-        counts.ambiguous++;
-      } else {
-        const key = `${starId}|${band}|${instrument}`;
-        let list = known.get(key);
-        const sameEpoch = list?.find((k) => (k.mjd === null && mjd === null) || (k.mjd !== null && mjd !== null && Math.abs(k.mjd - mjd) <= opts.mjdToleranceDays));
-        if (sameEpoch) {
-          const identical = same(sameEpoch.q, q) && same(sameEpoch.u, u) && same(sameEpoch.q_err, qErr) && same(sameEpoch.u_err, uErr);
-          duplicateOf = sameEpoch.id;
-          if (identical) {
-            counts.duplicates++;
-            if (warningsJson !== null) counts.warnings++;
-            rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'duplicate', null, warningsJson, null, starMatch, starId, null, duplicateOf, notes.length ? notes.join('; ') : null]);
-            continue;
-          }
-          state = 'conflict';
-          measState = 'conflict';
-          counts.conflicts++;
-        } else counts.accepted++;
-        const entry = { id: measId, mjd, q, u, q_err: qErr, u_err: uErr, line };
-        if (list) list.push(entry);
-        else known.set(key, (list = [entry]));
-      }
-      if (warningsJson !== null) counts.warnings++;
-      rowsOut.push([rowId, batchId, line, c.valuesJson[i], state, null, warningsJson, candidatesJson, starMatch, starId, measId, duplicateOf, notes.length ? notes.join('; ') : null]);
-      measOut.push(measurementValues(c, i, measId, starId, batchId, rowId, measState, now, state === 'conflict' ? duplicateOf : null));
-    }
-    lap('rows');
-    await writeInShortTransactions(
-      db,
-      [
-        { table: 'stars', cols: STAR_COLS, rows: deferStars ? [] : newStars },
-        { table: 'batch_rows', cols: ROW_COLS, rows: rowsOut },
-        { table: 'measurements', cols: MEAS_COLS, rows: measOut },
-      ],
-      WRITE_BUDGET_MS,
-      [{ sql: 'UPDATE batches SET rows_done = ?, bytes_done = ? WHERE id = ?', params: [counts.rows, bytesDone, batchId] }],
-    );
-    lap('write');
-    if (Date.now() - lastReport > 250) {
-      lastReport = Date.now();
-      report({ batchId, rowsDone: counts.rows, bytesDone, rowsTotal: Math.max(rowsTotal, counts.rows) });
-    }
-  }
-  if (deferred.length) {
-    // in id order: the table (clustered on id) and its batch_id index grow at their end
-    for (let i = 0; i < deferred.length; i += 20_000) {
-      const rows = deferred.slice(i, i + 20_000).map((slot) => {
-        const s = matcher.starAt(slot);
-        const g = icrsToGalactic(s.ra_deg, s.dec_deg);
-        return starRow(s, g.lDeg, g.bDeg);
+      await matcher.prefetch(queries.filter((q): q is MatchQuery => q !== null));
+      lap('prefetch');
+      const toLoad = new Set<number>();
+      const matches: (MatchResult | null)[] = queries.map((q) => {
+        if (!q) return null;
+        const m = matcher.match(q);
+        if (m.kind === 'source_id' || m.kind === 'position') toLoad.add(m.star.id);
+        return m;
       });
-      await writeInShortTransactions(db, [{ table: 'stars', cols: STAR_COLS, rows }], WRITE_BUDGET_MS);
+      lap('match');
+      // measurements the uploader may see of the matched stars, for de-duplication
+      type Known = { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number; line?: number };
+      const known = new Map<string, Known[]>();
+      for (const r of await selectRowsWhereIn(db, 'measurements', 'star_id', [...toLoad], ['id', 'star_id', 'band', 'instrument', 'mjd', 'q', 'u', 'q_err', 'u_err', 'state', 'batch_id'])) {
+        if (r[9] !== 'approved' && !own.has(r[10] as number)) continue;
+        const k = `${r[1]}|${r[2]}|${r[3]}`;
+        const e: Known = { id: r[0] as number, mjd: r[4] as number | null, q: r[5] as number, u: r[6] as number, q_err: r[7] as number, u_err: r[8] as number };
+        const list = known.get(k);
+        if (list) list.push(e);
+        else known.set(k, [e]);
+      }
+
+      lap('known');
+      const newStars: unknown[][] = [];
+      const rowsOut: unknown[][] = [];
+      const measOut: unknown[][] = [];
+      let newInChunk = false;
+      for (let i = 0; i < n; i++) {
+        counts.rows++;
+        const rowId = rowIds.take();
+        const line = c.lines[i];
+        // a star created earlier in this chunk is found only by matching again
+        const m = newInChunk && queries[i] ? matcher.match(queries[i]!) : matches[i];
+        if (!m) {
+          counts.rejected++;
+          rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'rejected', c.errorsJson[i], c.warningsJson[i], null, null, null, null, null, null]);
+          continue;
+        }
+        const o = i * NUM_SLOTS;
+        let star: StarRef | null = null;
+        let starMatch: string | null = null;
+        const notes: string[] = [];
+        if (m.hidden?.length) {
+          for (const h of m.hidden) notes.push(`star ${h.id}${h.name ? ` (${h.name})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
+        }
+        if (m.kind === 'source_id' || m.kind === 'position') {
+          star = m.star;
+          starMatch = m.kind;
+          if (star.batch_id !== batchId) matched.add(star.id);
+        } else if (m.kind === 'none') {
+          const plx = num[o + NUM.star_plx];
+          const plxErr = num[o + NUM.star_plx_err];
+          star = {
+            id: starIds.take(), name: c.starName[i], source_id: c.sourceId[i],
+            ra_deg: num[o + NUM.pos_ra], dec_deg: num[o + NUM.pos_dec], parallax_mas: Number.isNaN(plx) ? null : plx, parallax_err_mas: Number.isNaN(plxErr) ? null : plxErr,
+            hpx15: num[o + NUM.star_hpx15], batch_id: batchId,
+          };
+          starMatch = 'new';
+          const slot = matcher.remember(star);
+          if (deferStars) deferred.push(slot);
+          else newStars.push(starRow(star, num[o + NUM.star_glon], num[o + NUM.star_glat]));
+          newInChunk = true;
+          counts.newStars++;
+        }
+        let warningsJson = c.warningsJson[i];
+        const redo = c.redo[i];
+        if (redo && star && star.parallax_mas !== null && star.parallax_err_mas !== null) {
+          // no parallax or distance in the row: derive again with the star's catalog parallax
+          const { derived, warnings } = deriveMeasurement(redo.row, { parallaxMas: star.parallax_mas, parallaxErrMas: star.parallax_err_mas });
+          writeDerived(c, i, derived);
+          warningsJson = warningsJsonOf(redo.warnings, warnings, headerOf);
+        }
+        const measId = measIds.take();
+        const starId = star ? star.id : null;
+        let state: RowState = 'accepted';
+        let measState = 'pending';
+        let candidatesJson: string | null = null;
+        let duplicateOf: number | null = null;
+        const band = c.band[i]!;
+        const instrument = c.instrument[i]!;
+        const mjdRaw = num[o + NUM.mjd];
+        const mjd = Number.isNaN(mjdRaw) ? null : mjdRaw;
+        const q = num[o + NUM.q], u = num[o + NUM.u], qErr = num[o + NUM.q_err], uErr = num[o + NUM.u_err];
+        if (m.kind === 'ambiguous' || m.kind === 'held') {
+          state = 'ambiguous';
+          measState = 'ambiguous';
+          candidatesJson = JSON.stringify(m.kind === 'held' ? [] : m.candidates.map((x) => ({ id: x.star.id, name: x.star.name, sourceId: x.star.source_id, separationArcsec: Number(x.separationArcsec.toFixed(3)) })));
+          counts.ambiguous++;
+        } else {
+          const key = `${starId}|${band}|${instrument}`;
+          let list = known.get(key);
+          const sameEpoch = list?.find((k) => (k.mjd === null && mjd === null) || (k.mjd !== null && mjd !== null && Math.abs(k.mjd - mjd) <= opts.mjdToleranceDays));
+          if (sameEpoch) {
+            const identical = same(sameEpoch.q, q) && same(sameEpoch.u, u) && same(sameEpoch.q_err, qErr) && same(sameEpoch.u_err, uErr);
+            duplicateOf = sameEpoch.id;
+            if (identical) {
+              counts.duplicates++;
+              if (warningsJson !== null) counts.warnings++;
+              rowsOut.push([rowId, batchId, line, c.valuesJson[i], 'duplicate', null, warningsJson, null, starMatch, starId, null, duplicateOf, notes.length ? notes.join('; ') : null]);
+              continue;
+            }
+            state = 'conflict';
+            measState = 'conflict';
+            counts.conflicts++;
+          } else counts.accepted++;
+          const entry = { id: measId, mjd, q, u, q_err: qErr, u_err: uErr, line };
+          if (list) list.push(entry);
+          else known.set(key, (list = [entry]));
+        }
+        if (warningsJson !== null) counts.warnings++;
+        rowsOut.push([rowId, batchId, line, c.valuesJson[i], state, null, warningsJson, candidatesJson, starMatch, starId, measId, duplicateOf, notes.length ? notes.join('; ') : null]);
+        measOut.push(measurementValues(c, i, measId, starId, batchId, rowId, measState, now, state === 'conflict' ? duplicateOf : null));
+      }
+      lap('rows');
+      await writeInShortTransactions(
+        db,
+        [
+          { table: 'stars', cols: STAR_COLS, rows: deferStars ? [] : newStars },
+          { table: 'batch_rows', cols: ROW_COLS, rows: rowsOut },
+          { table: 'measurements', cols: MEAS_COLS, rows: measOut },
+        ],
+        WRITE_BUDGET_MS,
+        [{ sql: 'UPDATE batches SET rows_done = ?, bytes_done = ? WHERE id = ?', params: [counts.rows, bytesDone, batchId] }],
+      );
+      lap('write');
+      if (Date.now() - lastReport > 250) {
+        lastReport = Date.now();
+        report({ batchId, rowsDone: counts.rows, bytesDone, rowsTotal: Math.max(rowsTotal, counts.rows) });
+      }
     }
-    deferred.length = 0;
-  }
-  lap('stars');
+    if (deferred.length) {
+      // in id order: the table (clustered on id) and its batch_id index grow at their end
+      for (let i = 0; i < deferred.length; i += 20_000) {
+        const rows = deferred.slice(i, i + 20_000).map((slot) => {
+          const s = matcher.starAt(slot);
+          const g = icrsToGalactic(s.ra_deg, s.dec_deg);
+          return starRow(s, g.lDeg, g.bDeg);
+        });
+        await writeInShortTransactions(db, [{ table: 'stars', cols: STAR_COLS, rows }], WRITE_BUDGET_MS);
+      }
+      deferred.length = 0;
+    }
+    lap('stars');
   } finally {
     if (deferStars) await setForeignKeyChecks(db, true);
   }

@@ -18,10 +18,9 @@
 import type { Knex } from 'knex';
 import { recordAudit } from '../audit/service.js';
 import { AppError, notFound } from '../errors.js';
+import type { Decision, Settle } from '../lib/settling.js';
 
-import { settlingOf, type Decision, type Settle } from '../lib/settling.js';
-
-export { settlingOf, type Decision };
+export type { Decision };
 
 /** Batches with at most this many measurements to change are decided in the request's own transaction. */
 export const SYNC_DECISION_ROWS = 20_000;
