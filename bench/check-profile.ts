@@ -23,7 +23,7 @@ for (const name of ['batch-a.csv', 'batch-b.csv']) {
   const [id] = await db('batches').insert({ filename: name, size_bytes: fs.statSync(file).size, stored_path: file, sha256: name, state: 'checking', uploaded_by: uid, mapping_json: JSON.stringify(proposal.mapping), proposal_json: JSON.stringify({ ...proposal, preview: [], delimiter: head.delimiter }), created_at: now, updated_at: now });
   const t0 = performance.now();
   const cpu0 = process.cpuUsage();
-  await checkBatch(db, id, { crossmatchArcsec: 1, mjdToleranceDays: 1e-3 }, () => {});
+  await checkBatch(db, id, { crossmatchArcsec: 1, mjdToleranceDays: 1e-3, timingFile: process.env.STARVEIL_INTAKE_TIMING ?? null }, () => {});
   const cpu = process.cpuUsage(cpu0);
   const b = await db('batches').where({ id }).first();
   console.log(`${name}: ${b.state} in ${((performance.now() - t0) / 1000).toFixed(1)} s (this thread's CPU ${((cpu.user + cpu.system) / 1e6).toFixed(1)} s)`, b.counts_json ?? b.failure);

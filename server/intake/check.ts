@@ -182,6 +182,13 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
 
   const ctx: PrepareContext = { headers, mapping, batchInstrument: b.instrument, instruments: [...instruments], crossmatchArcsec: opts.crossmatchArcsec };
   const T: Record<string, number> = { wait: 0, ids: 0, prefetch: 0, match: 0, known: 0, rows: 0, write: 0, stars: 0 };
+  const mem = { rss: 0, heap: 0, external: 0 };
+  const sampleMemory = () => {
+    const m = process.memoryUsage();
+    mem.rss = Math.max(mem.rss, m.rss);
+    mem.heap = Math.max(mem.heap, m.heapUsed);
+    mem.external = Math.max(mem.external, m.external + m.arrayBuffers);
+  };
   let tt = performance.now();
   const lap = (k: string) => {
     const t = performance.now();
@@ -216,6 +223,15 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         if (m.kind === 'source_id' || m.kind === 'position') toLoad.add(m.star.id);
         return m;
       });
+      // names of preloaded stars a note or an ambiguous match will show (read only for those)
+      const named: StarRef[] = [];
+      for (const m of matches) {
+        if (!m) continue;
+        if (m.hidden) named.push(...m.hidden);
+        if (m.kind === 'ambiguous') for (const x of m.candidates) named.push(x.star);
+      }
+      const names = named.length ? await matcher.namesOf(named) : null;
+      const nameOf = (s: StarRef) => (s.name !== undefined ? s.name : (names?.get(s.id) ?? null));
       lap('match');
       // measurements the uploader may see of the matched stars, for de-duplication
       type Known = { id: number; mjd: number | null; q: number; u: number; q_err: number; u_err: number; line?: number };
@@ -250,7 +266,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         let starMatch: string | null = null;
         const notes: string[] = [];
         if (m.hidden?.length) {
-          for (const h of m.hidden) notes.push(`star ${h.id}${h.name ? ` (${h.name})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
+          for (const h of m.hidden) notes.push(`star ${h.id}${nameOf(h) ? ` (${nameOf(h)})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
         }
         if (m.kind === 'source_id' || m.kind === 'position') {
           star = m.star;
@@ -293,7 +309,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         if (m.kind === 'ambiguous' || m.kind === 'held') {
           state = 'ambiguous';
           measState = 'ambiguous';
-          candidatesJson = JSON.stringify(m.kind === 'held' ? [] : m.candidates.map((x) => ({ id: x.star.id, name: x.star.name, sourceId: x.star.source_id, separationArcsec: Number(x.separationArcsec.toFixed(3)) })));
+          candidatesJson = JSON.stringify(m.kind === 'held' ? [] : m.candidates.map((x) => ({ id: x.star.id, name: nameOf(x.star), sourceId: x.star.source_id, separationArcsec: Number(x.separationArcsec.toFixed(3)) })));
           counts.ambiguous++;
         } else {
           const key = `${starId}|${band}|${instrument}`;
@@ -332,6 +348,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         [{ sql: 'UPDATE batches SET rows_done = ?, bytes_done = ? WHERE id = ?', params: [counts.rows, bytesDone, batchId] }],
       );
       lap('write');
+      if (opts.timingFile) sampleMemory();
       if (Date.now() - lastReport > 250) {
         lastReport = Date.now();
         report({ batchId, rowsDone: counts.rows, bytesDone, rowsTotal: Math.max(rowsTotal, counts.rows) });
@@ -353,7 +370,7 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
   } finally {
     if (deferStars) await setForeignKeyChecks(db, true);
   }
-  if (opts.timingFile) fs.appendFileSync(opts.timingFile, `batch ${batchId} ${counts.rows} rows: ${Object.entries(T).map(([k, v]) => `${k} ${(v / 1000).toFixed(1)}s`).join(', ')}; ${JSON.stringify(writeStats)}\n`);
+  if (opts.timingFile) fs.appendFileSync(opts.timingFile, `batch ${batchId} ${counts.rows} rows: ${Object.entries(T).map(([k, v]) => `${k} ${(v / 1000).toFixed(1)}s`).join(', ')}; ${JSON.stringify(writeStats)}; peak MB: ${Object.entries(mem).map(([k, v]) => `${k} ${(v / 2 ** 20).toFixed(0)}`).join(', ')}\n`);
   counts.matchedStars = matched.size;
   await syncIdSequences(db, ['stars', 'batch_rows', 'measurements']);
   return counts;

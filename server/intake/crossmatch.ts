@@ -25,6 +25,9 @@ export type MatchResult = (
   hidden?: StarRef[];
 };
 
+/** What preloadAll reads of each star: no name (a row needs one only for a note or an ambiguous match; namesOf reads those). */
+const PRELOAD_COLS = ['id', 'source_id', 'ra_deg', 'dec_deg', 'parallax_mas', 'parallax_err_mas', 'hpx15', 'batch_id'];
+
 /** Read every star up front when the catalog holds at most this many per row of the batch. */
 export const PRELOAD_STARS_PER_ROW = 25;
 
@@ -62,15 +65,27 @@ export class CrossMatcher {
     this.grid = new StarGrid(toleranceArcsec);
   }
 
-  /** Read every star of the catalog (each star once, in storage order). */
+  /** Read every star of the catalog (each star once, in storage order), without its name. */
   async preloadAll(): Promise<number> {
     let n = 0;
-    await iterateRows(this.db, `SELECT ${STAR_COLS.map((c) => `"${c}"`).join(',')} FROM stars`, [], (r) => {
-      this.grid.add(starOf(r));
+    await iterateRows(this.db, `SELECT ${PRELOAD_COLS.map((c) => `"${c}"`).join(',')} FROM stars`, [], (r) => {
+      this.grid.add({
+        id: r[0] as number, name: undefined, source_id: r[1] as string | null, ra_deg: r[2] as number, dec_deg: r[3] as number,
+        parallax_mas: r[4] as number | null, parallax_err_mas: r[5] as number | null, hpx15: Number(r[6]), batch_id: r[7] === null || r[7] === undefined ? null : Number(r[7]),
+      });
       n++;
     });
     this.complete = true;
     return n;
+  }
+
+  /** Names of the given stars whose name was not read with them (preloadAll), by id. */
+  async namesOf(stars: Iterable<StarRef>): Promise<Map<number, string | null>> {
+    const ids = new Set<number>();
+    for (const s of stars) if (s.name === undefined) ids.add(s.id);
+    const out = new Map<number, string | null>();
+    if (ids.size) for (const r of await selectRowsWhereIn(this.db, 'stars', 'id', [...ids], ['id', 'name'])) out.set(r[0] as number, r[1] as string | null);
+    return out;
   }
 
   /** Keep a star created by this batch; returns its slot (see starAt). */

@@ -6,7 +6,7 @@
  * neighbour search on the sphere). Each candidate is then checked with the exact separation
  * (Vincenty, science/separation.ts).
  *
- * Stars are kept in growable typed arrays (a million stars take ~80 MB), never as one object
+ * Stars are kept in pages of typed arrays (a million stars take ~56 MB), never as one object
  * each; a StarRef is built only for a star a row matched.
  */
 import { angularSeparationDeg } from '../science/separation.js';
@@ -15,7 +15,8 @@ const D2R = Math.PI / 180;
 
 export interface GridStar {
   id: number;
-  name: string | null;
+  /** undefined: not read with the star (CrossMatcher.namesOf reads it when a row needs it) */
+  name: string | null | undefined;
   source_id: string | null;
   ra_deg: number;
   dec_deg: number;
@@ -30,18 +31,34 @@ const MIN_CELL = 2e-3;
 /** Cube coordinates run over ±1/h ≤ ±500: 10 bits each, one exact integer key. */
 const cellKey = (ix: number, iy: number, iz: number) => ((ix + 512) << 20) | ((iy + 512) << 10) | (iz + 512);
 
+/**
+ * Slots live in pages of PAGE stars: the grid grows by one page at a time, never by copying what
+ * it holds (a doubling array would briefly hold three times the stars' bytes and keep up to twice
+ * what it needs).
+ */
+const PAGE_BITS = 16;
+const PAGE = 1 << PAGE_BITS;
+const IN_PAGE = PAGE - 1;
+
+/** Per-page columns of the stars: 8 + 8 + 8 + 8 + 8 + 8 + 4 + 4 = 56 bytes a star. */
+class Page {
+  readonly ids = new Float64Array(PAGE);
+  readonly ra = new Float64Array(PAGE);
+  readonly dec = new Float64Array(PAGE);
+  readonly plx = new Float64Array(PAGE);
+  readonly plxErr = new Float64Array(PAGE);
+  readonly hpx = new Float64Array(PAGE);
+  /** batch id, -1 for none (batch ids are positive 32-bit integers) */
+  readonly batch = new Int32Array(PAGE);
+  /** next slot in the same cube, -1 at the end */
+  readonly next = new Int32Array(PAGE);
+}
+
 export class StarGrid {
   private n = 0;
-  private cap = 0;
-  private ids = new Float64Array(0);
-  private ra = new Float64Array(0);
-  private dec = new Float64Array(0);
-  private plx = new Float64Array(0);
-  private plxErr = new Float64Array(0);
-  private hpx = new Float64Array(0);
-  private batch = new Float64Array(0);
-  private next = new Int32Array(0);
-  private names: (string | null)[] = [];
+  private pages: Page[] = [];
+  /** names and source ids: arrays of references, filled only where a star has one */
+  private names: (string | null | undefined)[] = [];
   private sources: (string | null)[] = [];
   /** cube key → last star added in it (open addressing, linear probing; -1 = empty): 8 bytes a slot, not a Map entry per cube */
   private cellKeys = new Int32Array(1 << 12).fill(-1);
@@ -61,39 +78,22 @@ export class StarGrid {
     return this.n;
   }
 
-  private grow(): void {
-    const cap = Math.max(1024, this.cap * 2);
-    const f = (a: Float64Array) => {
-      const b = new Float64Array(cap);
-      b.set(a);
-      return b;
-    };
-    this.ids = f(this.ids);
-    this.ra = f(this.ra);
-    this.dec = f(this.dec);
-    this.plx = f(this.plx);
-    this.plxErr = f(this.plxErr);
-    this.hpx = f(this.hpx);
-    this.batch = f(this.batch);
-    const nx = new Int32Array(cap);
-    nx.set(this.next);
-    this.next = nx;
-    this.cap = cap;
-  }
-
   /** Add a star (the caller adds each star once). Returns its slot. */
   add(s: GridStar): number {
-    if (this.n === this.cap) this.grow();
+    if (s.batch_id !== null && !(s.batch_id > 0 && s.batch_id < 2 ** 31 && Number.isInteger(s.batch_id))) throw new Error(`star ${s.id}: batch id ${s.batch_id} out of range`);
     const k = this.n++;
-    this.ids[k] = s.id;
-    this.ra[k] = s.ra_deg;
-    this.dec[k] = s.dec_deg;
-    this.plx[k] = s.parallax_mas ?? NaN;
-    this.plxErr[k] = s.parallax_err_mas ?? NaN;
-    this.hpx[k] = s.hpx15;
-    this.batch[k] = s.batch_id ?? NaN;
-    this.names[k] = s.name;
-    this.sources[k] = s.source_id;
+    if (k >> PAGE_BITS === this.pages.length) this.pages.push(new Page());
+    const pg = this.pages[k >> PAGE_BITS];
+    const j = k & IN_PAGE;
+    pg.ids[j] = s.id;
+    pg.ra[j] = s.ra_deg;
+    pg.dec[j] = s.dec_deg;
+    pg.plx[j] = s.parallax_mas ?? NaN;
+    pg.plxErr[j] = s.parallax_err_mas ?? NaN;
+    pg.hpx[j] = s.hpx15;
+    pg.batch[j] = s.batch_id ?? -1;
+    this.names.push(s.name);
+    this.sources.push(s.source_id);
     if (s.source_id) this.bySource.set(s.source_id, k);
     const ra = s.ra_deg * D2R;
     const dec = s.dec_deg * D2R;
@@ -103,10 +103,10 @@ export class StarGrid {
     if (this.cellKeys[at] === -1) {
       this.cellKeys[at] = key;
       this.cellHeads[at] = k;
-      this.next[k] = -1;
+      pg.next[j] = -1;
       if (++this.cells * 2 > this.cellKeys.length) this.rehash();
     } else {
-      this.next[k] = this.cellHeads[at];
+      pg.next[j] = this.cellHeads[at];
       this.cellHeads[at] = k;
     }
     return k;
@@ -135,15 +135,17 @@ export class StarGrid {
   }
 
   star(k: number): GridStar {
-    const b = this.batch[k];
-    const p = this.plx[k];
-    const pe = this.plxErr[k];
-    return { id: this.ids[k], name: this.names[k], source_id: this.sources[k], ra_deg: this.ra[k], dec_deg: this.dec[k], parallax_mas: Number.isNaN(p) ? null : p, parallax_err_mas: Number.isNaN(pe) ? null : pe, hpx15: this.hpx[k], batch_id: Number.isNaN(b) ? null : b };
+    const pg = this.pages[k >> PAGE_BITS];
+    const j = k & IN_PAGE;
+    const b = pg.batch[j];
+    const p = pg.plx[j];
+    const pe = pg.plxErr[j];
+    return { id: pg.ids[j], name: this.names[k], source_id: this.sources[k], ra_deg: pg.ra[j], dec_deg: pg.dec[j], parallax_mas: Number.isNaN(p) ? null : p, parallax_err_mas: Number.isNaN(pe) ? null : pe, hpx15: pg.hpx[j], batch_id: b === -1 ? null : b };
   }
 
   batchOf(k: number): number | null {
-    const b = this.batch[k];
-    return Number.isNaN(b) ? null : b;
+    const b = this.pages[k >> PAGE_BITS].batch[k & IN_PAGE];
+    return b === -1 ? null : b;
   }
 
   sourceOf(k: number): string | null {
@@ -172,9 +174,12 @@ export class StarGrid {
       for (let iy = y0; iy <= y1; iy++)
         for (let iz = z0; iz <= z1; iz++) {
           const at = this.slotOf(cellKey(ix, iy, iz));
-          for (let k = this.cellKeys[at] === -1 ? -1 : this.cellHeads[at]; k !== -1; k = this.next[k]) {
-            const sep = angularSeparationDeg(raDeg, decDeg, this.ra[k], this.dec[k]) * 3600;
+          for (let k = this.cellKeys[at] === -1 ? -1 : this.cellHeads[at]; k !== -1; ) {
+            const pg = this.pages[k >> PAGE_BITS];
+            const j = k & IN_PAGE;
+            const sep = angularSeparationDeg(raDeg, decDeg, pg.ra[j], pg.dec[j]) * 3600;
             if (sep <= this.toleranceArcsec) (out ??= []).push({ k, sepArcsec: sep });
+            k = pg.next[j];
           }
         }
     if (!out) return [];

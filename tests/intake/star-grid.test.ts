@@ -80,4 +80,33 @@ describe('StarGrid (fixed-radius neighbours on the sphere)', () => {
     expect(g.star(k)).toEqual({ id: 42, name: 'KS 1', source_id: '123', ra_deg: 10, dec_deg: 20, parallax_mas: null, parallax_err_mas: 0.1, hpx15: 7, batch_id: 3 });
     expect(g.slotOfSource('123')).toBe(k);
   });
+
+  it('keeps every star exactly across its storage pages (65,536 stars a page)', () => {
+    // 140,000 stars fill two pages and part of a third; every star reads back as added, and
+    // stars on both sides of a page boundary are found by position
+    const rnd = mulberry32(9);
+    const g = new StarGrid(1);
+    const n = 140_000;
+    const stars: { ra: number; dec: number }[] = [];
+    for (let i = 0; i < n; i++) {
+      const ra = rnd() * 360;
+      const dec = (Math.asin(2 * rnd() - 1) * 180) / Math.PI;
+      const k = g.add({ id: 1_000_000 + i, name: i % 3 ? `KS ${i}` : undefined, source_id: null, ra_deg: ra, dec_deg: dec, parallax_mas: i % 2 ? 1 + i / n : null, parallax_err_mas: 0.1, hpx15: 2 ** 33 + i, batch_id: i % 5 ? i % 7 + 1 : null });
+      expect(k).toBe(i);
+      stars.push({ ra, dec });
+    }
+    expect(g.size).toBe(n);
+    for (const i of [0, 65_535, 65_536, 65_537, 131_071, 131_072, n - 1]) {
+      expect(g.star(i)).toEqual({ id: 1_000_000 + i, name: i % 3 ? `KS ${i}` : undefined, source_id: null, ra_deg: stars[i].ra, dec_deg: stars[i].dec, parallax_mas: i % 2 ? 1 + i / n : null, parallax_err_mas: 0.1, hpx15: 2 ** 33 + i, batch_id: i % 5 ? i % 7 + 1 : null });
+      expect(g.batchOf(i)).toBe(i % 5 ? i % 7 + 1 : null);
+      expect(g.near(stars[i].ra, stars[i].dec).map((x) => x.k)).toEqual(bruteForce(stars, stars[i].ra, stars[i].dec, 1));
+    }
+  });
+
+  it('refuses a batch id that is not a positive 32-bit integer', () => {
+    const g = new StarGrid(1);
+    expect(() => g.add({ ...star(1, 10, 10), batch_id: 2 ** 31 })).toThrow(/batch id/);
+    expect(() => g.add({ ...star(2, 10, 10), batch_id: 0 })).toThrow(/batch id/);
+    expect(g.size).toBe(0);
+  });
 });
