@@ -182,12 +182,12 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
 
   const ctx: PrepareContext = { headers, mapping, batchInstrument: b.instrument, instruments: [...instruments], crossmatchArcsec: opts.crossmatchArcsec };
   const T: Record<string, number> = { wait: 0, ids: 0, prefetch: 0, match: 0, known: 0, rows: 0, write: 0, stars: 0 };
-  const mem = { rss: 0, heap: 0, external: 0 };
+  const mem = { rss: 0, heapTotal: 0, external: 0 };
   const sampleMemory = () => {
     const m = process.memoryUsage();
     mem.rss = Math.max(mem.rss, m.rss);
-    mem.heap = Math.max(mem.heap, m.heapUsed);
-    mem.external = Math.max(mem.external, m.external + m.arrayBuffers);
+    mem.heapTotal = Math.max(mem.heapTotal, m.heapTotal);
+    mem.external = Math.max(mem.external, m.external);
   };
   let tt = performance.now();
   const lap = (k: string) => {

@@ -213,6 +213,12 @@ async function readHead(filePath: string, delimiter: string, count: number): Pro
 
 /** Rows per chunk: each chunk is checked and written as a unit. */
 export const CSV_CHUNK_ROWS = 2000;
+/**
+ * Characters per chunk: a chunk of wide or long rows ends sooner, so the memory a chunk takes
+ * (in the parse worker, whose heap is small, and on its way to the check) stays bounded whatever
+ * the rows look like.
+ */
+export const CSV_CHUNK_CHARS = 4 << 20;
 
 export interface CsvRecord {
   line: number;
@@ -370,6 +376,8 @@ async function* readCsvRecords(filePath: string, delimiter: string, opts: { incl
   let done = false;
   let headerSeen = false;
   let n = 0;
+  /** characters in the chunk being gathered */
+  let chars = 0;
   try {
     try {
       for await (const item of items) {
@@ -385,9 +393,11 @@ async function* readCsvRecords(filePath: string, delimiter: string, opts: { incl
         lastLine = item.info.lines;
         batch.push({ line: item.info.lines, fields: item.record });
         n++;
-        if (batch.length >= CSV_CHUNK_ROWS || (opts.limit && n >= opts.limit)) {
+        for (let f = 0; f < item.record.length; f++) chars += item.record[f].length + 1;
+        if (batch.length >= CSV_CHUNK_ROWS || chars >= CSV_CHUNK_CHARS || (opts.limit && n >= opts.limit)) {
           yield batch;
           batch = [];
+          chars = 0;
           if (opts.limit && n >= opts.limit) return;
         }
       }

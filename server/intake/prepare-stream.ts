@@ -13,7 +13,13 @@ const AHEAD = 2;
 /** Chunks the main thread prepares itself while the worker starts. */
 const INLINE_CHUNKS = 4;
 
-const startPrepareWorker = (data: unknown) => startWorker(new URL('./prepare-worker.ts', import.meta.url), data);
+/**
+ * The worker's live data is a read buffer and a few chunks of 2,000 rows, whatever the file's
+ * size: a small heap keeps V8 from growing it (and the server's memory) with its garbage.
+ */
+const PREPARE_HEAP = { maxOldGenerationSizeMb: 64, maxYoungGenerationSizeMb: 16 };
+
+const startPrepareWorker = (data: unknown) => startWorker(new URL('./prepare-worker.ts', import.meta.url), data, { resourceLimits: PREPARE_HEAP });
 
 /**
  * Prepared chunks of a stored upload, in file order. `inWorker`: parse and prepare on a worker

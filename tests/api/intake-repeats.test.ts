@@ -83,6 +83,34 @@ describe('repeats inside one batch', () => {
   });
 });
 
+describe('a night of wide rows', () => {
+  it('is checked on the parse worker (its heap is small) in chunks bounded by characters, every row kept', async () => {
+    // 400 extra columns of 40 characters (about 16 KB a row): chunks of a few hundred rows, more
+    // than the main thread prepares itself before the parse worker takes over
+    const agent = await signedIn(t.app, 'observer');
+    const extra = Array.from({ length: 400 }, (_, k) => `note_${k}`);
+    const n = 1400;
+    const lines: string[] = [];
+    for (let i = 0; i < n; i++) {
+      const pad = Array.from({ length: 400 }, (_, k) => `${i}-${k}-`.padEnd(40, 'w'));
+      lines.push(`Wide star ${i},${5500000000000000000n + BigInt(i)},${(70 + i * 0.01).toFixed(4)},-25.0,V,0.0100,0.0020,0.0005,0.0005,2.0,0.05,61100.25,KR-HAWK,${pad.join(',')}`);
+    }
+    const body = Buffer.from([`${HEADER},${extra.join(',')}`, ...lines].join('\n') + '\n');
+    expect(body.length).toBeGreaterThan(16 << 20);
+    const res = await agent.post('/api/v1/batches').set('Origin', t.config.publicUrl).attach('file', body, 'wide.csv');
+    expect([201, 202]).toContain(res.status);
+    let b = res.body;
+    while (b.state === 'checking' || b.state === 'received') {
+      await new Promise((r) => setTimeout(r, 100));
+      b = (await agent.get(`/api/v1/batches/${b.id}`)).body;
+    }
+    expect(b.state).toBe('awaiting_review');
+    expect(b.counts).toMatchObject({ rows: n, accepted: n, rejected: 0, newStars: n });
+    const last = (await rows(agent, b.id)).at(-1);
+    expect(last.line).toBe(n + 1);
+  }, 180_000);
+});
+
 describe('another observer’s pending stars stay out of an observer’s rows', () => {
   it('rows meet only approved or own stars; curators see the note', async () => {
     const first = await signedIn(t.app, 'observer');

@@ -4,7 +4,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { parse } from 'csv-parse/sync';
-import { quoteFreeSplitter, readCsvRows } from '../../server/intake/csv.js';
+import { CSV_CHUNK_CHARS, CSV_CHUNK_ROWS, quoteFreeSplitter, readCsvRows } from '../../server/intake/csv.js';
 
 // Reference: csv-parse itself (the registry package the general reader uses), with the reader's
 // options. The quote-free reader must give the same records and line numbers on any text
@@ -55,5 +55,35 @@ describe('quote-free CSV reader', () => {
     expect(a.map((r) => r.line)).toEqual([3, 4, 6, 8]);
     expect(a[0].fields).toEqual(['KS 1', '10.5', '-3']);
     fs.rmSync(dir, { recursive: true, force: true });
+  });
+});
+
+describe('chunks of the stored file', () => {
+  it('end at 2,000 rows, or sooner when the rows are wide, and lose no row', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'starveil-chunks-'));
+    try {
+      // narrow rows: chunks of CSV_CHUNK_ROWS; 300 columns of 40 characters: about 4 MB per 340 rows
+      for (const [cols, width, rows, quoted] of [[13, 8, 4500, false], [300, 40, 1200, false], [300, 40, 1200, true]] as const) {
+        const file = path.join(dir, `w${cols}-${quoted}.csv`);
+        const cell = (r: number, c: number) => (quoted && c === 0 ? `"r${r}"` : `${r}`.padStart(width, String(c % 10)));
+        const lines = [Array.from({ length: cols }, (_, c) => `c${c}`).join(',')];
+        for (let r = 0; r < rows; r++) lines.push(Array.from({ length: cols }, (_, c) => cell(r, c)).join(','));
+        fs.writeFileSync(file, lines.join('\n') + '\n');
+        const sizes: number[] = [];
+        const seen: number[] = [];
+        for await (const chunk of readCsvRows(file, ',')) {
+          sizes.push(chunk.length);
+          const chars = chunk.reduce((a, r) => a + r.fields.reduce((b, f) => b + f.length + 1, 0), 0);
+          // a chunk passes the character bound by at most its last row
+          expect(chars - chunk[chunk.length - 1].fields.reduce((b, f) => b + f.length + 1, 0)).toBeLessThan(CSV_CHUNK_CHARS);
+          for (const r of chunk) seen.push(r.line);
+        }
+        expect(seen).toEqual(Array.from({ length: rows }, (_, i) => i + 2));
+        if (cols === 13) expect(sizes.slice(0, -1).every((n) => n === CSV_CHUNK_ROWS)).toBe(true);
+        else expect(Math.max(...sizes)).toBeLessThan(CSV_CHUNK_ROWS / 4);
+      }
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
