@@ -17,9 +17,7 @@ import path from 'node:path';
 import { execFileSync } from 'node:child_process';
 import Database from 'better-sqlite3';
 import { migrateLatest, openDb } from '../server/db.js';
-import { checkBatch } from '../server/intake/check.js';
-import { sniffCsv } from '../server/intake/csv.js';
-import { proposeMapping } from '../server/measurements/mapping.js';
+import { benchUser, checkFile } from './check-local.js';
 
 const src = path.resolve(process.argv[2] ?? '');
 if (!fs.existsSync(path.join(src, 'batch-b.csv'))) {
@@ -34,27 +32,14 @@ const s = (ms: number) => `${(ms / 1000).toFixed(1)} s`;
 // 1. Starveil's check of A (approved) and B
 const db = openDb(sFile, { role: 'background' });
 await migrateLatest(db);
-const now = new Date().toISOString();
-const [uid] = await db('users').insert({ email: 'floor@kestrel.example', name: 'Floor', role: 'observer', password_hash: 'x', disabled: false, created_at: now, updated_at: now });
-await db('instruments').insert({ code: 'KR-bench', name: 'Bench', bands: 'V,R', created_at: now });
+const uid = await benchUser(db);
 const ids: number[] = [];
 let checkB = 0;
 for (const name of ['batch-a.csv', 'batch-b.csv']) {
-  const file = path.join(src, name);
-  const head = await sniffCsv(file);
-  const proposal = proposeMapping(head.headers, {}, {}, { batchInstrument: null });
-  const [id] = await db('batches').insert({ filename: name, size_bytes: fs.statSync(file).size, stored_path: file, sha256: name, state: 'checking', uploaded_by: uid, mapping_json: JSON.stringify(proposal.mapping), proposal_json: JSON.stringify({ ...proposal, preview: [], delimiter: head.delimiter }), created_at: now, updated_at: now });
-  const t0 = performance.now();
-  await checkBatch(db, id, { crossmatchArcsec: 1, mjdToleranceDays: 1e-3 }, () => {});
-  const ms = performance.now() - t0;
-  const b = await db('batches').where({ id }).first();
+  const { id, batch: b, ms } = await checkFile(db, uid, path.join(src, name), { approve: name === 'batch-a.csv' });
   if (b.state !== 'awaiting_review') throw new Error(`${name}: ${b.state} ${b.failure}`);
   console.log(`Starveil check of ${name}: ${s(ms)}`);
   if (name === 'batch-b.csv') checkB = ms;
-  else {
-    await db('batches').where({ id }).update({ state: 'approved' });
-    await db('measurements').where({ batch_id: id }).update({ state: 'approved' });
-  }
   ids.push(id);
 }
 await db.raw('PRAGMA wal_checkpoint(TRUNCATE)');
