@@ -266,7 +266,10 @@ async function run(db: Knex, b: Record<string, any>, opts: CheckOptions, rowsTot
         let starMatch: string | null = null;
         const notes: string[] = [];
         if (m.hidden?.length) {
-          for (const h of m.hidden) notes.push(`star ${h.id}${nameOf(h) ? ` (${nameOf(h)})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
+          for (const h of m.hidden) {
+            const hn = nameOf(h);
+            notes.push(`star ${h.id}${hn ? ` (${hn})` : ''} from batch ${h.batch_id}, not yet approved and uploaded by someone else, is within ${opts.crossmatchArcsec}″${h.source_id && h.source_id === c.sourceId[i] ? ' and has the same source_id' : ''}`);
+          }
         }
         if (m.kind === 'source_id' || m.kind === 'position') {
           star = m.star;

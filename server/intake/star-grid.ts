@@ -57,7 +57,7 @@ class Page {
 export class StarGrid {
   private n = 0;
   private pages: Page[] = [];
-  /** names and source ids: arrays of references, filled only where a star has one */
+  /** names and source ids by slot (null: none; a name undefined: not read, see GridStar) */
   private names: (string | null | undefined)[] = [];
   private sources: (string | null)[] = [];
   /** cube key → last star added in it (open addressing, linear probing; -1 = empty): 8 bytes a slot, not a Map entry per cube */
